@@ -20,9 +20,17 @@
 //!   facet carries a [`Wetting`] that says whether the liquid is on that side, on the other
 //!   side, or nowhere (dry).
 
+mod clip;
+mod integrate;
+mod loads;
 mod pressure;
+mod topology;
 
+pub use clip::{Piece, clip_polygon, slab_pieces};
+pub use integrate::{CHUNK, FacetLoads, PartAccum, PartInput, facet_loads, integrate, part_planes};
+pub use loads::{LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of};
 pub use pressure::{Layer, Liquid, LiquidError, Profile};
+pub use topology::{NO_SHELL, ShellInfo, Topology, WELD_TOLERANCE_REL, bounding_box};
 
 use nalgebra::Vector3;
 
@@ -180,7 +188,11 @@ mod tests {
             let m = nalgebra::Matrix3::from_columns(&[ex, ey, ez]);
             assert_eq!(m.determinant(), 1.0, "{up:?}");
             let u = up.unit();
-            assert_eq!(f.vector_in([u.x, u.y, u.z]), Vec3::new(0.0, 0.0, 1.0), "{up:?}");
+            assert_eq!(
+                f.vector_in([u.x, u.y, u.z]),
+                Vec3::new(0.0, 0.0, 1.0),
+                "{up:?}"
+            );
             let v = [0.3, -1.7, 2.9];
             let back = f.vector_out(f.vector_in(v));
             assert_eq!(back, v, "{up:?}");

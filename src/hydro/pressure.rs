@@ -62,7 +62,11 @@ pub enum LiquidError {
     #[error(
         "layer {index}: down_to {value} m must lie below the layer above it ({above} m); list layers top to bottom"
     )]
-    LayersOutOfOrder { index: usize, value: f64, above: f64 },
+    LayersOutOfOrder {
+        index: usize,
+        value: f64,
+        above: f64,
+    },
 }
 
 /// One linear piece of the pressure profile: `p(z) = p_top + rho_g · (z_top − z)` for

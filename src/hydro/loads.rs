@@ -1,0 +1,147 @@
+//! What a force and a moment say together: the line of action, the centre of pressure on
+//! a plane, and the planarity test of a set of triangles.
+//!
+//! Pure vector algebra; frame-agnostic (every argument in one frame, results in it too).
+
+use super::{Tri, Vec3};
+
+/// Tolerance of the zero-force test: `|F| ≤ ZERO_FORCE_REL × Σ |facet force|` is zero.
+pub const ZERO_FORCE_REL: f64 = 1e-9;
+
+/// Tolerance of the planarity test, relative to the bounding-box diagonal.
+pub const PLANAR_REL: f64 = 1e-6;
+
+/// The central axis of a force system (a wrench): the line along which the resultant acts,
+/// with the couple that remains about it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct LineOfAction {
+    /// The point of the axis nearest to the moment centre, m.
+    pub point: Vec3,
+    /// Unit vector along the force.
+    pub direction: Vec3,
+    /// Moment component along `direction`, N·m (0 for parallel forces, such as pressure
+    /// on a plane or pure buoyancy).
+    pub couple: f64,
+}
+
+/// The central axis of the force `force` with moment `moment` about `centre`.
+///
+/// Returns `None` when `|force| ≤ ZERO_FORCE_REL × abs_force_sum`. The axis point is
+/// `centre + F × M / |F|²` (Poinsot's central axis), the couple `M · F / |F|`.
+pub fn line_of_action(
+    force: Vec3,
+    moment: Vec3,
+    centre: Vec3,
+    abs_force_sum: f64,
+) -> Option<LineOfAction> {
+    let f2 = force.norm_squared();
+    let f = f2.sqrt();
+    if !(f > ZERO_FORCE_REL * abs_force_sum) || f == 0.0 {
+        return None;
+    }
+    let direction = force / f;
+    Some(LineOfAction {
+        point: centre + force.cross(&moment) / f2,
+        direction,
+        couple: moment.dot(&direction),
+    })
+}
+
+/// A plane through `point` with unit normal `normal`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Plane {
+    /// A point of the plane (the area-weighted centroid of the triangles).
+    pub point: Vec3,
+    /// Unit normal (sign arbitrary).
+    pub normal: Vec3,
+}
+
+impl Plane {
+    /// Where a line meets the plane, or `None` if it runs parallel to it.
+    pub fn meet(&self, line: &LineOfAction) -> Option<Vec3> {
+        let denom = self.normal.dot(&line.direction);
+        if denom.abs() < 1e-12 {
+            return None;
+        }
+        let t = self.normal.dot(&(self.point - line.point)) / denom;
+        Some(line.point + t * line.direction)
+    }
+}
+
+/// The area-weighted plane of a set of triangles, if they all lie in it.
+///
+/// The normal is the sum of the area vectors, each turned to agree with the largest
+/// facet's (so mixed winding does not cancel it); the point is the area-weighted centroid.
+/// The set is planar when every vertex lies within `PLANAR_REL ×` the bounding-box
+/// diagonal of that plane. Returns `None` for an empty, degenerate or non-planar set.
+pub fn plane_of<'a>(tris: impl Iterator<Item = &'a Tri> + Clone) -> Option<Plane> {
+    let mut largest = Vec3::zeros();
+    for t in tris.clone() {
+        let a = (t[1] - t[0]).cross(&(t[2] - t[0]));
+        if a.norm_squared() > largest.norm_squared() {
+            largest = a;
+        }
+    }
+    if largest == Vec3::zeros() {
+        return None;
+    }
+    let mut normal = Vec3::zeros();
+    let mut centroid = Vec3::zeros();
+    let mut area = 0.0;
+    let mut lo = Vec3::repeat(f64::INFINITY);
+    let mut hi = Vec3::repeat(f64::NEG_INFINITY);
+    for t in tris.clone() {
+        let a = (t[1] - t[0]).cross(&(t[2] - t[0]));
+        normal += if a.dot(&largest) < 0.0 { -a } else { a };
+        let w = a.norm();
+        centroid += w * (t[0] + t[1] + t[2]) / 3.0;
+        area += w;
+        for p in t {
+            lo = lo.inf(p);
+            hi = hi.sup(p);
+        }
+    }
+    let normal = normal.try_normalize(0.0)?;
+    let point = centroid / area;
+    let tol = PLANAR_REL * (hi - lo).norm();
+    let planar = tris
+        .flat_map(|t| t.iter())
+        .all(|p| normal.dot(&(p - point)).abs() <= tol);
+    planar.then_some(Plane { point, normal })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn central_axis_of_a_force_with_an_offset_moment() {
+        // A force (0,0,10) acting through (2,3,0): M about the origin = r × F = (30,−20,0).
+        let f = Vec3::new(0.0, 0.0, 10.0);
+        let m = Vec3::new(2.0, 3.0, 0.0).cross(&f);
+        let l = line_of_action(f, m, Vec3::zeros(), 10.0).expect("non-zero");
+        assert_relative_eq!(l.point, Vec3::new(2.0, 3.0, 0.0), epsilon = 1e-15);
+        assert_relative_eq!(l.couple, 0.0);
+        // A pure torque along the force is a couple of 5 N·m.
+        let l = line_of_action(f, m + Vec3::new(0.0, 0.0, 5.0), Vec3::zeros(), 10.0).expect("x");
+        assert_relative_eq!(l.couple, 5.0);
+        assert!(line_of_action(Vec3::new(1e-12, 0.0, 0.0), m, Vec3::zeros(), 10.0).is_none());
+    }
+
+    #[test]
+    fn planarity_ignores_winding_and_catches_a_fold() {
+        let v = Vec3::new;
+        let flat = [
+            [v(0.0, 0.0, 0.0), v(1.0, 0.0, 0.0), v(1.0, 1.0, 0.0)],
+            [v(0.0, 0.0, 0.0), v(0.0, 1.0, 0.0), v(1.0, 1.0, 0.0)], // reversed winding
+        ];
+        let p = plane_of(flat.iter()).expect("planar");
+        assert_relative_eq!(p.normal.z.abs(), 1.0);
+        let folded = [
+            flat[0],
+            [v(0.0, 0.0, 0.0), v(0.0, 1.0, 0.1), v(1.0, 1.0, 0.0)],
+        ];
+        assert!(plane_of(folded.iter()).is_none());
+    }
+}

@@ -1,0 +1,495 @@
+//! Topology of a triangle soup: welding, edges, shells, orientation and nesting.
+//!
+//! Owns the pinned definitions of CONTRACT.md: vertices closer than
+//! [`WELD_TOLERANCE_REL`] × the bounding-box diagonal are one vertex *for topology only*
+//! (geometry is never moved); a facet with a repeated vertex is ignored for topology; a
+//! shell is closed when every edge is shared by exactly two facets that traverse it in
+//! opposite directions after orientation. Winding is made consistent within each shell
+//! by a flood fill over manifold edges, and closed shells are turned outward by the sign
+//! of their enclosed volume. Shells sealed inside other closed shells get a nesting depth.
+//!
+//! It does not decide what the liquid does with any of this; the caller maps shells and
+//! wet sides to per-facet wetting.
+
+use std::collections::VecDeque;
+
+use rustc_hash::FxHashMap;
+
+use super::{Tri, Vec3};
+
+/// Weld tolerance for topology, relative to the bounding-box diagonal (pinned).
+pub const WELD_TOLERANCE_REL: f64 = 1e-7;
+
+/// Marks a facet that belongs to no shell (it has a repeated vertex after welding).
+pub const NO_SHELL: u32 = u32::MAX;
+
+/// One connected set of facets.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ShellInfo {
+    /// Number of facets.
+    pub facets: usize,
+    /// Lowest and highest facet index in the shell.
+    pub facet_span: (usize, usize),
+    /// Every edge shared by exactly two facets of opposite direction after orientation.
+    pub closed: bool,
+    /// Winding could be made consistent over every manifold edge.
+    pub orientable: bool,
+    /// Enclosed volume after orientation (≥ 0 for a closed shell), in the input's units³.
+    pub volume: f64,
+    /// The shell was closed and wound inward as stored (by the majority winding).
+    pub inverted: bool,
+    /// Facets whose winding orientation reversed relative to storage.
+    pub flipped_facets: usize,
+    /// Number of closed shells that enclose this one (0 for an outer shell).
+    pub depth: u32,
+    /// Number of closed shells directly inside this one.
+    pub children: u32,
+    /// Bounding box (min, max).
+    pub bbox: (Vec3, Vec3),
+}
+
+/// The topology of a whole mesh (across parts).
+#[derive(Clone, Debug, Default)]
+pub struct Topology {
+    /// Weld tolerance used, in the input's units.
+    pub tolerance: f64,
+    /// Number of distinct vertices after welding.
+    pub vertices: usize,
+    /// Shell of each facet, or [`NO_SHELL`] for a degenerate one.
+    pub facet_shell: Vec<u32>,
+    /// Whether each facet is to be read reversed: consistent within its shell, and
+    /// outward for closed shells.
+    pub flip: Vec<bool>,
+    /// The shells.
+    pub shells: Vec<ShellInfo>,
+    /// Edges used by one facet only.
+    pub open_edges: usize,
+    /// Edges used by more than two facets.
+    pub non_manifold_edges: usize,
+    /// Manifold edges whose two facets, as stored, traverse them in the same direction.
+    pub inconsistent_edges: usize,
+    /// Facets with a repeated vertex after welding.
+    pub degenerate_facets: usize,
+    /// Facets with the same three vertices as an earlier facet (any order or winding).
+    pub duplicate_facets: usize,
+}
+
+impl Topology {
+    /// Whether every shell is closed (and there is at least one).
+    pub fn closed(&self) -> bool {
+        !self.shells.is_empty() && self.shells.iter().all(|s| s.closed)
+    }
+
+    /// Whether the facets `range` form closed shells by themselves: every shell they
+    /// touch is closed and lies wholly inside the range.
+    pub fn closed_within(&self, range: std::ops::Range<usize>) -> bool {
+        let mut any = false;
+        for &s in &self.facet_shell[range.clone()] {
+            if s == NO_SHELL {
+                continue;
+            }
+            let sh = &self.shells[s as usize];
+            if !sh.closed || sh.facet_span.0 < range.start || sh.facet_span.1 >= range.end {
+                return false;
+            }
+            any = true;
+        }
+        any
+    }
+
+    /// Builds the topology of `tris`.
+    pub fn build(tris: &[Tri]) -> Topology {
+        let n = tris.len();
+        let (lo, hi) = bounding_box(tris.iter().flat_map(|t| t.iter()));
+        let diag = if n == 0 { 0.0 } else { (hi - lo).norm() };
+        let tolerance = WELD_TOLERANCE_REL * diag;
+        let centre = (lo + hi) / 2.0;
+
+        let (ids, vertices) = weld(tris, tolerance, lo);
+        let degenerate: Vec<bool> = ids
+            .iter()
+            .map(|[a, b, c]| a == b || b == c || a == c)
+            .collect();
+        let degenerate_facets = degenerate.iter().filter(|&&d| d).count();
+        let duplicate_facets = count_duplicates(&ids, &degenerate);
+
+        // Directed edges, grouped by their undirected key.
+        let mut edges: Vec<(u64, u32, bool)> = Vec::with_capacity(3 * n);
+        for (f, [a, b, c]) in ids.iter().enumerate() {
+            if degenerate[f] {
+                continue;
+            }
+            for (u, v) in [(*a, *b), (*b, *c), (*c, *a)] {
+                let key = (u64::from(u.min(v)) << 32) | u64::from(u.max(v));
+                edges.push((key, f as u32, u < v));
+            }
+        }
+        edges.sort_unstable_by_key(|e| (e.0, e.1));
+
+        let mut uf = UnionFind::new(n);
+        // Manifold neighbours: (other facet, same direction as stored?).
+        let mut adj: Vec<[(u32, bool); 3]> = vec![[(u32::MAX, false); 3]; n];
+        let mut adj_len = vec![0u8; n];
+        let mut bad_facet = vec![false; n]; // touches an open or non-manifold edge
+        let (mut open_edges, mut non_manifold_edges, mut inconsistent_edges) = (0, 0, 0);
+        let mut i = 0;
+        while i < edges.len() {
+            let mut j = i + 1;
+            while j < edges.len() && edges[j].0 == edges[i].0 {
+                j += 1;
+            }
+            let group = &edges[i..j];
+            match group.len() {
+                1 => {
+                    open_edges += 1;
+                    bad_facet[group[0].1 as usize] = true;
+                }
+                2 => {
+                    let (f, g) = (group[0].1, group[1].1);
+                    let same = group[0].2 == group[1].2;
+                    if same {
+                        inconsistent_edges += 1;
+                    }
+                    uf.union(f as usize, g as usize);
+                    if f == g {
+                        // A facet meeting itself (a folded sliver) cannot be manifold.
+                        bad_facet[f as usize] = true;
+                    } else {
+                        for (a, b) in [(f, g), (g, f)] {
+                            let k = adj_len[a as usize] as usize;
+                            if k < 3 {
+                                adj[a as usize][k] = (b, same);
+                                adj_len[a as usize] += 1;
+                            }
+                        }
+                    }
+                }
+                _ => {
+                    non_manifold_edges += 1;
+                    for e in group {
+                        bad_facet[e.1 as usize] = true;
+                        uf.union(group[0].1 as usize, e.1 as usize);
+                    }
+                }
+            }
+            i = j;
+        }
+
+        // Shell numbering in order of first facet.
+        let mut root_shell: FxHashMap<usize, u32> = FxHashMap::default();
+        let mut facet_shell = vec![NO_SHELL; n];
+        let mut shells: Vec<ShellInfo> = Vec::new();
+        for f in 0..n {
+            if degenerate[f] {
+                continue;
+            }
+            let r = uf.find(f);
+            let s = *root_shell.entry(r).or_insert_with(|| {
+                shells.push(ShellInfo {
+                    facets: 0,
+                    facet_span: (f, f),
+                    closed: true,
+                    orientable: true,
+                    volume: 0.0,
+                    inverted: false,
+                    flipped_facets: 0,
+                    depth: 0,
+                    children: 0,
+                    bbox: (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY)),
+                });
+                (shells.len() - 1) as u32
+            });
+            facet_shell[f] = s;
+            let sh = &mut shells[s as usize];
+            sh.facets += 1;
+            sh.facet_span.1 = f;
+            for p in &tris[f] {
+                sh.bbox.0 = sh.bbox.0.inf(p);
+                sh.bbox.1 = sh.bbox.1.sup(p);
+            }
+            if bad_facet[f] {
+                sh.closed = false;
+            }
+        }
+
+        // Flood fill: a neighbour across a manifold edge traversed in the same direction
+        // must be read reversed relative to this facet.
+        let mut flip = vec![false; n];
+        let mut seen = vec![false; n];
+        let mut queue = VecDeque::new();
+        for f in 0..n {
+            if degenerate[f] || seen[f] {
+                continue;
+            }
+            seen[f] = true;
+            queue.push_back(f);
+            while let Some(c) = queue.pop_front() {
+                for &(g, same) in &adj[c][..adj_len[c] as usize] {
+                    let g = g as usize;
+                    let want = flip[c] ^ same;
+                    if !seen[g] {
+                        seen[g] = true;
+                        flip[g] = want;
+                        queue.push_back(g);
+                    } else if flip[g] != want {
+                        let sh = &mut shells[facet_shell[c] as usize];
+                        sh.orientable = false;
+                        sh.closed = false;
+                    }
+                }
+            }
+        }
+
+        // Signed volume per shell about the box centre (no cancellation far from origin).
+        let mut vol = vec![0.0; shells.len()];
+        for f in 0..n {
+            let s = facet_shell[f];
+            if s == NO_SHELL {
+                continue;
+            }
+            let [a, b, c] = tris[f].map(|p| p - centre);
+            let v6 = a.dot(&b.cross(&c));
+            vol[s as usize] += if flip[f] { -v6 } else { v6 } / 6.0;
+        }
+        for (s, sh) in shells.iter_mut().enumerate() {
+            sh.volume = vol[s];
+            if sh.closed && vol[s] < 0.0 {
+                sh.volume = -vol[s];
+            }
+        }
+        let turn: Vec<bool> = vol
+            .iter()
+            .zip(&shells)
+            .map(|(v, s)| s.closed && *v < 0.0)
+            .collect();
+        for f in 0..n {
+            let s = facet_shell[f];
+            if s != NO_SHELL && turn[s as usize] {
+                flip[f] = !flip[f];
+            }
+        }
+        for f in 0..n {
+            let s = facet_shell[f];
+            if s != NO_SHELL && flip[f] {
+                shells[s as usize].flipped_facets += 1;
+            }
+        }
+        for sh in shells.iter_mut() {
+            // Inverted as stored: most of its area would have to be reversed.
+            sh.inverted = sh.closed && 2 * sh.flipped_facets > sh.facets;
+        }
+
+        nest(tris, &facet_shell, &flip, &mut shells);
+
+        Topology {
+            tolerance,
+            vertices,
+            facet_shell,
+            flip,
+            shells,
+            open_edges,
+            non_manifold_edges,
+            inconsistent_edges,
+            degenerate_facets,
+            duplicate_facets,
+        }
+    }
+}
+
+/// The axis-aligned bounding box of some points ((+∞, −∞) when there are none).
+pub fn bounding_box<'a>(points: impl Iterator<Item = &'a Vec3>) -> (Vec3, Vec3) {
+    let mut lo = Vec3::repeat(f64::INFINITY);
+    let mut hi = Vec3::repeat(f64::NEG_INFINITY);
+    for p in points {
+        lo = lo.inf(p);
+        hi = hi.sup(p);
+    }
+    (lo, hi)
+}
+
+/// Gives every corner a vertex id; corners within `tol` of a representative share it.
+///
+/// A grid of cells 8 × `tol` wide; a corner is compared with the representatives of its
+/// own cell and of the neighbour cells it lies within `tol` of, so almost every lookup
+/// touches one cell. The first corner of a cluster becomes its representative.
+fn weld(tris: &[Tri], tol: f64, origin: Vec3) -> (Vec<[u32; 3]>, usize) {
+    let cell = if tol > 0.0 { 8.0 * tol } else { 1.0 };
+    let tol2 = tol * tol;
+    let mut heads: FxHashMap<[i64; 3], u32> = FxHashMap::default();
+    heads.reserve(tris.len() / 2 + 16);
+    let mut reps: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
+    let mut next: Vec<u32> = Vec::with_capacity(tris.len() / 2 + 16);
+    let mut ids = Vec::with_capacity(tris.len());
+    let key_of = |q: &Vec3| -> [i64; 3] {
+        [
+            (q.x / cell).floor() as i64,
+            (q.y / cell).floor() as i64,
+            (q.z / cell).floor() as i64,
+        ]
+    };
+    for t in tris {
+        let mut tri_ids = [0u32; 3];
+        for (k, p) in t.iter().enumerate() {
+            let q = p - origin;
+            let key = key_of(&q);
+            let mut found = None;
+            // Neighbour offsets worth visiting along each axis.
+            let mut offs: [[i64; 2]; 3] = [[0, 0]; 3];
+            let mut counts = [1usize; 3];
+            for a in 0..3 {
+                let f = q[a] / cell - key[a] as f64; // position inside the cell, [0, 1)
+                if f * cell < tol {
+                    offs[a][1] = -1;
+                    counts[a] = 2;
+                } else if (1.0 - f) * cell <= tol {
+                    offs[a][1] = 1;
+                    counts[a] = 2;
+                }
+            }
+            'search: for ia in 0..counts[0] {
+                for ib in 0..counts[1] {
+                    for ic in 0..counts[2] {
+                        let kk = [
+                            key[0] + offs[0][ia],
+                            key[1] + offs[1][ib],
+                            key[2] + offs[2][ic],
+                        ];
+                        let mut r = heads.get(&kk).copied().unwrap_or(u32::MAX);
+                        while r != u32::MAX {
+                            if (reps[r as usize] - q).norm_squared() <= tol2 {
+                                found = Some(r);
+                                break 'search;
+                            }
+                            r = next[r as usize];
+                        }
+                    }
+                }
+            }
+            let id = match found {
+                Some(r) => r,
+                None => {
+                    let id = reps.len() as u32;
+                    reps.push(q);
+                    let head = heads.entry(key).or_insert(u32::MAX);
+                    next.push(*head);
+                    *head = id;
+                    id
+                }
+            };
+            tri_ids[k] = id;
+        }
+        ids.push(tri_ids);
+    }
+    (ids, reps.len())
+}
+
+fn count_duplicates(ids: &[[u32; 3]], degenerate: &[bool]) -> usize {
+    let mut keys: Vec<[u32; 3]> = ids
+        .iter()
+        .zip(degenerate)
+        .filter(|(_, d)| !**d)
+        .map(|(t, _)| {
+            let mut k = *t;
+            k.sort_unstable();
+            k
+        })
+        .collect();
+    keys.sort_unstable();
+    keys.windows(2).filter(|w| w[0] == w[1]).count()
+}
+
+/// Sets the nesting depth of every closed shell: how many other closed shells enclose it.
+///
+/// A shell A lies inside a closed shell B when B's box contains A's box and a point of A
+/// has winding number ≈ 1 with respect to B (sum of signed solid angles / 4π).
+fn nest(tris: &[Tri], facet_shell: &[u32], flip: &[bool], shells: &mut [ShellInfo]) {
+    let closed: Vec<usize> = (0..shells.len()).filter(|&s| shells[s].closed).collect();
+    if closed.len() < 2 {
+        return;
+    }
+    // A probe point per shell: the centroid of its first facet.
+    let mut probe = vec![None; shells.len()];
+    for (f, &s) in facet_shell.iter().enumerate() {
+        if s != NO_SHELL && probe[s as usize].is_none() {
+            let t = &tris[f];
+            probe[s as usize] = Some((t[0] + t[1] + t[2]) / 3.0);
+        }
+    }
+    let inside_box = |a: &ShellInfo, b: &ShellInfo| {
+        (0..3).all(|k| a.bbox.0[k] >= b.bbox.0[k] && a.bbox.1[k] <= b.bbox.1[k])
+    };
+    let mut encloses: Vec<(usize, usize)> = Vec::new(); // (outer, inner)
+    for &b in &closed {
+        let candidates: Vec<usize> = closed
+            .iter()
+            .copied()
+            .filter(|&a| a != b && inside_box(&shells[a], &shells[b]))
+            .collect();
+        if candidates.is_empty() {
+            continue;
+        }
+        let mut wind = vec![0.0; candidates.len()];
+        for (f, &s) in facet_shell.iter().enumerate() {
+            if s as usize != b {
+                continue;
+            }
+            let t = &tris[f];
+            for (w, &a) in wind.iter_mut().zip(&candidates) {
+                if let Some(p) = probe[a] {
+                    let omega = solid_angle(t, p);
+                    *w += if flip[f] { -omega } else { omega };
+                }
+            }
+        }
+        for (w, &a) in wind.iter().zip(&candidates) {
+            if (w / (4.0 * std::f64::consts::PI)) > 0.5 {
+                encloses.push((b, a));
+            }
+        }
+    }
+    for &(_, inner) in &encloses {
+        shells[inner].depth += 1;
+    }
+    // Direct children: inner shells one level deeper than the outer one.
+    for &(outer, inner) in &encloses {
+        if shells[inner].depth == shells[outer].depth + 1 {
+            shells[outer].children += 1;
+        }
+    }
+}
+
+/// Signed solid angle of triangle `t` seen from `p` (Van Oosterom and Strackee, 1983).
+fn solid_angle(t: &Tri, p: Vec3) -> f64 {
+    let (a, b, c) = (t[0] - p, t[1] - p, t[2] - p);
+    let (la, lb, lc) = (a.norm(), b.norm(), c.norm());
+    let num = a.dot(&b.cross(&c));
+    let den = la * lb * lc + a.dot(&b) * lc + a.dot(&c) * lb + b.dot(&c) * la;
+    2.0 * num.atan2(den)
+}
+
+struct UnionFind {
+    parent: Vec<u32>,
+}
+
+impl UnionFind {
+    fn new(n: usize) -> Self {
+        UnionFind {
+            parent: (0..n as u32).collect(),
+        }
+    }
+    fn find(&mut self, mut x: usize) -> usize {
+        while self.parent[x] as usize != x {
+            let p = self.parent[x] as usize;
+            self.parent[x] = self.parent[p];
+            x = p;
+        }
+        x
+    }
+    fn union(&mut self, a: usize, b: usize) {
+        let (ra, rb) = (self.find(a), self.find(b));
+        if ra != rb {
+            let (lo, hi) = (ra.min(rb), ra.max(rb));
+            self.parent[hi] = lo as u32;
+        }
+    }
+}
