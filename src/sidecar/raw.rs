@@ -252,47 +252,21 @@ pub(super) trait Keyword: Copy + 'static {
     fn keyword(self) -> &'static str;
 }
 
-impl Keyword for LengthUnit {
-    const WHAT: &'static str = "unit";
-    const ALL: &'static [Self] = &[
-        LengthUnit::M,
-        LengthUnit::Cm,
-        LengthUnit::Mm,
-        LengthUnit::In,
-        LengthUnit::Ft,
-    ];
-    fn keyword(self) -> &'static str {
-        self.as_str()
-    }
+macro_rules! keyword {
+    ($ty:ident, $what:literal, [$($value:ident),* $(,)?]) => {
+        impl Keyword for $ty {
+            const WHAT: &'static str = $what;
+            const ALL: &'static [Self] = &[$($ty::$value),*];
+            fn keyword(self) -> &'static str {
+                self.as_str()
+            }
+        }
+    };
 }
 
-impl Keyword for UpAxis {
-    const WHAT: &'static str = "up axis";
-    const ALL: &'static [Self] = &[
-        UpAxis::PosX,
-        UpAxis::NegX,
-        UpAxis::PosY,
-        UpAxis::NegY,
-        UpAxis::PosZ,
-        UpAxis::NegZ,
-    ];
-    fn keyword(self) -> &'static str {
-        self.as_str()
-    }
-}
-
-impl Keyword for WetSide {
-    const WHAT: &'static str = "wet side";
-    const ALL: &'static [Self] = &[
-        WetSide::Outside,
-        WetSide::Inside,
-        WetSide::Front,
-        WetSide::Back,
-    ];
-    fn keyword(self) -> &'static str {
-        self.as_str()
-    }
-}
+keyword!(LengthUnit, "unit", [M, Cm, Mm, In, Ft]);
+keyword!(UpAxis, "up axis", [PosX, NegX, PosY, NegY, PosZ, NegZ]);
+keyword!(WetSide, "wet side", [Outside, Inside, Front, Back]);
 
 /// `"a", "b", "c"`: the keywords of `T` quoted, for messages.
 pub(super) fn keyword_list<T: Keyword>() -> String {
