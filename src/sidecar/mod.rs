@@ -1,0 +1,1972 @@
+//! The sidecar: the JSON file beside a mesh that says its units, its up axis and its liquids.
+//!
+//! Owns reading the sidecar text into a validated [`Sidecar`]: the private `raw` module
+//! mirrors the JSON permissively, and [`parse_sidecar`] converts it in one function, where every rule of
+//! CONTRACT.md ("Sidecar keys", "Pinned definitions", "Pinned extensions") is checked and
+//! every default applied. A problem is reported once, with the file, the key path and the
+//! line. Also owns the liquid presets (`config/liquids.json`) and the water density formula.
+//!
+//! It does not read files (the caller passes the text), does not know the mesh (whether it
+//! is closed, its part names), and computes nothing: liquids are validated by building the
+//! core's [`Profile`], so the liquid rules live in one place.
+//! Lengths are metres in the mesh's own axes (after unit scaling), as CONTRACT.md says.
+
+mod raw;
+mod water;
+
+pub use water::{LiquidPreset, liquid_presets, water_density_cipm};
+
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+use thiserror::Error;
+
+use crate::hydro::{Layer, Liquid, LiquidError, Profile, UpAxis, WetSide};
+use raw::{KeyPath, RawCase, RawLayer, RawLiquid, RawSidecar};
+
+/// Standard acceleration of gravity g_n, m/s², the default of `gravity`: adopted by the
+/// 3rd CGPM (1901), exact by definition.
+pub const DEFAULT_GRAVITY_M_S2: f64 = 9.80665;
+
+/// The name of the one case a sidecar without `cases` has.
+pub const DEFAULT_CASE_NAME: &str = "default";
+
+/// The name of the liquid given by the shorthand `liquid` key.
+pub const SHORTHAND_LIQUID_NAME: &str = "liquid";
+
+/// The most steps a sweep may take (it then has one level more).
+pub const MAX_SWEEP_STEPS: usize = 10_000;
+
+/// Length unit of the mesh coordinates.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum LengthUnit {
+    M,
+    Cm,
+    Mm,
+    In,
+    Ft,
+}
+
+impl LengthUnit {
+    /// Metres per unit, exact by definition (the inch and foot since 1959).
+    pub fn metres(self) -> f64 {
+        match self {
+            LengthUnit::M => 1.0,
+            LengthUnit::Cm => 0.01,
+            LengthUnit::Mm => 0.001,
+            LengthUnit::In => 0.0254,
+            LengthUnit::Ft => 0.3048,
+        }
+    }
+
+    /// The keyword used in sidecars (`"mm"` …).
+    pub fn as_str(self) -> &'static str {
+        match self {
+            LengthUnit::M => "m",
+            LengthUnit::Cm => "cm",
+            LengthUnit::Mm => "mm",
+            LengthUnit::In => "in",
+            LengthUnit::Ft => "ft",
+        }
+    }
+}
+
+/// A validated sidecar: every default applied, every name resolved to an index.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Sidecar {
+    /// Length unit of the mesh coordinates (required in the file).
+    pub units: LengthUnit,
+    /// The mesh axis that points up; default `+z`.
+    pub up: UpAxis,
+    /// m/s², > 0; default [`DEFAULT_GRAVITY_M_S2`].
+    pub gravity_m_s2: f64,
+    /// The top-level `wet_side` as given; `None` when the file does not state it (the
+    /// caller then applies `outside` to a closed mesh and refuses an open one).
+    pub wet_side: Option<WetSide>,
+    /// The base liquids in file order; `liquid` alone is one liquid named
+    /// [`SHORTHAND_LIQUID_NAME`]. Never empty. Indices into it are used everywhere else.
+    pub liquids: Vec<NamedLiquid>,
+    /// Per-part settings.
+    pub parts: PartRules,
+    /// Point for moments, m, mesh axes; default `[0, 0, 0]`.
+    pub moment_about_m: [f64; 3],
+    /// Named axes for moments, in file order.
+    pub axes: Vec<NamedAxis>,
+    /// The load cases, never empty; each holds every liquid fully resolved.
+    pub cases: Vec<Case>,
+    /// A level sweep, if asked for.
+    pub sweep: Option<Sweep>,
+    /// A flotation check, if asked for.
+    pub flotation: Option<Flotation>,
+}
+
+/// A base liquid's name, and the preset it was given by, if any (for reports).
+#[derive(Clone, Debug, PartialEq)]
+pub struct NamedLiquid {
+    pub name: String,
+    pub preset: Option<String>,
+}
+
+/// One load case: one resolved liquid per base liquid, in the order of
+/// [`Sidecar::liquids`]. Every liquid builds a [`Profile`] under the sidecar's gravity.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Case {
+    pub name: String,
+    pub liquids: Vec<Liquid>,
+}
+
+/// Which liquid wets a part.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum LiquidChoice {
+    /// Not stated.
+    #[default]
+    Default,
+    /// `"liquid": null`: no liquid reaches the part.
+    Dry,
+    /// An index into [`Sidecar::liquids`].
+    Named(usize),
+}
+
+/// The settings of one part, as stated.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct PartRule {
+    pub liquid: LiquidChoice,
+    pub wet_side: Option<WetSide>,
+}
+
+/// Per-part settings: the `"*"` entry (or nothing stated) and the named parts in file order.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct PartRules {
+    pub default: PartRule,
+    pub named: Vec<(String, PartRule)>,
+}
+
+impl PartRules {
+    /// The settings of part `name`: what its own entry states, else what `"*"` states.
+    pub fn rule_for(&self, name: &str) -> PartRule {
+        let own = self
+            .named
+            .iter()
+            .find(|(n, _)| n == name)
+            .map(|(_, rule)| *rule)
+            .unwrap_or_default();
+        PartRule {
+            liquid: match own.liquid {
+                LiquidChoice::Default => self.default.liquid,
+                stated => stated,
+            },
+            wet_side: own.wet_side.or(self.default.wet_side),
+        }
+    }
+}
+
+/// A part that several liquids could wet and no setting assigns.
+#[derive(Clone, Debug, Error, PartialEq)]
+#[error(
+    "part \"{part}\" has no liquid and the sidecar has several ({liquids}): add \"parts\": {{\"{part}\": {{\"liquid\": \"{first}\"}}}}, or a \"*\" entry for every part not named"
+)]
+pub struct UnassignedPart {
+    pub part: String,
+    /// The liquid names, quoted and comma-separated.
+    pub liquids: String,
+    pub first: String,
+}
+
+impl Sidecar {
+    /// The liquid that wets part `name`: an index into [`Sidecar::liquids`], `None` when
+    /// the part is dry. A part nobody assigns takes the only liquid; with several it is an
+    /// error, since guessing would silently load the wrong face.
+    pub fn part_liquid(&self, name: &str) -> Result<Option<usize>, UnassignedPart> {
+        match self.parts.rule_for(name).liquid {
+            LiquidChoice::Named(index) => Ok(Some(index)),
+            LiquidChoice::Dry => Ok(None),
+            LiquidChoice::Default if self.liquids.len() == 1 => Ok(Some(0)),
+            LiquidChoice::Default => Err(UnassignedPart {
+                part: name.to_owned(),
+                liquids: quoted_list(self.liquids.iter().map(|l| l.name.as_str())),
+                first: self
+                    .liquids
+                    .first()
+                    .map(|l| l.name.clone())
+                    .unwrap_or_default(),
+            }),
+        }
+    }
+
+    /// The wet side of part `name` as stated: its entry, else `"*"`, else the top level.
+    pub fn part_wet_side(&self, name: &str) -> Option<WetSide> {
+        self.parts.rule_for(name).wet_side.or(self.wet_side)
+    }
+}
+
+/// A named axis for moments (m, mesh axes).
+#[derive(Clone, Debug, PartialEq)]
+pub struct NamedAxis {
+    pub name: String,
+    pub point_m: [f64; 3],
+    /// Unit vector (normalised from the file's direction, which may have any length > 0).
+    pub direction: [f64; 3],
+}
+
+/// The level of one liquid stepped from `from_m` to `to_m` inclusive.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Sweep {
+    /// Index into [`Sidecar::liquids`].
+    pub liquid: usize,
+    pub from_m: f64,
+    /// ≥ `from_m`.
+    pub to_m: f64,
+    /// > 0.
+    pub step_m: f64,
+}
+
+impl Sweep {
+    /// The levels, m: `from + i·step` for i = 0, 1, … while it does not pass `to` by more
+    /// than round-off (a relative 1e-9 of a step), so `to` is included when the range is a
+    /// whole number of steps. Computed, never accumulated, so no error builds up.
+    pub fn levels(&self) -> Vec<f64> {
+        let count = sweep_steps(self.from_m, self.to_m, self.step_m).map_or(0, |n| n + 1);
+        (0..count)
+            .map(|i| self.from_m + i as f64 * self.step_m)
+            .collect()
+    }
+}
+
+/// The number of whole steps from `from` to `to`, or `None` when it is not a number in
+/// 0 ..= [`MAX_SWEEP_STEPS`].
+fn sweep_steps(from: f64, to: f64, step: f64) -> Option<usize> {
+    let q = (to - from) / step;
+    if !(0.0..=MAX_SWEEP_STEPS as f64).contains(&q) {
+        return None;
+    }
+    // (to − from)/step carries round-off: 0.3/0.1 is 2.9999999999999996.
+    let steps = (q + 1e-9 * q.max(1.0)).floor() as usize;
+    Some(steps.min(MAX_SWEEP_STEPS))
+}
+
+/// The flotation check's inputs.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Flotation {
+    /// Resisting downward loads, N, each ≥ 0, named by the user, in file order.
+    pub resisting: Vec<(String, f64)>,
+    /// The factor of safety the user's code requires, > 0.
+    pub required_factor: f64,
+}
+
+/// A sidecar that cannot be used: the file, where in it, and what is wrong.
+#[derive(Debug, Error)]
+#[error("sidecar {}{}: {kind}", .path.display(), Position::of(.line, .column, .key))]
+pub struct SidecarError {
+    pub path: PathBuf,
+    /// From 1; `None` when the problem has no place in the text.
+    pub line: Option<usize>,
+    /// From 1.
+    pub column: Option<usize>,
+    /// Key path such as `cases[1].layers[2].down_to`; empty for the whole document.
+    pub key: String,
+    /// Boxed to keep `Result<_, SidecarError>` small on the success path.
+    pub kind: Box<SidecarErrorKind>,
+}
+
+/// `, line 4, column 12, at liquid.density`, leaving out what is not known.
+struct Position<'a> {
+    line: Option<usize>,
+    column: Option<usize>,
+    key: &'a str,
+}
+
+impl<'a> Position<'a> {
+    fn of(line: &Option<usize>, column: &Option<usize>, key: &'a str) -> Position<'a> {
+        Position {
+            line: *line,
+            column: *column,
+            key,
+        }
+    }
+}
+
+impl fmt::Display for Position<'_> {
+    fn fmt(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        if let Some(line) = self.line {
+            write!(f, ", line {line}")?;
+        }
+        if let Some(column) = self.column {
+            write!(f, ", column {column}")?;
+        }
+        if !self.key.is_empty() {
+            write!(f, ", at {}", self.key)?;
+        }
+        Ok(())
+    }
+}
+
+/// What is wrong with a sidecar.
+#[derive(Debug, Error, PartialEq)]
+pub enum SidecarErrorKind {
+    /// Not JSON, or not the sidecar's shape: a syntax error, a wrong type, an unknown or
+    /// repeated key, a number out of range, an unknown keyword.
+    #[error("{0}")]
+    Json(String),
+    #[error(
+        "units is missing: add \"units\": \"mm\" (or \"m\", \"cm\", \"in\", \"ft\"); STL and OBJ files do not store their length unit, so wetload never guesses it"
+    )]
+    MissingUnits,
+    #[error(
+        "gravity must be a number > 0 m/s², got {0}; leave it out for standard gravity 9.80665"
+    )]
+    Gravity(f64),
+    #[error(
+        "no liquid: add \"liquid\": {{\"level\": <elevation in m>, \"density\": <kg/m³>}}, or named \"liquids\""
+    )]
+    NoLiquid,
+    #[error(
+        "\"liquid\" and \"liquids\" are both given: use \"liquid\" for one liquid or \"liquids\" for several, not both"
+    )]
+    LiquidAndLiquids,
+    #[error("{what} is empty: {hint}")]
+    Empty {
+        what: &'static str,
+        hint: &'static str,
+    },
+    #[error("{what} is missing: {hint}")]
+    Missing { what: &'static str, hint: String },
+    #[error(
+        "{keys} are given together, which is ambiguous: give only one of \"density\", \"layers\" and \"preset\""
+    )]
+    Ambiguous { keys: String },
+    #[error("unknown liquid \"{name}\": the sidecar's liquids are {known}")]
+    UnknownLiquid { name: String, known: String },
+    #[error("unknown preset \"{name}\": the presets are {known} (see config/liquids.json)")]
+    UnknownPreset { name: String, known: String },
+    /// A liquid the core refuses (density ≤ 0, layers out of order …).
+    #[error("{0}")]
+    Liquid(LiquidError),
+    #[error(
+        "case \"{case}\" leaves liquid \"{liquid}\" without a {missing}: add it to the liquid or to the case"
+    )]
+    Incomplete {
+        case: String,
+        liquid: String,
+        missing: &'static str,
+    },
+    #[error(
+        "\"{key}\" on a case is ambiguous with several liquids ({liquids}): set it per liquid, e.g. \"liquids\": {{\"{first}\": {{\"{key}\": ...}}}}"
+    )]
+    CaseKeyWithSeveralLiquids {
+        key: &'static str,
+        liquids: String,
+        first: String,
+    },
+    #[error(
+        "a case sets its liquid both with case-level keys and under \"liquids\": use one of the two"
+    )]
+    CaseKeysAndLiquids,
+    #[error("case {index} has no name: add \"name\": \"...\"")]
+    CaseWithoutName { index: usize },
+    #[error(
+        "case name \"{name}\" cannot be used: a name must be non-empty and contain no '/', '\\' or control characters (it becomes part of file names)"
+    )]
+    BadCaseName { name: String },
+    #[error("case name \"{name}\" is already used by case {first}: names must be unique")]
+    DuplicateCase { name: String, first: usize },
+    #[error("direction {0:?} has no length: give a non-zero vector along the axis")]
+    ZeroDirection([f64; 3]),
+    #[error("the sweep has several liquids to choose from ({0}): add \"liquid\": \"<name>\"")]
+    SweepLiquid(String),
+    #[error("step must be a number > 0 m, got {0}")]
+    SweepStep(f64),
+    #[error("to ({to}) is below from ({from}): the sweep runs upward, so swap them")]
+    SweepOrder { from: f64, to: f64 },
+    #[error(
+        "a sweep from {from} to {to} in steps of {step} would take more than {MAX_SWEEP_STEPS} steps: use a larger step"
+    )]
+    SweepTooLong { from: f64, to: f64, step: f64 },
+    #[error("resisting load \"{name}\" must be a number ≥ 0 N, got {value}")]
+    ResistingLoad { name: String, value: f64 },
+    #[error("required_factor must be a number > 0, got {0}")]
+    RequiredFactor(f64),
+}
+
+/// Reads and validates the sidecar `text` of the file `path`.
+///
+/// `path` is used in messages only. A leading byte-order mark is ignored (some Windows
+/// editors write one). Lengths stay in metres in mesh axes; the unit of `units` applies
+/// to the mesh coordinates only.
+pub fn parse_sidecar(path: &Path, text: &str) -> Result<Sidecar, SidecarError> {
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let raw = raw::read(text).map_err(|e| {
+        // serde_json counts columns from 1 but says 0 before the first character of a line.
+        let (line, column) = match e.error.line() {
+            0 => (None, None),
+            line => (Some(line), Some(e.error.column().max(1))),
+        };
+        SidecarError {
+            path: path.to_owned(),
+            line,
+            column,
+            key: e.key,
+            kind: Box::new(SidecarErrorKind::Json(json_message(&e.error))),
+        }
+    })?;
+    validate(raw).map_err(|problem| {
+        let (line, column) = raw::locate(text, &problem.key);
+        SidecarError {
+            path: path.to_owned(),
+            line: Some(line),
+            column: Some(column),
+            key: problem.key.to_string(),
+            kind: Box::new(problem.kind),
+        }
+    })
+}
+
+/// serde_json's message without its trailing position (reported separately). serde quotes
+/// key names in backticks, which become the JSON quotes the user typed; in "invalid type"
+/// messages the backticks surround a number or boolean, which is clearer bare.
+fn json_message(error: &serde_json::Error) -> String {
+    let full = error.to_string();
+    let position = format!(" at line {} column {}", error.line(), error.column());
+    let message = full.strip_suffix(&position).unwrap_or(&full);
+    if message.starts_with("invalid ") {
+        message.replace('`', "")
+    } else {
+        message.replace('`', "\"")
+    }
+}
+
+/// A rule broken at a key path, before the file name and line are attached.
+struct Problem {
+    key: KeyPath,
+    kind: SidecarErrorKind,
+}
+
+fn problem(key: KeyPath, kind: SidecarErrorKind) -> Problem {
+    Problem { key, kind }
+}
+
+/// `"a", "b"`.
+fn quoted_list<'a>(names: impl Iterator<Item = &'a str>) -> String {
+    names
+        .map(|n| format!("\"{n}\""))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The keys of a liquid as written, wherever they are written (a liquid or a case).
+#[derive(Clone, Copy)]
+struct Spec<'a> {
+    level: Option<f64>,
+    density: Option<f64>,
+    layers: Option<&'a [RawLayer]>,
+    surface_pressure: Option<f64>,
+    preset: Option<&'a str>,
+}
+
+impl<'a> Spec<'a> {
+    fn of_liquid(l: &'a RawLiquid) -> Spec<'a> {
+        Spec {
+            level: l.level,
+            density: l.density,
+            layers: l.layers.as_deref(),
+            surface_pressure: l.surface_pressure,
+            preset: l.preset.as_deref(),
+        }
+    }
+
+    fn of_case(c: &'a RawCase) -> Spec<'a> {
+        Spec {
+            level: c.level,
+            density: c.density,
+            layers: c.layers.as_deref(),
+            surface_pressure: c.surface_pressure,
+            preset: c.preset.as_deref(),
+        }
+    }
+
+    /// The first key that is set, in the order of the table in CONTRACT.md.
+    fn first_key(&self) -> Option<&'static str> {
+        [
+            ("level", self.level.is_some()),
+            ("density", self.density.is_some()),
+            ("layers", self.layers.is_some()),
+            ("surface_pressure", self.surface_pressure.is_some()),
+            ("preset", self.preset.is_some()),
+        ]
+        .into_iter()
+        .find_map(|(key, set)| set.then_some(key))
+    }
+}
+
+/// What one spec contributes to a liquid; `None` = inherited.
+#[derive(Clone, Default)]
+struct Partial {
+    level: Option<f64>,
+    surface_pressure: Option<f64>,
+    layers: Option<Vec<Layer>>,
+}
+
+/// Where a spec's layers came from, to name the key of a bad density.
+#[derive(Clone, Copy)]
+enum LayersFrom {
+    Density,
+    Layers,
+    Preset,
+}
+
+/// Checks one spec as written at `key` and returns what it contributes.
+fn partial(spec: Spec, key: &KeyPath, g: f64) -> Result<Partial, Problem> {
+    let given: Vec<&str> = [
+        ("density", spec.density.is_some()),
+        ("layers", spec.layers.is_some()),
+        ("preset", spec.preset.is_some()),
+    ]
+    .into_iter()
+    .filter_map(|(k, set)| set.then_some(k))
+    .collect();
+    if given.len() > 1 {
+        return Err(problem(
+            key.key(given[1]),
+            SidecarErrorKind::Ambiguous {
+                keys: quoted_list(given.into_iter()).replace(", ", " and "),
+            },
+        ));
+    }
+    let layers = if let Some(density) = spec.density {
+        Some((vec![uniform(density)], LayersFrom::Density))
+    } else if let Some(layers) = spec.layers {
+        let layers = layers
+            .iter()
+            .map(|l| Layer {
+                density_kg_m3: l.density,
+                down_to_m: l.down_to,
+            })
+            .collect();
+        Some((layers, LayersFrom::Layers))
+    } else if let Some(name) = spec.preset {
+        let preset = water::find_preset(name).ok_or_else(|| {
+            problem(
+                key.key("preset"),
+                SidecarErrorKind::UnknownPreset {
+                    name: name.to_owned(),
+                    known: quoted_list(liquid_presets().iter().map(|p| p.name.as_str())),
+                },
+            )
+        })?;
+        Some((vec![uniform(preset.density_kg_m3)], LayersFrom::Preset))
+    } else {
+        None
+    };
+    if let Some((layers, from)) = &layers {
+        // The core's rules for layers do not depend on the level, so a spec that leaves
+        // the level to be inherited is checked here, where it is written, at level 0.
+        let probe = Liquid {
+            level_m: spec.level.unwrap_or(0.0),
+            surface_pressure_pa: spec.surface_pressure.unwrap_or(0.0),
+            layers: layers.clone(),
+        };
+        Profile::new(&probe, g).map_err(|e| liquid_problem(key, *from, e))?;
+    }
+    Ok(Partial {
+        level: spec.level,
+        surface_pressure: spec.surface_pressure,
+        layers: layers.map(|(layers, _)| layers),
+    })
+}
+
+fn uniform(density_kg_m3: f64) -> Layer {
+    Layer {
+        density_kg_m3,
+        down_to_m: None,
+    }
+}
+
+/// The core's complaint about the liquid written at `key`, at the key it is about.
+fn liquid_problem(key: &KeyPath, from: LayersFrom, e: LiquidError) -> Problem {
+    let at = match &e {
+        LiquidError::Level(_) => key.key("level"),
+        LiquidError::SurfacePressure(_) => key.key("surface_pressure"),
+        LiquidError::Gravity(_) => KeyPath::root().key("gravity"),
+        LiquidError::NoLayers => key.key("layers"),
+        LiquidError::Density { index, .. } => match from {
+            LayersFrom::Density => key.key("density"),
+            LayersFrom::Preset => key.key("preset"),
+            LayersFrom::Layers => key.key("layers").index(*index).key("density"),
+        },
+        LiquidError::MissingDownTo { index } => key.key("layers").index(*index),
+        LiquidError::DownTo { index, .. } | LiquidError::LayersOutOfOrder { index, .. } => {
+            key.key("layers").index(*index).key("down_to")
+        }
+    };
+    problem(at, SidecarErrorKind::Liquid(e))
+}
+
+/// The liquids of one case: for each base liquid, its override (if any) over the base.
+struct Resolver<'a> {
+    names: &'a [String],
+    base_keys: &'a [KeyPath],
+    bases: &'a [Partial],
+    g: f64,
+}
+
+impl Resolver<'_> {
+    /// The index of the liquid called `name`, referred to at `key`.
+    fn index(&self, name: &str, key: KeyPath) -> Result<usize, Problem> {
+        self.names.iter().position(|n| n == name).ok_or_else(|| {
+            problem(
+                key,
+                SidecarErrorKind::UnknownLiquid {
+                    name: name.to_owned(),
+                    known: quoted_list(self.names.iter().map(String::as_str)),
+                },
+            )
+        })
+    }
+
+    /// Every liquid of the case named `case` at `case_key` (`None`: the default case).
+    fn resolve(
+        &self,
+        overrides: &[Partial],
+        case: Option<(&str, &KeyPath)>,
+    ) -> Result<Vec<Liquid>, Problem> {
+        let mut liquids = Vec::with_capacity(self.bases.len());
+        for (i, base) in self.bases.iter().enumerate() {
+            let top = &overrides[i];
+            let missing = |what: &'static str, hint: &str| match case {
+                Some((name, case_key)) => problem(
+                    case_key.clone(),
+                    SidecarErrorKind::Incomplete {
+                        case: name.to_owned(),
+                        liquid: self.names[i].clone(),
+                        missing: what,
+                    },
+                ),
+                None => problem(
+                    self.base_keys[i].key(what),
+                    SidecarErrorKind::Missing {
+                        what,
+                        hint: hint.to_owned(),
+                    },
+                ),
+            };
+            let level_m = top.level.or(base.level).ok_or_else(|| {
+                missing(
+                    "level",
+                    "add \"level\": <elevation of the free surface in m>",
+                )
+            })?;
+            let layers = top.layers.as_ref().or(base.layers.as_ref()).ok_or_else(|| {
+                missing(
+                    "density",
+                    "add \"density\": <kg/m³>, \"layers\": [...] or \"preset\": \"fresh_water_20c\"",
+                )
+            })?;
+            let liquid = Liquid {
+                level_m,
+                surface_pressure_pa: top
+                    .surface_pressure
+                    .or(base.surface_pressure)
+                    .unwrap_or(0.0),
+                layers: layers.clone(),
+            };
+            // Every piece was checked where it was written; this keeps the promise that a
+            // resolved liquid builds a Profile even if the core's rules come to involve the
+            // level.
+            Profile::new(&liquid, self.g).map_err(|e| {
+                let key = case.map_or_else(|| self.base_keys[i].clone(), |(_, k)| k.clone());
+                problem(key, SidecarErrorKind::Liquid(e))
+            })?;
+            liquids.push(liquid);
+        }
+        Ok(liquids)
+    }
+}
+
+/// The one conversion from the raw mirror to a [`Sidecar`]: all validation lives here.
+fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
+    use SidecarErrorKind as K;
+    let root = KeyPath::root();
+
+    let units = raw
+        .units
+        .ok_or_else(|| problem(root.key("units"), K::MissingUnits))?;
+    let up = raw.up.unwrap_or(UpAxis::PosZ);
+    let g = raw.gravity.unwrap_or(DEFAULT_GRAVITY_M_S2);
+    if !(g.is_finite() && g > 0.0) {
+        return Err(problem(root.key("gravity"), K::Gravity(g)));
+    }
+
+    let written: Vec<(String, KeyPath, &RawLiquid)> = match (&raw.liquid, &raw.liquids) {
+        (Some(_), Some(_)) => return Err(problem(root.key("liquids"), K::LiquidAndLiquids)),
+        (None, None) => return Err(problem(root.key("liquid"), K::NoLiquid)),
+        (Some(liquid), None) => {
+            vec![(SHORTHAND_LIQUID_NAME.to_owned(), root.key("liquid"), liquid)]
+        }
+        (None, Some(named)) if named.0.is_empty() => {
+            return Err(problem(
+                root.key("liquids"),
+                K::Empty {
+                    what: "liquids",
+                    hint: "name at least one liquid, e.g. \"liquids\": {\"headwater\": {\"level\": 8.0, \"density\": 1000}}",
+                },
+            ));
+        }
+        (None, Some(named)) => named
+            .0
+            .iter()
+            .map(|(name, l)| (name.clone(), root.key("liquids").key(name), l))
+            .collect(),
+    };
+    let names: Vec<String> = written.iter().map(|(n, _, _)| n.clone()).collect();
+    let base_keys: Vec<KeyPath> = written.iter().map(|(_, k, _)| k.clone()).collect();
+    let bases = written
+        .iter()
+        .map(|(_, key, l)| partial(Spec::of_liquid(l), key, g))
+        .collect::<Result<Vec<_>, _>>()?;
+    let resolver = Resolver {
+        names: &names,
+        base_keys: &base_keys,
+        bases: &bases,
+        g,
+    };
+    let liquids = written
+        .iter()
+        .map(|(name, _, l)| NamedLiquid {
+            name: name.clone(),
+            preset: l.preset.clone(),
+        })
+        .collect();
+
+    let mut parts = PartRules::default();
+    for (name, part) in raw.parts.iter().flat_map(|p| &p.0) {
+        let key = root.key("parts").key(name);
+        let liquid = match &part.liquid {
+            None => LiquidChoice::Default,
+            Some(None) => LiquidChoice::Dry,
+            Some(Some(l)) => LiquidChoice::Named(resolver.index(l, key.key("liquid"))?),
+        };
+        let rule = PartRule {
+            liquid,
+            wet_side: part.wet_side,
+        };
+        if name == "*" {
+            parts.default = rule;
+        } else {
+            parts.named.push((name.clone(), rule));
+        }
+    }
+
+    let mut axes = Vec::new();
+    for (name, axis) in raw.axes.iter().flat_map(|a| &a.0) {
+        let direction = unit_vector(axis.direction.0).ok_or_else(|| {
+            problem(
+                root.key("axes").key(name).key("direction"),
+                K::ZeroDirection(axis.direction.0),
+            )
+        })?;
+        axes.push(NamedAxis {
+            name: name.clone(),
+            point_m: axis.point.0,
+            direction,
+        });
+    }
+
+    let no_overrides = vec![Partial::default(); names.len()];
+    let cases = match &raw.cases {
+        None => vec![Case {
+            name: DEFAULT_CASE_NAME.to_owned(),
+            liquids: resolver.resolve(&no_overrides, None)?,
+        }],
+        Some(list) if list.is_empty() => {
+            return Err(problem(
+                root.key("cases"),
+                K::Empty {
+                    what: "cases",
+                    hint: "remove \"cases\" for one default case, or add {\"name\": \"...\", ...}",
+                },
+            ));
+        }
+        Some(list) => {
+            let mut cases: Vec<Case> = Vec::with_capacity(list.len());
+            for (index, c) in list.iter().enumerate() {
+                let key = root.key("cases").index(index);
+                let name = c
+                    .name
+                    .as_deref()
+                    .ok_or_else(|| problem(key.clone(), K::CaseWithoutName { index }))?;
+                if name.is_empty()
+                    || name
+                        .chars()
+                        .any(|ch| ch == '/' || ch == '\\' || ch.is_control())
+                {
+                    return Err(problem(
+                        key.key("name"),
+                        K::BadCaseName {
+                            name: name.to_owned(),
+                        },
+                    ));
+                }
+                if let Some(first) = cases.iter().position(|seen| seen.name == name) {
+                    return Err(problem(
+                        key.key("name"),
+                        K::DuplicateCase {
+                            name: name.to_owned(),
+                            first,
+                        },
+                    ));
+                }
+                let mut overrides = no_overrides.clone();
+                let spec = Spec::of_case(c);
+                if let Some(first_key) = spec.first_key() {
+                    if c.liquids.is_some() {
+                        return Err(problem(key.key("liquids"), K::CaseKeysAndLiquids));
+                    }
+                    if names.len() > 1 {
+                        return Err(problem(
+                            key.key(first_key),
+                            K::CaseKeyWithSeveralLiquids {
+                                key: first_key,
+                                liquids: quoted_list(names.iter().map(String::as_str)),
+                                first: names[0].clone(),
+                            },
+                        ));
+                    }
+                    overrides[0] = partial(spec, &key, g)?;
+                }
+                for (liquid, l) in c.liquids.iter().flat_map(|n| &n.0) {
+                    let at = key.key("liquids").key(liquid);
+                    let i = resolver.index(liquid, at.clone())?;
+                    overrides[i] = partial(Spec::of_liquid(l), &at, g)?;
+                }
+                let liquids = resolver.resolve(&overrides, Some((name, &key)))?;
+                cases.push(Case {
+                    name: name.to_owned(),
+                    liquids,
+                });
+            }
+            cases
+        }
+    };
+
+    let sweep = match &raw.sweep {
+        None => None,
+        Some(s) => {
+            let key = root.key("sweep");
+            let liquid = match &s.liquid {
+                Some(name) => resolver.index(name, key.key("liquid"))?,
+                None if names.len() == 1 => 0,
+                None => {
+                    return Err(problem(
+                        key.key("liquid"),
+                        K::SweepLiquid(quoted_list(names.iter().map(String::as_str))),
+                    ));
+                }
+            };
+            if !(s.step.is_finite() && s.step > 0.0) {
+                return Err(problem(key.key("step"), K::SweepStep(s.step)));
+            }
+            if s.to < s.from {
+                return Err(problem(
+                    key.key("to"),
+                    K::SweepOrder {
+                        from: s.from,
+                        to: s.to,
+                    },
+                ));
+            }
+            if sweep_steps(s.from, s.to, s.step).is_none() {
+                return Err(problem(
+                    key.key("step"),
+                    K::SweepTooLong {
+                        from: s.from,
+                        to: s.to,
+                        step: s.step,
+                    },
+                ));
+            }
+            Some(Sweep {
+                liquid,
+                from_m: s.from,
+                to_m: s.to,
+                step_m: s.step,
+            })
+        }
+    };
+
+    let flotation = match &raw.flotation {
+        None => None,
+        Some(f) => {
+            let key = root.key("flotation");
+            if f.resisting.0.is_empty() {
+                return Err(problem(
+                    key.key("resisting"),
+                    K::Empty {
+                        what: "resisting",
+                        hint: "name the downward loads that hold the structure down, in N, e.g. {\"self_weight\": 1.2e6}",
+                    },
+                ));
+            }
+            for (name, value) in &f.resisting.0 {
+                if !(value.is_finite() && *value >= 0.0) {
+                    return Err(problem(
+                        key.key("resisting").key(name),
+                        K::ResistingLoad {
+                            name: name.clone(),
+                            value: *value,
+                        },
+                    ));
+                }
+            }
+            if !(f.required_factor.is_finite() && f.required_factor > 0.0) {
+                return Err(problem(
+                    key.key("required_factor"),
+                    K::RequiredFactor(f.required_factor),
+                ));
+            }
+            Some(Flotation {
+                resisting: f.resisting.0.clone(),
+                required_factor: f.required_factor,
+            })
+        }
+    };
+
+    Ok(Sidecar {
+        units,
+        up,
+        gravity_m_s2: g,
+        wet_side: raw.wet_side,
+        liquids,
+        parts,
+        moment_about_m: raw.moment_about.map_or([0.0; 3], |t| t.0),
+        axes,
+        cases,
+        sweep,
+        flotation,
+    })
+}
+
+/// `v` scaled to length 1, or `None` when it has no length. Divides by the largest
+/// component first, so neither huge nor tiny components overflow or underflow.
+fn unit_vector(v: [f64; 3]) -> Option<[f64; 3]> {
+    let largest = v.iter().fold(0.0f64, |m, c| m.max(c.abs()));
+    if !(largest > 0.0 && largest.is_finite()) {
+        return None;
+    }
+    let s = v.map(|c| c / largest);
+    let norm = (s[0] * s[0] + s[1] * s[1] + s[2] * s[2]).sqrt();
+    Some(s.map(|c| c / norm))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse(text: &str) -> Result<Sidecar, SidecarError> {
+        parse_sidecar(Path::new("gate.json"), text)
+    }
+
+    fn ok(text: &str) -> Sidecar {
+        parse(text).unwrap_or_else(|e| panic!("refused: {e}\n{text}"))
+    }
+
+    fn err(text: &str) -> SidecarError {
+        match parse(text) {
+            Ok(s) => panic!("accepted: {s:?}\n{text}"),
+            Err(e) => e,
+        }
+    }
+
+    /// A valid sidecar with `extra` members added at the top level.
+    fn with(extra: &str) -> String {
+        format!(r#"{{"units": "m", "liquid": {{"level": 5.0, "density": 1000}}, {extra}}}"#)
+    }
+
+    /// A sidecar with `liquid` replaced by `liquid_json`.
+    fn liquid(liquid_json: &str) -> String {
+        format!(r#"{{"units": "m", "liquid": {liquid_json}}}"#)
+    }
+
+    const TWO_SIDED: &str = r#"{
+  "units": "mm",
+  "liquids": {
+    "headwater": {"level": 8.0, "density": 1000},
+    "tailwater": {"level": 2.5, "preset": "fresh_water_15c"}
+  },
+  "parts": {
+    "upstream_skin": {"liquid": "headwater", "wet_side": "front"},
+    "downstream_face": {"liquid": "tailwater", "wet_side": "back"},
+    "deck": {"liquid": null},
+    "*": {"liquid": "headwater"}
+  },
+  "cases": [
+    {"name": "normal"},
+    {"name": "flood", "liquids": {"headwater": {"level": 9.0}, "tailwater": {"level": 4.0, "surface_pressure": 100}}}
+  ]
+}"#;
+
+    #[test]
+    fn minimal_sidecar_gets_every_default() {
+        let s = ok(r#"{"units": "mm", "liquid": {"level": 5.0, "density": 1000}}"#);
+        assert_eq!(s.units, LengthUnit::Mm);
+        assert_eq!(s.up, UpAxis::PosZ);
+        assert_eq!(s.gravity_m_s2, 9.80665);
+        assert_eq!(s.wet_side, None);
+        assert_eq!(
+            s.liquids,
+            [NamedLiquid {
+                name: "liquid".into(),
+                preset: None
+            }]
+        );
+        assert_eq!(s.parts, PartRules::default());
+        assert_eq!(s.parts.default.liquid, LiquidChoice::Default);
+        assert_eq!(s.moment_about_m, [0.0; 3]);
+        assert!(s.axes.is_empty());
+        assert_eq!(
+            s.cases,
+            [Case {
+                name: "default".into(),
+                liquids: vec![Liquid::uniform(5.0, 1000.0)],
+            }]
+        );
+        assert_eq!(s.cases[0].liquids[0].surface_pressure_pa, 0.0);
+        assert_eq!(s.sweep, None);
+        assert_eq!(s.flotation, None);
+    }
+
+    #[test]
+    fn defaults_json_documents_the_defaults_in_use() {
+        let doc: serde_json::Value =
+            serde_json::from_str(include_str!("../../config/defaults.json"))
+                .expect("config/defaults.json parses");
+        let d = &doc["defaults"];
+        let s = ok(r#"{"units": "m", "liquid": {"level": 1, "density": 1000}}"#);
+        assert!(d["units"]["default"].is_null());
+        assert_eq!(d["up"]["default"], s.up.as_str());
+        assert_eq!(d["gravity"]["default"], s.gravity_m_s2);
+        assert_eq!(d["wet_side"]["default"], WetSide::Outside.as_str());
+        assert_eq!(
+            d["liquid.surface_pressure"]["default"].as_f64(),
+            Some(s.cases[0].liquids[0].surface_pressure_pa)
+        );
+        let about: Vec<f64> = serde_json::from_value(d["moment_about"]["default"].clone())
+            .expect("moment_about default is three numbers");
+        assert_eq!(about, s.moment_about_m);
+        assert_eq!(d["cases"]["default"][0]["name"], s.cases[0].name.as_str());
+        assert_eq!(s.cases.len(), 1);
+    }
+
+    #[test]
+    fn units_are_exact_by_definition() {
+        // 1 in = 0.0254 m and 1 ft = 0.3048 m exactly (international yard and pound, 1959).
+        for (keyword, metres) in [
+            ("m", 1.0),
+            ("cm", 0.01),
+            ("mm", 0.001),
+            ("in", 0.0254),
+            ("ft", 0.3048),
+        ] {
+            let s = ok(&format!(
+                r#"{{"units": "{keyword}", "liquid": {{"level": 1, "density": 1000}}}}"#
+            ));
+            assert_eq!(s.units.metres(), metres, "{keyword}");
+            assert_eq!(s.units.as_str(), keyword);
+        }
+    }
+
+    #[test]
+    fn missing_units_says_how_to_add_them() {
+        let e = err(r#"{"liquid": {"level": 1, "density": 1000}}"#);
+        assert_eq!(*e.kind, SidecarErrorKind::MissingUnits);
+        assert_eq!(e.key, "units");
+        let message = e.to_string();
+        assert!(
+            message.starts_with("sidecar gate.json, line 1"),
+            "{message}"
+        );
+        assert!(message.contains(r#"add "units": "mm""#), "{message}");
+    }
+
+    #[test]
+    fn unknown_keywords_list_the_accepted_ones() {
+        let e = err(r#"{"units": "meters", "liquid": {"level": 1, "density": 1000}}"#);
+        assert_eq!(e.key, "units");
+        assert_eq!(
+            e.kind.to_string(),
+            r#"unknown unit "meters", expected one of "m", "cm", "mm", "in", "ft""#
+        );
+        let e = err(&with(r#""up": "z""#));
+        assert_eq!(e.key, "up");
+        assert!(
+            e.to_string()
+                .contains(r#""+x", "-x", "+y", "-y", "+z", "-z""#),
+            "{e}"
+        );
+        let e = err(&with(r#""wet_side": "wet""#));
+        assert_eq!(e.key, "wet_side");
+        assert!(
+            e.to_string()
+                .contains(r#""outside", "inside", "front", "back""#),
+            "{e}"
+        );
+        let e = err(&with(r#""parts": {"p": {"wet_side": "Front"}}"#));
+        assert_eq!(e.key, "parts.p.wet_side");
+    }
+
+    #[test]
+    fn every_up_axis_and_wet_side_keyword_is_read() {
+        // The keyword lists of CONTRACT.md, "Sidecar keys".
+        for keyword in ["+x", "-x", "+y", "-y", "+z", "-z"] {
+            let s = ok(&with(&format!(r#""up": "{keyword}""#)));
+            assert_eq!(s.up.as_str(), keyword);
+        }
+        for keyword in ["outside", "inside", "front", "back"] {
+            let s = ok(&with(&format!(r#""wet_side": "{keyword}""#)));
+            assert_eq!(s.wet_side.map(WetSide::as_str), Some(keyword));
+        }
+    }
+
+    #[test]
+    fn gravity_is_used_and_must_be_positive() {
+        let s = ok(&with(r#""gravity": 9.81"#));
+        assert_eq!(s.gravity_m_s2, 9.81);
+        for bad in ["0", "-9.81", "0.0"] {
+            let e = err(&with(&format!(r#""gravity": {bad}"#)));
+            assert_eq!(e.key, "gravity");
+            assert!(matches!(*e.kind, SidecarErrorKind::Gravity(_)), "{e}");
+        }
+    }
+
+    #[test]
+    fn wrong_types_are_refused_at_their_key() {
+        // (member(s) added to or replacing a valid sidecar, key path of the error)
+        let cases: &[(&str, &str)] = &[
+            (
+                r#"{"units": 3, "liquid": {"level": 1, "density": 1}}"#,
+                "units",
+            ),
+            (
+                r#"{"units": null, "liquid": {"level": 1, "density": 1}}"#,
+                "units",
+            ),
+            (&with(r#""up": true"#), "up"),
+            (&with(r#""gravity": "9.8""#), "gravity"),
+            (&with(r#""gravity": null"#), "gravity"),
+            (&with(r#""wet_side": 1"#), "wet_side"),
+            (&liquid("[10, 1000]"), "liquid"),
+            (&liquid("null"), "liquid"),
+            (&liquid(r#"{"level": "1", "density": 1}"#), "liquid.level"),
+            (
+                &liquid(r#"{"level": 1, "density": null}"#),
+                "liquid.density",
+            ),
+            (
+                &liquid(r#"{"level": 1, "density": [1000]}"#),
+                "liquid.density",
+            ),
+            (&liquid(r#"{"level": 1, "layers": {}}"#), "liquid.layers"),
+            (
+                &liquid(r#"{"level": 1, "layers": [5]}"#),
+                "liquid.layers[0]",
+            ),
+            (
+                &liquid(r#"{"level": 1, "layers": [{"density": "x"}]}"#),
+                "liquid.layers[0].density",
+            ),
+            (
+                &liquid(
+                    r#"{"level": 1, "layers": [{"density": 1, "down_to": []}, {"density": 2}]}"#,
+                ),
+                "liquid.layers[0].down_to",
+            ),
+            (
+                &liquid(r#"{"level": 1, "density": 1, "surface_pressure": false}"#),
+                "liquid.surface_pressure",
+            ),
+            (&liquid(r#"{"level": 1, "preset": 4}"#), "liquid.preset"),
+            (r#"{"units": "m", "liquids": []}"#, "liquids"),
+            (r#"{"units": "m", "liquids": {"a": 3}}"#, "liquids.a"),
+            (
+                r#"{"units": "m", "liquids": {"a": {"level": {}}}}"#,
+                "liquids.a.level",
+            ),
+            (&with(r#""parts": []"#), "parts"),
+            (&with(r#""parts": {"p": "liquid"}"#), "parts.p"),
+            (&with(r#""parts": {"p": {"liquid": 3}}"#), "parts.p.liquid"),
+            (
+                &with(r#""parts": {"p": {"wet_side": null}}"#),
+                "parts.p.wet_side",
+            ),
+            (&with(r#""moment_about": "0""#), "moment_about"),
+            (&with(r#""moment_about": [1, 2]"#), "moment_about"),
+            (&with(r#""moment_about": [1, 2, 3, 4]"#), "moment_about"),
+            (&with(r#""moment_about": [1, "2", 3]"#), "moment_about[1]"),
+            (&with(r#""axes": []"#), "axes"),
+            (&with(r#""axes": {"a": [0, 0, 0]}"#), "axes.a"),
+            (
+                &with(r#""axes": {"a": {"point": [0, 0], "direction": [1, 0, 0]}}"#),
+                "axes.a.point",
+            ),
+            (
+                &with(r#""axes": {"a": {"point": [0, 0, 0], "direction": "x"}}"#),
+                "axes.a.direction",
+            ),
+            (&with(r#""cases": {}"#), "cases"),
+            (&with(r#""cases": ["flood"]"#), "cases[0]"),
+            (&with(r#""cases": [{"name": 1}]"#), "cases[0].name"),
+            (
+                &with(r#""cases": [{"name": "a", "level": "9"}]"#),
+                "cases[0].level",
+            ),
+            (
+                &with(r#""cases": [{"name": "a", "liquids": []}]"#),
+                "cases[0].liquids",
+            ),
+            (
+                &with(r#""cases": [{"name": "a", "liquids": {"liquid": {"density": true}}}]"#),
+                "cases[0].liquids.liquid.density",
+            ),
+            (
+                &with(r#""cases": [{"name": "a", "density": "1"}]"#),
+                "cases[0].density",
+            ),
+            (
+                &with(r#""cases": [{"name": "a", "layers": 1}]"#),
+                "cases[0].layers",
+            ),
+            (
+                &with(r#""cases": [{"name": "a", "surface_pressure": [0]}]"#),
+                "cases[0].surface_pressure",
+            ),
+            (
+                &with(r#""cases": [{"name": "a", "preset": {}}]"#),
+                "cases[0].preset",
+            ),
+            (&with(r#""sweep": 1"#), "sweep"),
+            (
+                &with(r#""sweep": {"from": 2, "to": "8", "step": 1}"#),
+                "sweep.to",
+            ),
+            (
+                &with(r#""sweep": {"from": "2", "to": 8, "step": 1}"#),
+                "sweep.from",
+            ),
+            (
+                &with(r#""sweep": {"liquid": 1, "from": 2, "to": 8, "step": 1}"#),
+                "sweep.liquid",
+            ),
+            (
+                &with(r#""sweep": {"from": 2, "to": 8, "step": null}"#),
+                "sweep.step",
+            ),
+            (&with(r#""flotation": []"#), "flotation"),
+            (
+                &with(r#""flotation": {"resisting": [1], "required_factor": 1.3}"#),
+                "flotation.resisting",
+            ),
+            (
+                &with(r#""flotation": {"resisting": {"w": "1"}, "required_factor": 1.3}"#),
+                "flotation.resisting.w",
+            ),
+            (
+                &with(r#""flotation": {"resisting": {"w": 1}, "required_factor": null}"#),
+                "flotation.required_factor",
+            ),
+        ];
+        for (text, key) in cases {
+            let e = err(text);
+            assert_eq!(e.key, *key, "{e}\n{text}");
+            let SidecarErrorKind::Json(message) = &*e.kind else {
+                panic!("not a type error: {e}");
+            };
+            assert!(
+                message.starts_with("invalid type") || message.starts_with("invalid length"),
+                "{e}"
+            );
+            assert_eq!(e.line, Some(1), "{e}");
+        }
+    }
+
+    #[test]
+    fn unknown_top_level_key_names_it_and_its_line() {
+        let e = err(
+            "{\n  \"units\": \"m\",\n  \"liquid\": {\"level\": 1, \"density\": 1},\n  \"unit\": \"mm\"\n}",
+        );
+        assert_eq!(e.key, "unit");
+        assert_eq!(e.line, Some(4));
+        let message = e.to_string();
+        assert!(
+            message.contains(r#"unknown field "unit", expected one of "units", "up", "gravity""#),
+            "{message}"
+        );
+        assert!(message.contains(r#""flotation""#), "{message}");
+    }
+
+    #[test]
+    fn unknown_nested_key_names_it_its_line_and_the_expected_keys() {
+        let text = "{\n  \"units\": \"mm\",\n  \"liquid\": {\n    \"denisty\": 1000,\n    \"level\": 2\n  }\n}";
+        let e = err(text);
+        assert_eq!(e.line, Some(4));
+        // The key spans columns 5 to 13 of line 4.
+        let column = e.column.expect("a column");
+        assert!((5..=13).contains(&column), "{e}");
+        assert_eq!(
+            e.to_string(),
+            format!(
+                "sidecar gate.json, line 4, column {column}, at liquid.denisty: unknown field \"denisty\", expected one of \"level\", \"density\", \"layers\", \"surface_pressure\", \"preset\""
+            )
+        );
+        for (text, key) in [
+            (
+                liquid(r#"{"level": 1, "layers": [{"density": 1, "downto": 0}]}"#),
+                "liquid.layers[0].downto",
+            ),
+            (
+                with(r#""cases": [{"name": "a", "lvl": 2}]"#),
+                "cases[0].lvl",
+            ),
+            (with(r#""parts": {"p": {"side": "front"}}"#), "parts.p.side"),
+            (
+                with(r#""axes": {"a": {"point": [0, 0, 0], "dir": [1, 0, 0]}}"#),
+                "axes.a.dir",
+            ),
+            (
+                with(r#""sweep": {"from": 1, "to": 2, "by": 1}"#),
+                "sweep.by",
+            ),
+            (
+                with(r#""flotation": {"resisting": {}, "factor": 1}"#),
+                "flotation.factor",
+            ),
+        ] {
+            let e = err(&text);
+            assert_eq!(e.key, key, "{e}");
+            assert!(e.to_string().contains("unknown field"), "{e}");
+            assert!(e.to_string().contains("expected"), "{e}");
+        }
+    }
+
+    #[test]
+    fn syntax_errors_give_the_line() {
+        let e = err("{\n  \"units\": \"m\"\n  \"liquid\": {}\n}");
+        assert_eq!(e.line, Some(3));
+        assert_eq!(e.key, "");
+        assert!(
+            e.to_string()
+                .starts_with("sidecar gate.json, line 3, column "),
+            "{e}"
+        );
+        let e = err("");
+        assert!(e.to_string().contains("EOF"), "{e}");
+        let e = err(&format!("{} {{}}", with(r#""up": "+z""#)));
+        assert!(e.to_string().contains("trailing characters"), "{e}");
+    }
+
+    #[test]
+    fn a_byte_order_mark_is_ignored() {
+        let s = ok(&format!("\u{feff}{}", with(r#""up": "-y""#)));
+        assert_eq!(s.up, UpAxis::NegY);
+    }
+
+    #[test]
+    fn duplicate_keys_are_refused() {
+        let e = err(r#"{"units": "m", "units": "mm", "liquid": {"level": 1, "density": 1}}"#);
+        assert!(e.to_string().contains(r#"duplicate field "units""#), "{e}");
+        let e = err(&liquid(r#"{"level": 1, "level": 2, "density": 1}"#));
+        assert_eq!(e.key, "liquid");
+        assert!(e.to_string().contains(r#"duplicate field "level""#), "{e}");
+        for (text, name) in [
+            (r#"{"units": "m", "liquids": {"a": {"level": 1, "density": 1}, "a": {"level": 1, "density": 1}}}"#.to_owned(), "a"),
+            (with(r#""parts": {"p": {}, "p": {}}"#), "p"),
+            (with(r#""axes": {"h": {"point": [0,0,0], "direction": [1,0,0]}, "h": {"point": [0,0,0], "direction": [1,0,0]}}"#), "h"),
+            (with(r#""flotation": {"resisting": {"w": 1, "w": 2}, "required_factor": 1}"#), "w"),
+            (with(r#""cases": [{"name": "c", "liquids": {"liquid": {"level": 1}, "liquid": {"level": 2}}}]"#), "liquid"),
+        ] {
+            let e = err(&text);
+            assert!(e.to_string().contains(&format!("duplicate key \"{name}\"")), "{e}");
+            assert_eq!(e.line, Some(1));
+        }
+    }
+
+    #[test]
+    fn numbers_out_of_range_are_refused() {
+        // JSON has no NaN or infinity; serde_json refuses a literal that overflows f64, so
+        // every number that reaches validation is finite.
+        for text in [
+            with(r#""gravity": 1e400"#),
+            liquid(r#"{"level": -1e999, "density": 1}"#),
+        ] {
+            let e = err(&text);
+            assert!(e.to_string().contains("number out of range"), "{e}");
+        }
+    }
+
+    #[test]
+    fn density_must_be_positive() {
+        for bad in ["0", "-1000", "-0.0"] {
+            let e = err(&liquid(&format!(r#"{{"level": 1, "density": {bad}}}"#)));
+            assert_eq!(e.key, "liquid.density");
+            assert!(
+                matches!(
+                    *e.kind,
+                    SidecarErrorKind::Liquid(LiquidError::Density { .. })
+                ),
+                "{e}"
+            );
+            assert!(
+                e.to_string()
+                    .contains("density must be a finite number > 0"),
+                "{e}"
+            );
+        }
+        let e = err(&liquid(
+            r#"{"level": 1, "layers": [{"density": 900, "down_to": 0}, {"density": 0}]}"#,
+        ));
+        assert_eq!(e.key, "liquid.layers[1].density");
+        let e = err(&with(r#""cases": [{"name": "c", "density": -1}]"#));
+        assert_eq!(e.key, "cases[0].density");
+        let e = err(&with(
+            r#""cases": [{"name": "c", "liquids": {"liquid": {"density": 0}}}]"#,
+        ));
+        assert_eq!(e.key, "cases[0].liquids.liquid.density");
+    }
+
+    #[test]
+    fn layers_out_of_order_name_the_key_and_line() {
+        let text = r#"{
+  "units": "m",
+  "liquid": {"level": 12.0, "density": 1000},
+  "cases": [
+    {"name": "low", "level": 3.0},
+    {"name": "oily", "layers": [
+      {"density": 880, "down_to": 11.0},
+      {"density": 950, "down_to": 9.0},
+      {"density": 1000, "down_to": 10.0},
+      {"density": 1200}
+    ]}
+  ]
+}"#;
+        let e = err(text);
+        assert_eq!(e.key, "cases[1].layers[2].down_to");
+        assert_eq!(e.line, Some(9));
+        assert!(matches!(
+            *e.kind,
+            SidecarErrorKind::Liquid(LiquidError::LayersOutOfOrder { index: 2, .. })
+        ));
+        assert!(e.to_string().contains("list layers top to bottom"), "{e}");
+
+        let e = err(&liquid(
+            r#"{"level": 1, "layers": [{"density": 900}, {"density": 1000}]}"#,
+        ));
+        assert_eq!(e.key, "liquid.layers[0]");
+        let e = err(&liquid(
+            r#"{"level": 1, "layers": [{"density": 900, "down_to": 1}, {"density": 1000, "down_to": 1}]}"#,
+        ));
+        assert_eq!(e.key, "liquid.layers[1].down_to");
+        let e = err(&liquid(r#"{"level": 1, "layers": []}"#));
+        assert_eq!(e.key, "liquid.layers");
+        assert_eq!(*e.kind, SidecarErrorKind::Liquid(LiquidError::NoLayers));
+    }
+
+    fn layer(density_kg_m3: f64, down_to_m: Option<f64>) -> Layer {
+        Layer {
+            density_kg_m3,
+            down_to_m,
+        }
+    }
+
+    #[test]
+    fn cases_override_the_base_liquid() {
+        let s = ok(r#"{
+  "units": "m",
+  "liquid": {"level": 12.0, "layers": [{"density": 880, "down_to": 11.0}, {"density": 1000}], "surface_pressure": 50},
+  "cases": [
+    {"name": "as_given"},
+    {"name": "high", "level": 14.0},
+    {"name": "flushed", "density": 1010},
+    {"name": "vented", "surface_pressure": 0},
+    {"name": "sea", "preset": "sea_water"}
+  ]
+}"#);
+        let stratified = vec![layer(880.0, Some(11.0)), layer(1000.0, None)];
+        let names: Vec<&str> = s.cases.iter().map(|c| c.name.as_str()).collect();
+        assert_eq!(names, ["as_given", "high", "flushed", "vented", "sea"]);
+        let l: Vec<&Liquid> = s.cases.iter().map(|c| &c.liquids[0]).collect();
+        assert_eq!(
+            *l[0],
+            Liquid {
+                level_m: 12.0,
+                surface_pressure_pa: 50.0,
+                layers: stratified.clone()
+            }
+        );
+        assert_eq!(
+            *l[1],
+            Liquid {
+                level_m: 14.0,
+                surface_pressure_pa: 50.0,
+                layers: stratified.clone()
+            }
+        );
+        // A case's density replaces the inherited layers.
+        assert_eq!(
+            *l[2],
+            Liquid {
+                level_m: 12.0,
+                surface_pressure_pa: 50.0,
+                layers: vec![layer(1010.0, None)]
+            }
+        );
+        assert_eq!(l[3].surface_pressure_pa, 0.0);
+        assert_eq!(l[3].layers, stratified);
+        assert_eq!(l[4].layers, [layer(1025.0, None)]);
+
+        // And a case's layers replace an inherited density.
+        let s = ok(&with(
+            r#""cases": [{"name": "oil", "layers": [{"density": 880, "down_to": 4.0}, {"density": 1000}]}]"#,
+        ));
+        assert_eq!(
+            s.cases[0].liquids[0].layers,
+            [layer(880.0, Some(4.0)), layer(1000.0, None)]
+        );
+        assert_eq!(s.cases[0].liquids[0].level_m, 5.0);
+    }
+
+    #[test]
+    fn case_names_are_required_unique_and_usable_in_file_names() {
+        let e = err(&with(r#""cases": [{"name": "a"}, {"level": 3}]"#));
+        assert_eq!(e.key, "cases[1]");
+        assert_eq!(*e.kind, SidecarErrorKind::CaseWithoutName { index: 1 });
+        let e = err(&with(
+            "\"cases\": [{\"name\": \"a\"},\n {\"name\": \"b\"},\n {\"name\": \"a\", \"level\": 3}]",
+        ));
+        assert_eq!(e.key, "cases[2].name");
+        assert_eq!(e.line, Some(3));
+        assert_eq!(
+            *e.kind,
+            SidecarErrorKind::DuplicateCase {
+                name: "a".into(),
+                first: 0
+            }
+        );
+        for bad in ["", "../up", "a\\b", "tab\there"] {
+            let e = err(&with(&format!(
+                r#""cases": [{{"name": {}}}]"#,
+                serde_json::json!(bad)
+            )));
+            assert_eq!(e.key, "cases[0].name", "{e}");
+            assert!(
+                matches!(*e.kind, SidecarErrorKind::BadCaseName { .. }),
+                "{e}"
+            );
+        }
+        let e = err(&with(r#""cases": []"#));
+        assert_eq!(e.key, "cases");
+        assert!(e.to_string().contains("cases is empty"), "{e}");
+    }
+
+    #[test]
+    fn a_missing_level_or_density_is_named() {
+        let e = err("{\"units\": \"m\",\n \"liquid\": {\"density\": 1000}}");
+        assert_eq!(e.key, "liquid.level");
+        assert_eq!(e.line, Some(2));
+        assert!(
+            e.to_string().contains("level is missing: add \"level\""),
+            "{e}"
+        );
+        let e = err(&liquid(r#"{"level": 3}"#));
+        assert_eq!(e.key, "liquid.density");
+        assert!(e.to_string().contains("\"preset\""), "{e}");
+
+        // The base may leave the level to the cases, as long as every case sets one.
+        let s = ok(
+            r#"{"units": "m", "liquid": {"density": 1000}, "cases": [{"name": "low", "level": 1}, {"name": "high", "level": 4}]}"#,
+        );
+        assert_eq!(s.cases[1].liquids[0].level_m, 4.0);
+        let e = err(
+            r#"{"units": "m", "liquid": {"density": 1000}, "cases": [{"name": "low", "level": 1}, {"name": "high"}]}"#,
+        );
+        assert_eq!(e.key, "cases[1]");
+        assert_eq!(
+            *e.kind,
+            SidecarErrorKind::Incomplete {
+                case: "high".into(),
+                liquid: "liquid".into(),
+                missing: "level"
+            }
+        );
+    }
+
+    #[test]
+    fn two_liquids_parts_and_per_case_overrides() {
+        let s = ok(TWO_SIDED);
+        let names: Vec<&str> = s.liquids.iter().map(|l| l.name.as_str()).collect();
+        assert_eq!(names, ["headwater", "tailwater"]);
+        assert_eq!(s.liquids[1].preset.as_deref(), Some("fresh_water_15c"));
+        assert_eq!(
+            s.parts.default,
+            PartRule {
+                liquid: LiquidChoice::Named(0),
+                wet_side: None
+            }
+        );
+        assert_eq!(
+            s.parts.named,
+            [
+                (
+                    "upstream_skin".to_owned(),
+                    PartRule {
+                        liquid: LiquidChoice::Named(0),
+                        wet_side: Some(WetSide::Front)
+                    }
+                ),
+                (
+                    "downstream_face".to_owned(),
+                    PartRule {
+                        liquid: LiquidChoice::Named(1),
+                        wet_side: Some(WetSide::Back)
+                    }
+                ),
+                (
+                    "deck".to_owned(),
+                    PartRule {
+                        liquid: LiquidChoice::Dry,
+                        wet_side: None
+                    }
+                ),
+            ]
+        );
+        let tail_density = water_density_cipm(15.0);
+        let normal = &s.cases[0];
+        assert_eq!(normal.name, "normal");
+        assert_eq!(
+            normal.liquids,
+            [
+                Liquid::uniform(8.0, 1000.0),
+                Liquid::uniform(
+                    2.5,
+                    water::find_preset("fresh_water_15c")
+                        .expect("preset")
+                        .density_kg_m3
+                )
+            ]
+        );
+        approx::assert_abs_diff_eq!(
+            normal.liquids[1].layers[0].density_kg_m3,
+            tail_density,
+            epsilon = 0.001
+        );
+        let flood = &s.cases[1];
+        assert_eq!(flood.liquids[0], Liquid::uniform(9.0, 1000.0));
+        assert_eq!(flood.liquids[1].level_m, 4.0);
+        assert_eq!(flood.liquids[1].surface_pressure_pa, 100.0);
+        assert_eq!(flood.liquids[1].layers, normal.liquids[1].layers);
+
+        assert_eq!(s.part_liquid("upstream_skin"), Ok(Some(0)));
+        assert_eq!(s.part_liquid("downstream_face"), Ok(Some(1)));
+        assert_eq!(s.part_liquid("deck"), Ok(None));
+        assert_eq!(s.part_liquid("anything_else"), Ok(Some(0)));
+        assert_eq!(s.part_wet_side("downstream_face"), Some(WetSide::Back));
+        assert_eq!(s.part_wet_side("deck"), None);
+    }
+
+    #[test]
+    fn part_rules_merge_named_over_star_over_top_level() {
+        let s = ok(r#"{
+  "units": "m", "wet_side": "outside",
+  "liquids": {"a": {"level": 1, "density": 1000}, "b": {"level": 2, "density": 1000}},
+  "parts": {"p": {"wet_side": "front"}, "q": {"liquid": "b"}}
+}"#);
+        assert_eq!(
+            s.parts.rule_for("p"),
+            PartRule {
+                liquid: LiquidChoice::Default,
+                wet_side: Some(WetSide::Front)
+            }
+        );
+        assert_eq!(s.part_liquid("q"), Ok(Some(1)));
+        assert_eq!(s.part_wet_side("q"), Some(WetSide::Outside));
+        let e = s
+            .part_liquid("p")
+            .expect_err("two liquids and nothing assigns one");
+        assert_eq!(
+            e.to_string(),
+            r#"part "p" has no liquid and the sidecar has several ("a", "b"): add "parts": {"p": {"liquid": "a"}}, or a "*" entry for every part not named"#
+        );
+        let s = ok(&with(r#""parts": {"*": {"wet_side": "back"}}"#));
+        assert_eq!(s.part_liquid("any"), Ok(Some(0)));
+        assert_eq!(s.part_wet_side("any"), Some(WetSide::Back));
+    }
+
+    #[test]
+    fn unknown_liquid_names_are_named_wherever_they_appear() {
+        for (from, to, key) in [
+            (
+                r#""liquid": "headwater""#,
+                r#""liquid": "headwatr""#,
+                "parts.upstream_skin.liquid",
+            ),
+            (
+                r#""liquids": {"headwater": {"level": 9.0}"#,
+                r#""liquids": {"tail": {"level": 9.0}"#,
+                "cases[1].liquids.tail",
+            ),
+        ] {
+            let text = TWO_SIDED.replacen(from, to, 1);
+            let e = err(&text);
+            assert_eq!(e.key, key, "{e}");
+            let SidecarErrorKind::UnknownLiquid { name, known } = &*e.kind else {
+                panic!("{e}");
+            };
+            assert!(to.contains(name.as_str()));
+            assert_eq!(known, r#""headwater", "tailwater""#);
+        }
+        let text = TWO_SIDED.replacen(
+            "\"cases\"",
+            "\"sweep\": {\"liquid\": \"river\", \"from\": 1, \"to\": 2, \"step\": 1},\n  \"cases\"",
+            1,
+        );
+        let e = err(&text);
+        assert_eq!(e.key, "sweep.liquid");
+        assert!(e.to_string().contains(r#"unknown liquid "river""#), "{e}");
+        assert_eq!(e.line, Some(13));
+    }
+
+    #[test]
+    fn liquid_forms_that_cannot_be_read_one_way_are_refused() {
+        let e = err(
+            r#"{"units": "m", "liquid": {"level": 1, "density": 1}, "liquids": {"a": {"level": 1, "density": 1}}}"#,
+        );
+        assert_eq!(*e.kind, SidecarErrorKind::LiquidAndLiquids);
+        let e = err(r#"{"units": "m"}"#);
+        assert_eq!(*e.kind, SidecarErrorKind::NoLiquid);
+        let e = err(r#"{"units": "m", "liquids": {}}"#);
+        assert_eq!(e.key, "liquids");
+        let text = TWO_SIDED.replacen(
+            r#"{"name": "normal"}"#,
+            r#"{"name": "normal", "level": 3}"#,
+            1,
+        );
+        let e = err(&text);
+        assert_eq!(e.key, "cases[0].level");
+        assert!(
+            e.to_string()
+                .contains(r#"set it per liquid, e.g. "liquids": {"headwater": {"level": ...}}"#),
+            "{e}"
+        );
+        let e = err(&with(
+            r#""cases": [{"name": "c", "level": 2, "liquids": {"liquid": {"density": 1}}}]"#,
+        ));
+        assert_eq!(*e.kind, SidecarErrorKind::CaseKeysAndLiquids);
+        // With one liquid, both ways of overriding it work.
+        let a = ok(&with(r#""cases": [{"name": "c", "level": 2}]"#));
+        let b = ok(&with(
+            r#""cases": [{"name": "c", "liquids": {"liquid": {"level": 2}}}]"#,
+        ));
+        assert_eq!(a, b);
+    }
+
+    #[test]
+    fn density_layers_and_preset_exclude_each_other() {
+        for (body, keys) in [
+            (
+                r#""density": 1, "layers": [{"density": 1}]"#,
+                r#""density" and "layers""#,
+            ),
+            (
+                r#""density": 1, "preset": "sea_water""#,
+                r#""density" and "preset""#,
+            ),
+            (
+                r#""layers": [{"density": 1}], "preset": "sea_water""#,
+                r#""layers" and "preset""#,
+            ),
+        ] {
+            let e = err(&liquid(&format!(r#"{{"level": 1, {body}}}"#)));
+            assert_eq!(
+                *e.kind,
+                SidecarErrorKind::Ambiguous { keys: keys.into() },
+                "{e}"
+            );
+            assert!(e.to_string().contains("ambiguous"), "{e}");
+        }
+    }
+
+    #[test]
+    fn presets_supply_the_density() {
+        let s = ok(&liquid(r#"{"level": 2, "preset": "fresh_water_4c"}"#));
+        assert_eq!(s.liquids[0].preset.as_deref(), Some("fresh_water_4c"));
+        // CIPM 2001 at 4 °C, Tanaka et al. (2001) (coefficients from memory): 999.9749 kg/m³.
+        approx::assert_abs_diff_eq!(
+            s.cases[0].liquids[0].layers[0].density_kg_m3,
+            999.9749,
+            epsilon = 0.0001
+        );
+        let s = ok(&liquid(r#"{"level": 2, "preset": "sea_water"}"#));
+        assert_eq!(s.cases[0].liquids[0], Liquid::uniform(2.0, 1025.0));
+        let e = err(&liquid(r#"{"level": 2, "preset": "brine"}"#));
+        assert_eq!(e.key, "liquid.preset");
+        assert!(
+            e.to_string()
+                .contains(r#"unknown preset "brine": the presets are "fresh_water_4c""#),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn axes_are_normalised() {
+        let s = ok(&with(
+            r#""axes": {"trunnion": {"point": [1, 2, 3], "direction": [0, 3, 4]}, "hinge": {"point": [0, 0, 0], "direction": [-2, 0, 0]}}"#,
+        ));
+        assert_eq!(s.axes[0].name, "trunnion");
+        assert_eq!(s.axes[0].point_m, [1.0, 2.0, 3.0]);
+        // Closed form: (0, 3, 4)/5.
+        approx::assert_abs_diff_eq!(s.axes[0].direction[1], 0.6, epsilon = 1e-15);
+        approx::assert_abs_diff_eq!(s.axes[0].direction[2], 0.8, epsilon = 1e-15);
+        assert_eq!(s.axes[1].direction, [-1.0, 0.0, 0.0]);
+        let e = err(&with(
+            r#""axes": {"h": {"point": [0, 0, 0], "direction": [0, 0, 0]}}"#,
+        ));
+        assert_eq!(e.key, "axes.h.direction");
+        assert_eq!(*e.kind, SidecarErrorKind::ZeroDirection([0.0; 3]));
+        let s = ok(&with(
+            r#""axes": {"h": {"point": [0, 0, 0], "direction": [1e308, 1e308, 0]}, "t": {"point": [0, 0, 0], "direction": [0, 0, 1e-320]}}"#,
+        ));
+        approx::assert_abs_diff_eq!(
+            s.axes[0].direction[0],
+            std::f64::consts::FRAC_1_SQRT_2,
+            epsilon = 1e-15
+        );
+        assert_eq!(s.axes[1].direction, [0.0, 0.0, 1.0]);
+    }
+
+    #[test]
+    fn moment_about_is_read() {
+        let s = ok(&with(r#""moment_about": [1.5, -2, 3e3]"#));
+        assert_eq!(s.moment_about_m, [1.5, -2.0, 3000.0]);
+    }
+
+    fn sweep(from: f64, to: f64, step: f64) -> Sweep {
+        Sweep {
+            liquid: 0,
+            from_m: from,
+            to_m: to,
+            step_m: step,
+        }
+    }
+
+    #[test]
+    fn sweep_levels_include_the_end() {
+        let s = ok(&with(r#""sweep": {"from": 2.0, "to": 8.0, "step": 0.25}"#));
+        let sw = s.sweep.expect("sweep");
+        assert_eq!(sw.liquid, 0);
+        let levels = sw.levels();
+        // Closed form: (8 − 2)/0.25 + 1 = 25 levels, level i = 2 + 0.25·i.
+        assert_eq!(levels.len(), 25);
+        for (i, z) in levels.iter().enumerate() {
+            assert_eq!(*z, 2.0 + 0.25 * i as f64);
+        }
+        assert_eq!(levels[24], 8.0);
+        // 0.3/0.1 is 2.9999999999999996 in f64: the end still counts.
+        let levels = sweep(0.0, 0.3, 0.1).levels();
+        assert_eq!(levels.len(), 4);
+        approx::assert_abs_diff_eq!(levels[3], 0.3, epsilon = 1e-15);
+        // A range that is not a whole number of steps stops below the end.
+        assert_eq!(sweep(0.0, 1.0, 0.3).levels().len(), 4);
+        assert_eq!(sweep(5.0, 5.0, 1.0).levels(), [5.0]);
+        assert_eq!(
+            sweep(0.0, MAX_SWEEP_STEPS as f64, 1.0).levels().len(),
+            MAX_SWEEP_STEPS + 1
+        );
+    }
+
+    #[test]
+    fn bad_sweeps_are_refused() {
+        for (body, key) in [
+            (r#""from": 2, "to": 8, "step": 0"#, "sweep.step"),
+            (r#""from": 2, "to": 8, "step": -0.5"#, "sweep.step"),
+            (r#""from": 8, "to": 2, "step": 0.5"#, "sweep.to"),
+            (r#""from": 0, "to": 8, "step": 1e-6"#, "sweep.step"),
+            (
+                r#""from": -1e300, "to": 1e300, "step": 1e-300"#,
+                "sweep.step",
+            ),
+            (r#""to": 8, "step": 1"#, "sweep"),
+        ] {
+            let e = err(&with(&format!(r#""sweep": {{{body}}}"#)));
+            assert_eq!(e.key, key, "{e}");
+        }
+        let e = err(&with(r#""sweep": {"from": 0, "to": 8, "step": 1e-6}"#));
+        assert!(
+            e.to_string()
+                .contains("more than 10000 steps: use a larger step"),
+            "{e}"
+        );
+        let text = TWO_SIDED.replacen(
+            "\"cases\"",
+            "\"sweep\": {\"from\": 1, \"to\": 2, \"step\": 1},\n  \"cases\"",
+            1,
+        );
+        let e = err(&text);
+        assert_eq!(e.key, "sweep.liquid");
+        assert!(e.to_string().contains(r#"add "liquid": "<name>""#), "{e}");
+        let text = TWO_SIDED.replacen("\"cases\"", "\"sweep\": {\"liquid\": \"tailwater\", \"from\": 1, \"to\": 2, \"step\": 1},\n  \"cases\"", 1);
+        assert_eq!(ok(&text).sweep.map(|s| s.liquid), Some(1));
+    }
+
+    #[test]
+    fn flotation_is_read_and_checked() {
+        let s = ok(&with(
+            r#""flotation": {"resisting": {"structure": 1.2e6, "soil_above": 3.0e5}, "required_factor": 1.3}"#,
+        ));
+        assert_eq!(
+            s.flotation,
+            Some(Flotation {
+                resisting: vec![("structure".into(), 1.2e6), ("soil_above".into(), 3.0e5)],
+                required_factor: 1.3,
+            })
+        );
+        for (body, key) in [
+            (
+                r#""resisting": {"w": -1}, "required_factor": 1.3"#,
+                "flotation.resisting.w",
+            ),
+            (
+                r#""resisting": {}, "required_factor": 1.3"#,
+                "flotation.resisting",
+            ),
+            (
+                r#""resisting": {"w": 1}, "required_factor": 0"#,
+                "flotation.required_factor",
+            ),
+            (r#""resisting": {"w": 1}"#, "flotation"),
+        ] {
+            let e = err(&with(&format!(r#""flotation": {{{body}}}"#)));
+            assert_eq!(e.key, key, "{e}");
+        }
+        assert!(
+            ok(&with(
+                r#""flotation": {"resisting": {"w": 0}, "required_factor": 1}"#
+            ))
+            .flotation
+            .is_some()
+        );
+    }
+
+    #[test]
+    fn absurd_nesting_is_an_error_not_a_stack_overflow() {
+        let deep = 100_000;
+        let arrays = format!("{}{}", "[".repeat(deep), "]".repeat(deep));
+        let objects = format!("{}{}", "{\"a\":".repeat(deep), "}".repeat(deep));
+        for text in [
+            arrays.clone(),
+            format!(r#"{{"units": "m", "liquid": {arrays}}}"#),
+            format!(r#"{{"units": "m", "liquid": {{"level": 1, "layers": {arrays}}}}}"#),
+            with(&format!(r#""moment_about": {arrays}"#)),
+            with(&format!(r#""parts": {objects}"#)),
+            objects.clone(),
+        ] {
+            let e = err(&text);
+            assert_eq!(e.line, Some(1), "{e}");
+        }
+    }
+}
