@@ -4,4 +4,5 @@
 //! core in [`hydro`] → report writers. See DEVELOPERS.md for the architecture map.
 
 pub mod hydro;
+pub mod shapes;
 pub mod sidecar;
