@@ -4,3 +4,4 @@
 //! core in [`hydro`] → report writers. See DEVELOPERS.md for the architecture map.
 
 pub mod hydro;
+pub mod mesh;
