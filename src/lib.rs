@@ -4,5 +4,6 @@
 //! core in [`hydro`] → report writers. See DEVELOPERS.md for the architecture map.
 
 pub mod hydro;
+pub mod mesh;
 pub mod shapes;
 pub mod sidecar;

@@ -1,0 +1,711 @@
+//! Mesh readers: STL (binary and ASCII) and OBJ, from bytes to triangles grouped in parts.
+//!
+//! Owns format detection, parsing, polygon triangulation and the input errors of mesh files
+//! (non-finite coordinates, empty meshes, truncated files, bad indices), each naming the file
+//! and, for the text formats, the line.
+//!
+//! Does not read files (the caller reads the bytes, so the readers are pure and fuzzable),
+//! never opens other files (OBJ `mtllib` is ignored), does not scale units or change axes,
+//! does not weld vertices or check topology, and never uses stored STL normals for anything
+//! but passing them on.
+//!
+//! Format rules (pinned in CONTRACT.md "Formats"):
+//! * `.stl`: a file whose size is `84 + 50·n` (n = u32 little-endian at byte 80) is binary,
+//!   whatever its header says; otherwise one that starts with `solid` (after an optional
+//!   UTF-8 byte-order mark and white space) is ASCII; otherwise it is refused.
+//! * A binary STL is one part named after the file's stem; each ASCII `solid NAME` block is a
+//!   part named `NAME` (a `solid` without a name gets the stem; a repeated name continues
+//!   that part).
+//! * `.obj`: `g` and `o` both start a part (a repeated name continues it); faces before any
+//!   of them belong to a part named after the stem.
+//! * Polygons (OBJ faces and ASCII facet loops with more than 3 vertices) are triangulated by
+//!   ear clipping in their best-fit plane, keeping their winding (module `polygon`).
+
+mod obj;
+mod polygon;
+mod stl;
+
+use std::fmt;
+use std::ops::Range;
+use std::path::{Path, PathBuf};
+
+use rustc_hash::FxHashMap;
+use thiserror::Error;
+
+pub use obj::read_obj;
+pub use stl::read_stl;
+
+/// One triangle: three vertices, each `[x, y, z]` in file units and the mesh's own axes.
+pub type Facet = [[f64; 3]; 3];
+
+/// A triangle mesh as read from one file.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Mesh {
+    /// Triangles in file units and mesh axes, f64, vertex order as stored (the right-hand
+    /// rule over that order gives each facet's stored orientation). Facets are grouped by
+    /// part: `parts[i].facets` is a contiguous range of this vector; within a part the
+    /// facets keep their order in the file.
+    pub facets: Vec<Facet>,
+    /// At least one part, in order of first appearance in the file; parts that received
+    /// no facet are left out.
+    pub parts: Vec<Part>,
+    /// STL only: one normal per facet, same order as `facets` (binary: as stored, ASCII:
+    /// parsed and rounded to f32; a facet loop split into several triangles repeats its
+    /// normal). Never used for geometry; `None` for OBJ.
+    pub stored_normals: Option<Vec<[f32; 3]>>,
+    /// The format the file was read as.
+    pub format: Format,
+}
+
+impl Mesh {
+    /// The facets of part `i` (panics if `i` is out of range, like slice indexing).
+    pub fn part_facets(&self, i: usize) -> &[Facet] {
+        &self.facets[self.parts[i].facets.clone()]
+    }
+}
+
+/// A named group of facets: an ASCII STL `solid`, an OBJ group/object, or a whole binary STL.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Part {
+    /// The name as written in the file (or the file's stem where the file names none).
+    pub name: String,
+    /// The part's facets as a range into [`Mesh::facets`].
+    pub facets: Range<usize>,
+}
+
+/// The format a mesh was read as.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Format {
+    /// Binary STL: 80-byte header, u32 facet count, 50 bytes per facet (f32 little-endian).
+    StlBinary,
+    /// ASCII STL: `solid … facet normal … outer loop … vertex … endloop endfacet … endsolid`.
+    StlAscii,
+    /// Wavefront OBJ (geometry only: `v`, `f`, `g`, `o`).
+    Obj,
+}
+
+impl Format {
+    /// A stable identifier for machine-readable output: `"stl-binary"`, `"stl-ascii"`, `"obj"`.
+    pub fn as_str(&self) -> &'static str {
+        match self {
+            Format::StlBinary => "stl-binary",
+            Format::StlAscii => "stl-ascii",
+            Format::Obj => "obj",
+        }
+    }
+}
+
+/// Human-readable: "binary STL", "ASCII STL", "OBJ".
+impl fmt::Display for Format {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(match self {
+            Format::StlBinary => "binary STL",
+            Format::StlAscii => "ASCII STL",
+            Format::Obj => "OBJ",
+        })
+    }
+}
+
+/// Why a mesh file cannot be read. Every message names the file; text formats add the line.
+#[derive(Debug, Error, Clone, PartialEq)]
+pub enum MeshError {
+    #[error(
+        "{}: not a mesh file: the name must end in .stl or .obj (any case)",
+        .path.display()
+    )]
+    UnknownExtension { path: PathBuf },
+
+    #[error(
+        "{}: too short for an STL file ({len} bytes; a binary STL has at least 84) and it does not start with `solid`; export the mesh again",
+        .path.display()
+    )]
+    TooShort { path: PathBuf, len: u64 },
+
+    #[error(
+        "{}: not a complete binary STL (header claims {claimed} facets = {expected} bytes, file has {len}) and not ASCII STL (it does not start with `solid`); the file may be truncated or still being written: export it again",
+        .path.display()
+    )]
+    NotStl {
+        path: PathBuf,
+        claimed: u32,
+        expected: u64,
+        len: u64,
+    },
+
+    #[error(
+        "{}: neither a complete binary STL (header claims {claimed} facets = {expected} bytes, file has {len}) nor ASCII STL (line {line}: {problem}); the file may be truncated or still being written: export it again",
+        .path.display()
+    )]
+    NeitherBinaryNorAscii {
+        path: PathBuf,
+        claimed: u32,
+        expected: u64,
+        len: u64,
+        line: usize,
+        problem: Problem,
+    },
+
+    #[error("{}, line {line}: {problem}", .path.display())]
+    Text {
+        path: PathBuf,
+        line: usize,
+        problem: Problem,
+    },
+
+    #[error(
+        "{}: facet {facet} of {count}: vertex coordinate `{value}` is not a finite number; repair the mesh or export it again",
+        .path.display()
+    )]
+    NonFiniteBinary {
+        path: PathBuf,
+        /// 1-based facet number.
+        facet: usize,
+        count: usize,
+        value: f32,
+    },
+
+    #[error(
+        "{}: the mesh has no facets ({format}); export at least one surface",
+        .path.display()
+    )]
+    Empty { path: PathBuf, format: Format },
+}
+
+impl MeshError {
+    /// The line of a text-format error, if the error has one.
+    pub fn line(&self) -> Option<usize> {
+        match self {
+            MeshError::Text { line, .. } | MeshError::NeitherBinaryNorAscii { line, .. } => {
+                Some(*line)
+            }
+            _ => None,
+        }
+    }
+}
+
+/// What is wrong on one line of an ASCII STL or OBJ file (the line is in [`MeshError`]).
+#[derive(Debug, Error, Clone, PartialEq)]
+pub enum Problem {
+    #[error("cannot read `{token}` as a number; write decimals such as 1.25 or -3.5e-2")]
+    BadNumber { token: String },
+
+    #[error(
+        "coordinate `{token}` is not a finite number (NaN, infinity, or beyond the range of f64); repair the mesh or export it again"
+    )]
+    NonFinite { token: String },
+
+    #[error("expected {expected}, found `{found}`")]
+    Unexpected {
+        expected: &'static str,
+        found: String,
+    },
+
+    #[error(
+        "unexpected end of file, expected {expected}; the file may be truncated or still being written"
+    )]
+    UnexpectedEnd { expected: &'static str },
+
+    #[error("a vertex needs 3 coordinates, found {found}")]
+    TooFewCoordinates { found: usize },
+
+    #[error("a facet loop has {count} vertices; it needs at least 3")]
+    TooFewLoopVertices { count: usize },
+
+    #[error("a face has {count} vertices; it needs at least 3")]
+    TooFewFaceVertices { count: usize },
+
+    #[error("cannot read face vertex `{token}`: expected an index such as 7, -1, 7/2 or 7//3")]
+    BadIndex { token: String },
+
+    #[error("face vertex index 0 is invalid: OBJ indices count from 1 (or backwards from -1)")]
+    IndexZero,
+
+    #[error(
+        "face vertex index {index} is out of range: {defined} vertices are defined before this line"
+    )]
+    IndexOutOfRange { index: i64, defined: usize },
+
+    #[error(
+        "a polygon with {vertices} vertices, {non_convex} of them not convex, is too large to triangulate here (vertices × non-convex must stay ≤ {limit}); triangulate it in the exporter"
+    )]
+    PolygonTooComplex {
+        vertices: usize,
+        non_convex: usize,
+        limit: u64,
+    },
+}
+
+/// A text-format error before the file's path is attached.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct LineError {
+    pub line: usize,
+    pub problem: Problem,
+}
+
+impl LineError {
+    pub(crate) fn new(line: usize, problem: Problem) -> LineError {
+        LineError { line, problem }
+    }
+
+    pub(crate) fn with_path(self, path: &Path) -> MeshError {
+        MeshError::Text {
+            path: path.to_path_buf(),
+            line: self.line,
+            problem: self.problem,
+        }
+    }
+}
+
+/// True when `path` ends in `.stl` or `.obj`, in any case.
+pub fn is_mesh_path(path: &Path) -> bool {
+    matches!(mesh_extension(path), Some(Ext::Stl | Ext::Obj))
+}
+
+/// Reads a mesh from the file's bytes, choosing the format by the extension of `path`.
+///
+/// `path` is used only for messages and for the part name where the file names none (the
+/// file's stem); nothing is read from disk. Coordinates come back in file units and mesh
+/// axes. Errors: [`MeshError`], each naming `path`.
+pub fn read_mesh(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
+    match mesh_extension(path) {
+        Some(Ext::Stl) => read_stl(path, bytes),
+        Some(Ext::Obj) => read_obj(path, bytes),
+        None => Err(MeshError::UnknownExtension {
+            path: path.to_path_buf(),
+        }),
+    }
+}
+
+enum Ext {
+    Stl,
+    Obj,
+}
+
+fn mesh_extension(path: &Path) -> Option<Ext> {
+    let ext = path.extension()?.to_str()?;
+    if ext.eq_ignore_ascii_case("stl") {
+        Some(Ext::Stl)
+    } else if ext.eq_ignore_ascii_case("obj") {
+        Some(Ext::Obj)
+    } else {
+        None
+    }
+}
+
+/// The part name used where the file names none: the file's stem.
+pub(crate) fn stem_name(path: &Path) -> String {
+    path.file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .filter(|s| !s.is_empty())
+        .unwrap_or_else(|| "mesh".to_string())
+}
+
+/// A token for an error message: lossy UTF-8, cut short so a line of absurd length cannot
+/// make an absurd message.
+pub(crate) fn quote(token: &[u8]) -> String {
+    const MAX_CHARS: usize = 40;
+    let text = String::from_utf8_lossy(&token[..token.len().min(4 * MAX_CHARS)]);
+    if text.chars().count() > MAX_CHARS || token.len() > 4 * MAX_CHARS {
+        let mut short: String = text.chars().take(MAX_CHARS).collect();
+        short.push('…');
+        short
+    } else {
+        text.into_owned()
+    }
+}
+
+/// Parses a number token as f64; `None` when it is not a number at all (non-finite values
+/// such as `nan`, `inf` or `1e400` parse, and are judged by the caller).
+pub(crate) fn parse_f64(token: &[u8]) -> Option<f64> {
+    std::str::from_utf8(token).ok()?.parse::<f64>().ok()
+}
+
+/// Parses a vertex coordinate: a finite f64.
+pub(crate) fn parse_coordinate(token: &[u8]) -> Result<f64, Problem> {
+    match parse_f64(token) {
+        Some(v) if v.is_finite() => Ok(v),
+        Some(_) => Err(Problem::NonFinite {
+            token: quote(token),
+        }),
+        None => Err(Problem::BadNumber {
+            token: quote(token),
+        }),
+    }
+}
+
+/// Collects facets into parts by name, keeping the order of first appearance and the
+/// order of facets within each part, then lays them out contiguously.
+pub(crate) struct PartsBuilder {
+    default_name: String,
+    names: Vec<String>,
+    index: FxHashMap<String, usize>,
+    facets: Vec<Vec<Facet>>,
+    normals: Option<Vec<Vec<[f32; 3]>>>,
+    current: Option<usize>,
+}
+
+impl PartsBuilder {
+    /// `default_name` names facets added before any [`select`](Self::select), and
+    /// selections of an empty name. `with_normals` keeps one normal per facet.
+    pub(crate) fn new(default_name: String, with_normals: bool) -> PartsBuilder {
+        PartsBuilder {
+            default_name,
+            names: Vec::new(),
+            index: FxHashMap::default(),
+            facets: Vec::new(),
+            normals: with_normals.then(Vec::new),
+            current: None,
+        }
+    }
+
+    /// Makes `name` the part that receives the next facets (an empty name means the
+    /// default name); a name seen before continues its part.
+    pub(crate) fn select(&mut self, name: &str) {
+        let name = if name.is_empty() {
+            self.default_name.clone()
+        } else {
+            name.to_string()
+        };
+        self.current = Some(self.part_index(name));
+    }
+
+    fn part_index(&mut self, name: String) -> usize {
+        if let Some(&i) = self.index.get(&name) {
+            return i;
+        }
+        let i = self.names.len();
+        self.index.insert(name.clone(), i);
+        self.names.push(name);
+        self.facets.push(Vec::new());
+        if let Some(normals) = &mut self.normals {
+            normals.push(Vec::new());
+        }
+        i
+    }
+
+    fn current(&mut self) -> usize {
+        match self.current {
+            Some(i) => i,
+            None => {
+                let i = self.part_index(self.default_name.clone());
+                self.current = Some(i);
+                i
+            }
+        }
+    }
+
+    pub(crate) fn push(&mut self, facet: Facet, normal: [f32; 3]) {
+        let i = self.current();
+        self.facets[i].push(facet);
+        if let Some(normals) = &mut self.normals {
+            normals[i].push(normal);
+        }
+    }
+
+    /// The mesh, or `None` when no facet was added.
+    pub(crate) fn finish(self, format: Format) -> Option<Mesh> {
+        let total: usize = self.facets.iter().map(Vec::len).sum();
+        if total == 0 {
+            return None;
+        }
+        let mut parts = Vec::new();
+        let mut facets: Vec<Facet> = Vec::with_capacity(total);
+        let mut normals: Option<Vec<[f32; 3]>> =
+            self.normals.as_ref().map(|_| Vec::with_capacity(total));
+        let mut part_normals = self.normals.map(Vec::into_iter);
+        for (name, part_facets) in self.names.into_iter().zip(self.facets) {
+            let these_normals = part_normals.as_mut().and_then(Iterator::next);
+            if part_facets.is_empty() {
+                continue;
+            }
+            let start = facets.len();
+            facets.extend_from_slice(&part_facets);
+            if let (Some(all), Some(these)) = (&mut normals, these_normals) {
+                all.extend_from_slice(&these);
+            }
+            parts.push(Part {
+                name,
+                facets: start..facets.len(),
+            });
+        }
+        Some(Mesh {
+            facets,
+            parts,
+            stored_normals: normals,
+            format,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn mesh_paths_by_extension_in_any_case() {
+        for p in ["a.stl", "a.STL", "dir/b.Stl", "c.obj", "c.OBJ"] {
+            assert!(is_mesh_path(Path::new(p)), "{p}");
+        }
+        for p in ["a.json", "stl", "a.stl.tmp", "a", "a.st"] {
+            assert!(!is_mesh_path(Path::new(p)), "{p}");
+        }
+    }
+
+    #[test]
+    fn unknown_extension_names_the_file() {
+        let err = read_mesh(Path::new("gate.ply"), b"ply").expect_err("must be refused");
+        assert!(matches!(err, MeshError::UnknownExtension { .. }));
+        assert!(err.to_string().contains("gate.ply"), "{err}");
+    }
+
+    #[test]
+    fn quote_cuts_long_tokens() {
+        let long = vec![b'x'; 1_000_000];
+        let q = quote(&long);
+        assert_eq!(q.chars().count(), 41);
+        assert!(q.ends_with('…'));
+        assert_eq!(quote(b"1.2.3"), "1.2.3");
+    }
+
+    #[test]
+    fn coordinates_must_be_finite_numbers() {
+        assert_eq!(parse_coordinate(b"0.1"), Ok(0.1));
+        for t in ["nan", "NaN", "inf", "-infinity", "1e400", "-1e309"] {
+            assert!(
+                matches!(
+                    parse_coordinate(t.as_bytes()),
+                    Err(Problem::NonFinite { .. })
+                ),
+                "{t}"
+            );
+        }
+        for t in ["1,5", "abc", "1.0d0", ""] {
+            assert!(
+                matches!(
+                    parse_coordinate(t.as_bytes()),
+                    Err(Problem::BadNumber { .. })
+                ),
+                "{t}"
+            );
+        }
+    }
+
+    #[test]
+    fn parts_builder_regroups_repeated_names_in_order() {
+        let f = |k: f64| [[k, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]];
+        let mut b = PartsBuilder::new("stem".into(), true);
+        b.push(f(0.0), [0.0; 3]);
+        b.select("a");
+        b.push(f(1.0), [1.0; 3]);
+        b.select("unused");
+        b.select("b");
+        b.push(f(2.0), [2.0; 3]);
+        b.select("a");
+        b.push(f(3.0), [3.0; 3]);
+        b.select("");
+        b.push(f(4.0), [4.0; 3]);
+        let m = b.finish(Format::Obj).expect("facets were added");
+        let names: Vec<_> = m.parts.iter().map(|p| p.name.as_str()).collect();
+        assert_eq!(names, ["stem", "a", "b"]);
+        let xs: Vec<f64> = m.facets.iter().map(|t| t[0][0]).collect();
+        assert_eq!(xs, [0.0, 4.0, 1.0, 3.0, 2.0]);
+        assert_eq!(m.parts[0].facets, 0..2);
+        assert_eq!(m.parts[1].facets, 2..4);
+        assert_eq!(m.parts[2].facets, 4..5);
+        let nx: Vec<f32> = m
+            .stored_normals
+            .expect("kept")
+            .iter()
+            .map(|n| n[0])
+            .collect();
+        assert_eq!(nx, [0.0, 4.0, 1.0, 3.0, 2.0]);
+    }
+
+    /// The real CAD exports kept in `tests/data/cad-exports/` (see its README.md).
+    fn export(name: &str) -> (PathBuf, Vec<u8>) {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("tests/data/cad-exports")
+            .join(name);
+        let bytes = std::fs::read(&path).expect("fixture present");
+        (path, bytes)
+    }
+
+    #[test]
+    fn real_binary_exports_load_as_one_part_named_after_the_stem() {
+        // Headers seen in the files: "solid angle_block" (a binary file whose header starts
+        // with solid), "STLB ASM …", "Binary STL output from Blender …", "FileType: Binary",
+        // "ddlid featuretype".
+        for name in [
+            "angle_block.STL",
+            "round.stl",
+            "teapot.stl",
+            "busted.STL",
+            "featuretype.STL",
+        ] {
+            let (path, bytes) = export(name);
+            // Counted independently: from the file size, which must agree with the header.
+            let count = (bytes.len() - 84) / 50;
+            assert_eq!((bytes.len() - 84) % 50, 0, "{name}");
+            assert_eq!(
+                u32::from_le_bytes([bytes[80], bytes[81], bytes[82], bytes[83]]) as usize,
+                count
+            );
+            let m = read_mesh(&path, &bytes).expect(name);
+            assert_eq!(m.format, Format::StlBinary, "{name}");
+            assert_eq!(m.facets.len(), count, "{name}");
+            let stem = name.rsplit_once('.').expect("has extension").0;
+            assert_eq!(
+                m.parts,
+                vec![Part {
+                    name: stem.to_string(),
+                    facets: 0..count
+                }],
+                "{name}"
+            );
+            assert_eq!(m.stored_normals.as_ref().map(Vec::len), Some(count));
+        }
+    }
+
+    #[test]
+    fn real_binary_exports_match_stl_io() {
+        for name in [
+            "angle_block.STL",
+            "round.stl",
+            "teapot.stl",
+            "busted.STL",
+            "featuretype.STL",
+        ] {
+            let (path, mut bytes) = export(name);
+            let ours = read_mesh(&path, &bytes).expect(name);
+            // stl_io sniffs a header starting with "solid " as ASCII; blank the header (it
+            // carries no geometry) so it reads the binary body.
+            bytes[..80].fill(0);
+            let mut cursor = std::io::Cursor::new(&bytes[..]);
+            let theirs: Vec<stl_io::Triangle> = stl_io::create_stl_reader(&mut cursor)
+                .expect("binary")
+                .collect::<Result<_, _>>()
+                .expect("complete");
+            assert_eq!(theirs.len(), ours.facets.len(), "{name}");
+            let normals = ours.stored_normals.as_ref().expect("stl");
+            for (k, t) in theirs.iter().enumerate() {
+                let widened = t.vertices.map(|v| v.0.map(f64::from));
+                assert_eq!(widened, ours.facets[k], "{name} facet {k}");
+                assert_eq!(t.normal.0, normals[k], "{name} facet {k}");
+            }
+        }
+    }
+
+    /// `facet normal` lines of an ASCII file, counted without our parser.
+    fn count_facet_lines(bytes: &[u8]) -> usize {
+        String::from_utf8_lossy(bytes)
+            .lines()
+            .filter(|l| {
+                l.trim_start()
+                    .to_ascii_lowercase()
+                    .starts_with("facet normal")
+            })
+            .count()
+    }
+
+    #[test]
+    fn real_ascii_exports_keep_their_solids() {
+        // Names and facet counts as found in the files with grep: two `solid` lines each.
+        // multibody.stl has CRLF line ends; two_objects… ends its solids with a bare
+        // `endsolid`.
+        for (name, parts, per_part) in [
+            ("multibody.stl", ["bodyB", "bodyA"], [12, 20]),
+            (
+                "two_objects_mixed_case_names.stl",
+                ["CubeExportedFromCAD", "TranslatedCubeExportedFromCAD"],
+                [12, 12],
+            ),
+        ] {
+            let (path, bytes) = export(name);
+            let m = read_mesh(&path, &bytes).expect(name);
+            assert_eq!(m.format, Format::StlAscii, "{name}");
+            assert_eq!(m.facets.len(), count_facet_lines(&bytes), "{name}");
+            let got: Vec<(&str, usize)> = m
+                .parts
+                .iter()
+                .map(|p| (p.name.as_str(), p.facets.len()))
+                .collect();
+            let want: Vec<(&str, usize)> = parts.into_iter().zip(per_part).collect();
+            assert_eq!(got, want, "{name}");
+            assert_eq!(
+                m.stored_normals.as_ref().map(Vec::len),
+                Some(m.facets.len())
+            );
+        }
+    }
+
+    #[test]
+    fn real_ascii_export_first_solid_matches_stl_io() {
+        // stl_io reads only the first solid, as f32; ours are f64. Compare within f32
+        // rounding (relative 2⁻²³ of the coordinate, plus an absolute 1e-30 for zeros).
+        let (path, bytes) = export("two_objects_mixed_case_names.stl");
+        let ours = read_mesh(&path, &bytes).expect("ascii");
+        let mut cursor = std::io::Cursor::new(&bytes[..]);
+        let theirs: Vec<stl_io::Triangle> = stl_io::create_stl_reader(&mut cursor)
+            .expect("ascii")
+            .collect::<Result<_, _>>()
+            .expect("complete");
+        let first = ours.part_facets(0);
+        assert_eq!(theirs.len(), first.len());
+        for (t, f) in theirs.iter().zip(first) {
+            for (vertex, ours) in t.vertices.iter().zip(f) {
+                for (&a, &b) in vertex.0.iter().zip(ours) {
+                    let a = f64::from(a);
+                    assert!((a - b).abs() <= b.abs() * 1.2e-7 + 1e-30, "{a} vs {b}");
+                }
+            }
+        }
+        // And the float noise survives in f64: the file writes 4.336809e-16 where 0 was
+        // meant.
+        assert!(
+            ours.facets
+                .iter()
+                .flatten()
+                .flatten()
+                .any(|&c| c == 4.336809e-16)
+        );
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(300))]
+
+        /// Any bytes give a mesh or an error naming the file, never a panic.
+        #[test]
+        fn arbitrary_bytes_never_panic(
+            bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..600),
+        ) {
+            for name in ["fuzz.stl", "fuzz.obj"] {
+                if let Err(e) = read_mesh(Path::new(name), &bytes) {
+                    proptest::prop_assert!(e.to_string().contains(name));
+                }
+            }
+        }
+
+        /// Valid-looking text with one byte changed: the same.
+        #[test]
+        fn damaged_text_never_panics(pos in 0usize..400, byte in proptest::prelude::any::<u8>()) {
+            let stl = b"solid s\nfacet normal 0 0 1\nouter loop\nvertex 0 0 0\nvertex 1 0 0\n\
+                vertex 1 1 0\nvertex 0 1 0\nendloop\nendfacet\nendsolid s\n".to_vec();
+            let obj = b"v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0.5 0.2 0\nv 0 1 0\ng a\nf 1 2 3 4 5\n\
+                o b\nf -1 -2 -3\ng a\nf 1/1 2//2 3/3/3\n".to_vec();
+            for (name, mut text) in [("d.stl", stl), ("d.obj", obj)] {
+                let at = pos % text.len();
+                text[at] = byte;
+                if let Err(e) = read_mesh(Path::new(name), &text) {
+                    proptest::prop_assert!(e.to_string().contains(name));
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn parts_builder_without_facets_is_empty() {
+        let mut b = PartsBuilder::new("stem".into(), false);
+        b.select("a");
+        assert!(b.finish(Format::Obj).is_none());
+    }
+}
