@@ -408,6 +408,21 @@ impl PartsBuilder {
         if total == 0 {
             return None;
         }
+        if let Some(only) = self.facets.iter().position(|f| f.len() == total) {
+            // One part holds every facet (the common case): move it, don't copy it.
+            let name = self.names.into_iter().nth(only)?;
+            let facets = self.facets.into_iter().nth(only)?;
+            let stored_normals = self.normals.and_then(|n| n.into_iter().nth(only));
+            return Some(Mesh {
+                facets,
+                parts: vec![Part {
+                    name,
+                    facets: 0..total,
+                }],
+                stored_normals,
+                format,
+            });
+        }
         let mut parts = Vec::new();
         let mut facets: Vec<Facet> = Vec::with_capacity(total);
         let mut normals: Option<Vec<[f32; 3]>> =
