@@ -133,7 +133,7 @@ pub enum MeshError {
     },
 
     #[error(
-        "{}: neither a complete binary STL (header claims {claimed} facets = {expected} bytes, file has {len}) nor ASCII STL (line {line}: {problem}); the file may be truncated or still being written: export it again",
+        "{}: neither a complete binary STL (header claims {claimed} facets = {expected} bytes, file has {len}) nor ASCII STL (line {line}: {problem}); a binary file cut short or still being written, or damaged text: export it again",
         .path.display()
     )]
     NeitherBinaryNorAscii {
