@@ -133,7 +133,7 @@ pub enum MeshError {
     },
 
     #[error(
-        "{}: neither a complete binary STL (header claims {claimed} facets = {expected} bytes, file has {len}) nor ASCII STL (line {line}: {problem}); the file may be truncated or still being written: export it again",
+        "{}: neither a complete binary STL (header claims {claimed} facets = {expected} bytes, file has {len}) nor ASCII STL (line {line}: {problem}); a binary file cut short or still being written, or damaged text: export it again",
         .path.display()
     )]
     NeitherBinaryNorAscii {
@@ -407,6 +407,21 @@ impl PartsBuilder {
         let total: usize = self.facets.iter().map(Vec::len).sum();
         if total == 0 {
             return None;
+        }
+        if let Some(only) = self.facets.iter().position(|f| f.len() == total) {
+            // One part holds every facet (the common case): move it, don't copy it.
+            let name = self.names.into_iter().nth(only)?;
+            let facets = self.facets.into_iter().nth(only)?;
+            let stored_normals = self.normals.and_then(|n| n.into_iter().nth(only));
+            return Some(Mesh {
+                facets,
+                parts: vec![Part {
+                    name,
+                    facets: 0..total,
+                }],
+                stored_normals,
+                format,
+            });
         }
         let mut parts = Vec::new();
         let mut facets: Vec<Facet> = Vec::with_capacity(total);

@@ -61,6 +61,13 @@ impl Triangulator {
             out.push([0, 1, 2]);
             return Ok(());
         }
+        if let [a, b, c, d] = points {
+            // Quads are most of the polygons in CAD output; pick their diagonal directly.
+            if let Some(pair) = quad(*a, *b, *c, *d) {
+                out.extend_from_slice(&pair);
+                return Ok(());
+            }
+        }
         let Some((u, v)) = plane_basis(points) else {
             fan(n, out);
             return Ok(());
@@ -186,6 +193,27 @@ impl Triangulator {
             b = self.next[b];
         }
     }
+}
+
+/// The two triangles of the quad `abcd`: split along `ac` when both halves face along the
+/// quad's Newell normal `N = (b − a) × (c − a) + (c − a) × (d − a)`, else along `bd` when
+/// those halves do; `None` (left to ear clipping) when neither does, as for a degenerate or
+/// self-intersecting quad. Two triangles on opposite sides of a diagonal, both turning the
+/// way of the ring, tile the quad exactly, so this agrees with ear clipping on what is
+/// covered; a convex quad gives the fan from vertex 0 like ear clipping does.
+fn quad(a: [f64; 3], b: [f64; 3], c: [f64; 3], d: [f64; 3]) -> Option<[[usize; 3]; 2]> {
+    let n1 = cross(sub(b, a), sub(c, a));
+    let n2 = cross(sub(c, a), sub(d, a));
+    let normal = [n1[0] + n2[0], n1[1] + n2[1], n1[2] + n2[2]];
+    if dot(n1, normal) > 0.0 && dot(n2, normal) > 0.0 {
+        return Some([[0, 1, 2], [0, 2, 3]]);
+    }
+    let m1 = cross(sub(c, b), sub(d, b));
+    let m2 = cross(sub(d, b), sub(a, b));
+    if dot(m1, normal) > 0.0 && dot(m2, normal) > 0.0 {
+        return Some([[1, 2, 3], [1, 3, 0]]);
+    }
+    None
 }
 
 /// `(0, i, i + 1)` for `i` in `1..n−1`.
@@ -384,6 +412,23 @@ mod tests {
         let expected = [0.0, 3.0 * s, -3.0 * c];
         for k in 0..3 {
             assert!((vec_area[k] - expected[k]).abs() < 1e-12, "{vec_area:?}");
+        }
+    }
+
+    #[test]
+    fn concave_quads_use_the_inner_diagonal() {
+        // A dart with the reflex vertex (1, 1). Closed form: the triangle (0,0), (0,2), (3,1)
+        // of area ½·2·3 = 3 minus the notch (0,0), (1,1), (0,2) of area ½·2·1 = 1, so 2;
+        // written clockwise, so reversed before use.
+        let dart = [[0.0, 0.0], [1.0, 1.0], [0.0, 2.0], [3.0, 1.0]];
+        assert!(
+            (shoelace(&dart) + 2.0).abs() < 1e-12,
+            "clockwise as written"
+        );
+        let ccw: Vec<[f64; 2]> = dart.iter().rev().copied().collect();
+        for k in 0..4 {
+            let ring: Vec<[f64; 2]> = (0..4).map(|i| ccw[(i + k) % 4]).collect();
+            assert_tiles(&ring, &run(&flat(&ring)), 1e-12);
         }
     }
 
