@@ -19,7 +19,7 @@
 //! (all zero on the waterplane, so no cap is needed), with `d_i = z_i − L`, `D = Σ d_i`:
 //!
 //! * `V = Σ a_z · D/3`,  `∫x dV = Σ a_z/12 · (Σ x_i d_i + X D)` (same for `y`),
-//! * `∫(z − L) dV = Σ a_z/24 · (Σ d_i² + D²)`,
+//! * `∫(z − L) dV = Σ a_z/24 · (Σ d_i² + D²)`, to which `L·V` is added to give `∫z dV`,
 //!
 //! summed over the pieces below the level.
 
@@ -66,7 +66,7 @@ pub struct PartAccum {
     pub max_pressure: f64,
     /// Enclosed volume below `volume_level`, m³ (outward orientation, cavities excluded).
     pub volume: f64,
-    /// `∫x dV`, `∫y dV`, `∫(z − L) dV` over that volume, m⁴.
+    /// `∫x dV`, `∫y dV`, `∫z dV` over that volume (local frame), m⁴.
     pub volume_moment: Vec3,
     /// Number of facets with a loaded piece.
     pub loaded_facets: usize,
@@ -137,7 +137,7 @@ pub struct FacetLoads {
     pub max_pressure: f64,
     /// Contribution to the enclosed volume, m³.
     pub volume: f64,
-    /// Contribution to `∫x dV`, `∫y dV`, `∫(z − L) dV`.
+    /// Contribution to `∫x dV`, `∫y dV`, `∫z dV` (local frame).
     pub volume_moment: Vec3,
     /// Whether any pressure acts on the facet.
     pub loaded: bool,
@@ -212,7 +212,10 @@ pub fn facet_loads(
                 let mx = r0.x * d0 + r1.x * d1 + r2.x * d2 + (r0.x + r1.x + r2.x) * sd;
                 let my = r0.y * d0 + r1.y * d1 + r2.y * d2 + (r0.y + r1.y + r2.y) * sd;
                 let mz = d0 * d0 + d1 * d1 + d2 * d2 + sd * sd;
-                out.volume_moment += Vec3::new(s * mx / 12.0, s * my / 12.0, s * mz / 24.0);
+                // ∫z dV = ∫(z − L) dV + L·V, so sums over different levels still add up.
+                let vol = s * sd / 3.0;
+                out.volume_moment +=
+                    Vec3::new(s * mx / 12.0, s * my / 12.0, s * mz / 24.0 + l * vol);
             }
         }
     });

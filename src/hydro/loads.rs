@@ -36,7 +36,7 @@ pub fn line_of_action(
 ) -> Option<LineOfAction> {
     let f2 = force.norm_squared();
     let f = f2.sqrt();
-    if !(f > ZERO_FORCE_REL * abs_force_sum) || f == 0.0 {
+    if f.is_nan() || f <= ZERO_FORCE_REL * abs_force_sum || f == 0.0 {
         return None;
     }
     let direction = force / f;

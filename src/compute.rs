@@ -1,0 +1,802 @@
+//! One computation: a read mesh and a validated sidecar in, the result document out.
+//!
+//! Pure (no files, clock or environment): it maps units and the up axis into the core's
+//! frame, works out topology and which side of every facet the liquid is on, integrates
+//! every case (and sweep step), and maps the sums back to mesh axes as the result fields
+//! pinned by CONTRACT.md. The document's layout is specified on [`MeshResult`].
+
+use serde::Serialize;
+use thiserror::Error;
+
+use crate::hydro::{
+    self, Frame, LineOfAction, Liquid, LiquidError, NO_SHELL, PartAccum, PartInput, Profile,
+    Topology, Tri, Vec3, WetSide, Wetting,
+};
+use crate::mesh::Mesh;
+use crate::sidecar::{Sidecar, UnassignedPart};
+
+/// Version of the result document's layout.
+pub const SCHEMA: u32 = 1;
+
+/// The caution printed with every result.
+pub const CAUTION: &str = "Hydrostatic loads only: static liquid pressure on rigid surfaces. \
+Not included: waves, surge, seiche, currents, seismic or sloshing effects, wind, ice, debris, \
+impact, soil pressure, seepage or any dynamic effect. Results are only as good as the mesh, \
+units, levels and densities given. Check them against the codes that apply where the \
+structure is built, and have a licensed engineer review any design that relies on them.";
+
+/// Why a mesh and its sidecar cannot be computed together.
+#[derive(Debug, Error)]
+pub enum ComputeError {
+    #[error(
+        "the mesh is open ({open} open edges, {non_manifold} non-manifold edges), so \"outside\"/\"inside\" have no meaning for part \"{part}\": set \"wet_side\": \"front\" (liquid on the side the right-hand-rule normals point to) or \"back\""
+    )]
+    OpenWithClosedSide {
+        part: String,
+        open: usize,
+        non_manifold: usize,
+    },
+    #[error(
+        "the mesh is open ({open} open edges, {non_manifold} non-manifold edges) and no wet_side is given for part \"{part}\": add \"wet_side\": \"front\" (liquid on the side the right-hand-rule facet normals point to) or \"back\""
+    )]
+    OpenWithoutSide {
+        part: String,
+        open: usize,
+        non_manifold: usize,
+    },
+    #[error(transparent)]
+    Unassigned(#[from] UnassignedPart),
+    #[error("case \"{case}\", liquid \"{liquid}\": {source}")]
+    Liquid {
+        case: String,
+        liquid: String,
+        source: LiquidError,
+    },
+    #[error("the mesh has no facets")]
+    Empty,
+    #[error("a result came out non-finite ({what}); check the mesh coordinates and sidecar values")]
+    NonFinite { what: String },
+}
+
+/// The result document of one mesh (`results/<stem>.json`, `calc --json`).
+///
+/// Pinned by CONTRACT.md: `schema`, `mesh`, `cases[]` with `name`, `force`, `moment`,
+/// `moment_about`, `wetted_area`, `uplift`, `downthrust`, `submerged_volume`,
+/// `centre_of_buoyancy`, `line_of_action`, `centre_of_pressure`, `parts`, and the
+/// extensions `axis_moments`, `sweep`, `flotation`; and `warnings`. Everything else is
+/// ours: `inputs` echoes what the numbers depend on, each load set adds
+/// `horizontal_force`, `vertical_force`, `max_pressure`, and `caution` closes it. SI units
+/// and mesh axes throughout (vectors in the mesh's own axes, lengths in metres).
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct MeshResult {
+    pub schema: u32,
+    pub mesh: String,
+    pub inputs: Inputs,
+    pub cases: Vec<CaseResult>,
+    pub warnings: Vec<String>,
+    pub caution: &'static str,
+}
+
+/// What the numbers depend on, echoed for a checker.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct Inputs {
+    pub format: &'static str,
+    pub units: &'static str,
+    pub up: &'static str,
+    pub gravity: f64,
+    pub wet_side: Option<&'static str>,
+    pub closed: bool,
+    pub facets: usize,
+    pub shells: usize,
+    pub parts: Vec<PartInputs>,
+    /// Bounding box in metres, mesh axes: `[min, max]`.
+    pub bounding_box: [[f64; 3]; 2],
+}
+
+/// How one part was treated.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct PartInputs {
+    pub name: String,
+    pub facets: usize,
+    /// The liquid that wets it, or null when dry.
+    pub liquid: Option<String>,
+    pub wet_side: &'static str,
+    pub closed: bool,
+}
+
+/// One liquid as a case resolved it.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct LiquidEcho {
+    pub name: String,
+    pub level: f64,
+    pub surface_pressure: f64,
+    /// `[[density, down_to or null], …]`, top to bottom.
+    pub layers: Vec<(f64, Option<f64>)>,
+}
+
+/// The results of one load case.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct CaseResult {
+    pub name: String,
+    pub liquids: Vec<LiquidEcho>,
+    #[serde(flatten)]
+    pub loads: Loads,
+    pub parts: Vec<PartResult>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sweep: Option<Vec<SweepStep>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub flotation: Option<FlotationCheck>,
+}
+
+/// One part's results in a case.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct PartResult {
+    pub name: String,
+    #[serde(flatten)]
+    pub loads: Loads,
+}
+
+/// The loads of a case or a part (SI, mesh axes).
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct Loads {
+    /// N.
+    pub force: [f64; 3],
+    /// N·m about `moment_about`.
+    pub moment: [f64; 3],
+    /// m.
+    pub moment_about: [f64; 3],
+    /// m².
+    pub wetted_area: f64,
+    /// N ≥ 0.
+    pub uplift: f64,
+    /// N ≥ 0.
+    pub downthrust: f64,
+    /// m³, or null for an open surface.
+    pub submerged_volume: Option<f64>,
+    pub centre_of_buoyancy: Option<[f64; 3]>,
+    pub line_of_action: Option<LineOut>,
+    pub centre_of_pressure: Option<[f64; 3]>,
+    /// Magnitude of the horizontal component of `force`, N.
+    pub horizontal_force: f64,
+    /// Component of `force` along up, N (positive up; equals uplift − downthrust).
+    pub vertical_force: f64,
+    /// Largest gauge pressure on the loaded surface, Pa.
+    pub max_pressure: f64,
+    pub axis_moments: std::collections::BTreeMap<String, AxisMoment>,
+}
+
+/// The line of action as written (mesh axes, metres).
+#[derive(Clone, Copy, Debug, Serialize, PartialEq)]
+pub struct LineOut {
+    pub point: [f64; 3],
+    pub direction: [f64; 3],
+    pub couple: f64,
+}
+
+/// Moment about a named axis and how far the line of action misses it.
+#[derive(Clone, Copy, Debug, Serialize, PartialEq)]
+pub struct AxisMoment {
+    /// N·m, right-hand rule about the axis direction.
+    pub moment: f64,
+    /// m; null when the force is zero.
+    pub miss_distance: Option<f64>,
+}
+
+/// One level of a sweep.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct SweepStep {
+    pub level: f64,
+    pub force: [f64; 3],
+    pub moment: [f64; 3],
+    pub uplift: f64,
+    pub downthrust: f64,
+    pub wetted_area: f64,
+    pub submerged_volume: Option<f64>,
+    pub axis_moments: std::collections::BTreeMap<String, AxisMoment>,
+}
+
+/// Safety against flotation: resisting loads over the net uplift.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct FlotationCheck {
+    /// Net upward vertical force of the liquid (uplift − downthrust, at least 0), N.
+    pub uplift: f64,
+    /// Σ of the resisting loads, N.
+    pub resisting: f64,
+    /// The resisting loads as the user named them, N.
+    pub resisting_terms: std::collections::BTreeMap<String, f64>,
+    /// resisting / uplift; null when the uplift is 0.
+    pub factor: Option<f64>,
+    pub required_factor: f64,
+    pub pass: bool,
+    pub formula: String,
+}
+
+/// Everything about the mesh that does not change between cases.
+struct Prepared {
+    frame: Frame,
+    /// Local origin (bounding-box centre), internal frame.
+    centre: Vec3,
+    tris: Vec<Tri>,
+    topology: Topology,
+    /// Per part: liquid index (None = dry) and resolved wet side.
+    part_setup: Vec<(Option<usize>, WetSide)>,
+    wetting: Vec<Wetting>,
+    vol_sign: Vec<i8>,
+    /// Per part: closed by itself (volumes reported).
+    part_closed: Vec<bool>,
+    /// Per part and for the whole mesh: the plane, when planar (internal, local).
+    part_plane: Vec<Option<hydro::Plane>>,
+    mesh_plane: Option<hydro::Plane>,
+    moment_about: Vec3,
+    axes: Vec<(String, Vec3, Vec3)>,
+}
+
+/// Computes every case of `sidecar` on `mesh`; `mesh_name` is the file name to report.
+pub fn compute(
+    mesh_name: &str,
+    mesh: &Mesh,
+    sidecar: &Sidecar,
+) -> Result<MeshResult, ComputeError> {
+    if mesh.facets.is_empty() {
+        return Err(ComputeError::Empty);
+    }
+    let mut warnings = Vec::new();
+    let prep = prepare(mesh, sidecar, &mut warnings)?;
+
+    let mut cases = Vec::with_capacity(sidecar.cases.len());
+    for case in &sidecar.cases {
+        let profiles = profiles(sidecar, &case.name, &case.liquids, prep.centre.z)?;
+        let accs = run(&prep, mesh, &profiles);
+        let (loads, parts) = assemble(&prep, mesh, &accs);
+        let sweep = match &sidecar.sweep {
+            None => None,
+            Some(sw) => {
+                let mut steps = Vec::new();
+                for level in sw.levels() {
+                    let mut liquids = case.liquids.clone();
+                    liquids[sw.liquid].level_m = level;
+                    let profiles = profiles_of(sidecar, &case.name, &liquids, prep.centre.z)?;
+                    let accs = run(&prep, mesh, &profiles);
+                    let total = total_of(&accs);
+                    let l = loads_of(
+                        &prep,
+                        &total,
+                        prep.topology.closed(),
+                        prep.mesh_plane.as_ref(),
+                    );
+                    steps.push(SweepStep {
+                        level,
+                        force: l.force,
+                        moment: l.moment,
+                        uplift: l.uplift,
+                        downthrust: l.downthrust,
+                        wetted_area: l.wetted_area,
+                        submerged_volume: l.submerged_volume,
+                        axis_moments: l.axis_moments,
+                    });
+                }
+                Some(steps)
+            }
+        };
+        let flotation = sidecar.flotation.as_ref().map(|f| {
+            let uplift = loads.vertical_force.max(0.0);
+            let resisting: f64 = f.resisting.iter().map(|(_, v)| v).sum();
+            let factor = (uplift > 0.0).then(|| resisting / uplift);
+            let terms: Vec<String> = f
+                .resisting
+                .iter()
+                .map(|(n, v)| format!("{n} {v:.0} N"))
+                .collect();
+            let formula = match factor {
+                Some(fs) => format!(
+                    "FS = (Σ resisting) / (net uplift) = ({}) / {uplift:.0} N = {resisting:.0} N / {uplift:.0} N = {fs:.3}; required {}",
+                    terms.join(" + "),
+                    f.required_factor
+                ),
+                None => format!(
+                    "net uplift is 0 N (the liquid pushes down or not at all), so flotation cannot occur; resisting {resisting:.0} N"
+                ),
+            };
+            FlotationCheck {
+                uplift,
+                resisting,
+                resisting_terms: f.resisting.iter().cloned().collect(),
+                factor,
+                required_factor: f.required_factor,
+                pass: factor.is_none_or(|fs| fs >= f.required_factor),
+                formula,
+            }
+        });
+        cases.push(CaseResult {
+            name: case.name.clone(),
+            liquids: sidecar
+                .liquids
+                .iter()
+                .zip(&case.liquids)
+                .map(|(n, l)| echo(&n.name, l))
+                .collect(),
+            loads,
+            parts,
+            sweep,
+            flotation,
+        });
+    }
+
+    let (lo, hi) = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+    let (lo, hi) = (lo + prep.centre, hi + prep.centre);
+    let a = prep.frame.vector_out(lo);
+    let b = prep.frame.vector_out(hi);
+    let bounding_box = [
+        [a[0].min(b[0]), a[1].min(b[1]), a[2].min(b[2])],
+        [a[0].max(b[0]), a[1].max(b[1]), a[2].max(b[2])],
+    ];
+    let result = MeshResult {
+        schema: SCHEMA,
+        mesh: mesh_name.to_owned(),
+        inputs: Inputs {
+            format: mesh.format.as_str(),
+            units: sidecar.units.as_str(),
+            up: sidecar.up.as_str(),
+            gravity: sidecar.gravity_m_s2,
+            wet_side: sidecar.wet_side.map(WetSide::as_str),
+            closed: prep.topology.closed(),
+            facets: mesh.facets.len(),
+            shells: prep.topology.shells.len(),
+            parts: mesh
+                .parts
+                .iter()
+                .zip(&prep.part_setup)
+                .zip(&prep.part_closed)
+                .map(|((p, (liquid, side)), closed)| PartInputs {
+                    name: p.name.clone(),
+                    facets: p.facets.len(),
+                    liquid: liquid.map(|i| sidecar.liquids[i].name.clone()),
+                    wet_side: side.as_str(),
+                    closed: *closed,
+                })
+                .collect(),
+            bounding_box,
+        },
+        cases,
+        warnings,
+        caution: CAUTION,
+    };
+    check_finite(&result)?;
+    Ok(result)
+}
+
+fn echo(name: &str, l: &Liquid) -> LiquidEcho {
+    LiquidEcho {
+        name: name.to_owned(),
+        level: l.level_m,
+        surface_pressure: l.surface_pressure_pa,
+        layers: l
+            .layers
+            .iter()
+            .map(|y| (y.density_kg_m3, y.down_to_m))
+            .collect(),
+    }
+}
+
+fn profiles(
+    sidecar: &Sidecar,
+    case: &str,
+    liquids: &[Liquid],
+    origin_z: f64,
+) -> Result<Vec<Profile>, ComputeError> {
+    profiles_of(sidecar, case, liquids, origin_z)
+}
+
+/// The liquids of a case as profiles in the local frame (elevations relative to the
+/// local origin; levels are given in metres along the up axis, as is the frame's `z`).
+fn profiles_of(
+    sidecar: &Sidecar,
+    case: &str,
+    liquids: &[Liquid],
+    origin_z: f64,
+) -> Result<Vec<Profile>, ComputeError> {
+    liquids
+        .iter()
+        .zip(&sidecar.liquids)
+        .map(|(l, n)| {
+            Profile::new(l, sidecar.gravity_m_s2)
+                .map(|p| p.shifted(origin_z))
+                .map_err(|source| ComputeError::Liquid {
+                    case: case.to_owned(),
+                    liquid: n.name.clone(),
+                    source,
+                })
+        })
+        .collect()
+}
+
+fn prepare(
+    mesh: &Mesh,
+    sidecar: &Sidecar,
+    warnings: &mut Vec<String>,
+) -> Result<Prepared, ComputeError> {
+    let frame = Frame {
+        scale_m: sidecar.units.metres(),
+        up: sidecar.up,
+    };
+    let mut lo = [f64::INFINITY; 3];
+    let mut hi = [f64::NEG_INFINITY; 3];
+    for t in &mesh.facets {
+        for p in t {
+            for k in 0..3 {
+                lo[k] = lo[k].min(p[k]);
+                hi[k] = hi[k].max(p[k]);
+            }
+        }
+    }
+    let mid = [
+        (lo[0] + hi[0]) / 2.0,
+        (lo[1] + hi[1]) / 2.0,
+        (lo[2] + hi[2]) / 2.0,
+    ];
+    let centre = frame.point_in(mid);
+    let tris: Vec<Tri> = mesh
+        .facets
+        .iter()
+        .map(|t| t.map(|p| frame.point_in(p) - centre))
+        .collect();
+    let topology = Topology::build(&tris);
+    let closed = topology.closed();
+
+    // Wet side and liquid of every part.
+    let mut part_setup = Vec::with_capacity(mesh.parts.len());
+    for part in &mesh.parts {
+        let liquid = sidecar.part_liquid(&part.name)?;
+        let stated = sidecar.part_wet_side(&part.name);
+        let side = match (stated, closed) {
+            (Some(WetSide::Outside | WetSide::Inside), false) => {
+                return Err(ComputeError::OpenWithClosedSide {
+                    part: part.name.clone(),
+                    open: topology.open_edges,
+                    non_manifold: topology.non_manifold_edges,
+                });
+            }
+            (Some(s), _) => s,
+            (None, true) => WetSide::Outside,
+            (None, false) => {
+                return Err(ComputeError::OpenWithoutSide {
+                    part: part.name.clone(),
+                    open: topology.open_edges,
+                    non_manifold: topology.non_manifold_edges,
+                });
+            }
+        };
+        part_setup.push((liquid, side));
+    }
+
+    // Volumes follow the mesh-level reading: the liquid's space for "inside", else the body.
+    let volume_inside = sidecar.wet_side == Some(WetSide::Inside);
+    let mut wetting = vec![Wetting::Dry; tris.len()];
+    let mut vol_sign = vec![0i8; tris.len()];
+    let outward = |f: usize| {
+        if topology.flip[f] {
+            Wetting::Back
+        } else {
+            Wetting::Front
+        }
+    };
+    let inward = |f: usize| {
+        if topology.flip[f] {
+            Wetting::Front
+        } else {
+            Wetting::Back
+        }
+    };
+    for (part, (liquid, side)) in mesh.parts.iter().zip(&part_setup) {
+        for f in part.facets.clone() {
+            let s = topology.facet_shell[f];
+            let shell = (s != NO_SHELL).then(|| &topology.shells[s as usize]);
+            if closed && let Some(sh) = shell {
+                let counts = if volume_inside {
+                    sh.children == 0
+                } else {
+                    sh.depth == 0
+                };
+                if counts {
+                    vol_sign[f] = if topology.flip[f] { -1 } else { 1 };
+                }
+            }
+            if liquid.is_none() {
+                continue;
+            }
+            wetting[f] = match side {
+                WetSide::Front => Wetting::Front,
+                WetSide::Back => Wetting::Back,
+                WetSide::Outside => match shell {
+                    Some(sh) if sh.depth == 0 => outward(f),
+                    _ => Wetting::Dry,
+                },
+                WetSide::Inside => match shell {
+                    Some(sh) if sh.children == 0 => inward(f),
+                    _ => Wetting::Dry,
+                },
+            };
+        }
+    }
+
+    let part_closed: Vec<bool> = mesh
+        .parts
+        .iter()
+        .map(|p| closed && topology.closed_within(p.facets.clone()))
+        .collect();
+    let part_plane = mesh
+        .parts
+        .iter()
+        .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
+        .collect();
+    let mesh_plane = hydro::plane_of(tris.iter());
+
+    describe_topology(&topology, &part_setup, closed, warnings);
+    units_hint(sidecar, &lo, &hi, warnings);
+
+    let axes = sidecar
+        .axes
+        .iter()
+        .map(|a| {
+            (
+                a.name.clone(),
+                frame.vector_in(a.point_m),
+                frame.vector_in(a.direction),
+            )
+        })
+        .collect();
+    Ok(Prepared {
+        frame,
+        centre,
+        tris,
+        moment_about: frame.vector_in(sidecar.moment_about_m),
+        topology,
+        part_setup,
+        wetting,
+        vol_sign,
+        part_closed,
+        part_plane,
+        mesh_plane,
+        axes,
+    })
+}
+
+fn describe_topology(
+    t: &Topology,
+    setup: &[(Option<usize>, WetSide)],
+    closed: bool,
+    w: &mut Vec<String>,
+) {
+    let uses_shells = setup
+        .iter()
+        .any(|(_, s)| matches!(s, WetSide::Outside | WetSide::Inside));
+    if uses_shells {
+        let flipped: usize = t.shells.iter().map(|s| s.flipped_facets).sum();
+        let inverted = t.shells.iter().filter(|s| s.inverted).count();
+        if inverted > 0 {
+            w.push(format!(
+                "{inverted} closed shell(s) were wound inward as stored; they were turned outward for the computation (the file is unchanged)"
+            ));
+        }
+        if flipped > 0 {
+            w.push(format!(
+                "winding repaired: {flipped} facet(s) are read reversed so that every closed shell is consistently wound and faces outward"
+            ));
+        }
+    } else if !closed && setup.iter().any(|(l, _)| l.is_some()) {
+        let side = setup
+            .iter()
+            .find(|(l, _)| l.is_some())
+            .map_or("front", |(_, s)| s.as_str());
+        w.push(format!(
+            "open surface: the liquid is taken on the \"{side}\" side, i.e. the side {} the right-hand-rule normals (vertex order) point to; if the loads act the wrong way, set \"wet_side\": \"{}\"",
+            if side == "front" { "that" } else { "opposite to the one" },
+            if side == "front" { "back" } else { "front" }
+        ));
+        if t.inconsistent_edges > 0 {
+            w.push(format!(
+                "{} edge(s) join facets wound in opposite senses: with front/back the winding is used as stored, so parts of the surface may be loaded from the wrong side; fix the export or close the mesh",
+                t.inconsistent_edges
+            ));
+        }
+    }
+    let cavities = t.shells.iter().filter(|s| s.closed && s.depth > 0).count();
+    if closed && cavities > 0 {
+        w.push(format!(
+            "{cavities} closed shell(s) lie sealed inside another: with \"outside\" they are dry cavities and their volume belongs to the enclosing body"
+        ));
+    }
+    if t.degenerate_facets > 0 {
+        w.push(format!(
+            "{} degenerate facet(s) (a repeated vertex within the weld tolerance) were ignored for topology",
+            t.degenerate_facets
+        ));
+    }
+    if t.duplicate_facets > 0 {
+        w.push(format!(
+            "{} duplicate facet(s): each carries load again, so the loads on them are counted twice",
+            t.duplicate_facets
+        ));
+    }
+    if !closed && t.non_manifold_edges > 0 {
+        w.push(format!(
+            "{} non-manifold edge(s) (shared by more than two facets)",
+            t.non_manifold_edges
+        ));
+    }
+}
+
+/// Warns when the mesh's size in metres suggests a different unit was meant.
+fn units_hint(sidecar: &Sidecar, lo: &[f64; 3], hi: &[f64; 3], w: &mut Vec<String>) {
+    let extent = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max) * sidecar.units.metres();
+    let unit = sidecar.units.as_str();
+    if extent > 2000.0 {
+        let likely = if unit == "m" { "mm" } else { "a smaller unit" };
+        w.push(format!(
+            "the mesh is {:.0} m across in \"{unit}\": for a hydraulic structure that is implausibly large; is \"units\" really \"{unit}\"? (perhaps \"{likely}\")",
+            extent
+        ));
+    } else if extent > 0.0 && extent < 0.05 {
+        let likely = if unit == "mm" { "m" } else { "a larger unit" };
+        w.push(format!(
+            "the mesh is {:.4} m across in \"{unit}\": for a hydraulic structure that is implausibly small; is \"units\" really \"{unit}\"? (perhaps \"{likely}\")",
+            extent
+        ));
+    }
+}
+
+fn run(prep: &Prepared, mesh: &Mesh, profiles: &[Profile]) -> Vec<PartAccum> {
+    let closed = prep.topology.closed();
+    let inputs: Vec<PartInput<'_>> = mesh
+        .parts
+        .iter()
+        .zip(&prep.part_setup)
+        .map(|(p, (liquid, _))| {
+            let profile = liquid.map(|i| &profiles[i]);
+            // Volumes are measured below the part's own liquid, or the first liquid's.
+            let level = profile.unwrap_or(&profiles[0]).level();
+            PartInput {
+                facets: p.facets.clone(),
+                profile,
+                volume_level: closed.then_some(level),
+            }
+        })
+        .collect();
+    hydro::integrate(&prep.tris, &inputs, &prep.wetting, &prep.vol_sign)
+}
+
+fn total_of(accs: &[PartAccum]) -> PartAccum {
+    accs.iter().fold(PartAccum::default(), |a, b| a.merge(b))
+}
+
+fn assemble(prep: &Prepared, mesh: &Mesh, accs: &[PartAccum]) -> (Loads, Vec<PartResult>) {
+    let total = total_of(accs);
+    let loads = loads_of(
+        prep,
+        &total,
+        prep.topology.closed(),
+        prep.mesh_plane.as_ref(),
+    );
+    let parts = mesh
+        .parts
+        .iter()
+        .enumerate()
+        .map(|(i, p)| PartResult {
+            name: p.name.clone(),
+            loads: loads_of(
+                prep,
+                &accs[i],
+                prep.part_closed[i],
+                prep.part_plane[i].as_ref(),
+            ),
+        })
+        .collect();
+    (loads, parts)
+}
+
+/// Turns local sums into the result fields, in mesh axes.
+fn loads_of(
+    prep: &Prepared,
+    acc: &PartAccum,
+    volumes: bool,
+    plane: Option<&hydro::Plane>,
+) -> Loads {
+    let c = prep.centre;
+    let o = prep.moment_about;
+    // Moment about the requested point: M_O = M_c + (c − O) × F.
+    let m_o = acc.moment + (c - o).cross(&acc.force);
+    let line = hydro::line_of_action(acc.force, m_o, o, acc.abs_force);
+    let out = |v: Vec3| prep.frame.vector_out(v);
+    let centre_of_pressure = match (plane, &line) {
+        (Some(pl), Some(l)) => {
+            let shifted = hydro::Plane {
+                point: pl.point + c,
+                normal: pl.normal,
+            };
+            shifted.meet(l).map(out)
+        }
+        _ => None,
+    };
+    let (submerged_volume, centre_of_buoyancy) = if volumes {
+        let v = acc.volume;
+        let cob = (v.abs() > 0.0).then(|| out(c + acc.volume_moment / v));
+        (Some(v), cob)
+    } else {
+        (None, None)
+    };
+    let axis_moments = prep
+        .axes
+        .iter()
+        .map(|(name, p, d)| {
+            let m_p = m_o + (o - p).cross(&acc.force);
+            let miss = line.as_ref().map(|l| line_distance(l, *p, *d));
+            (
+                name.clone(),
+                AxisMoment {
+                    moment: m_p.dot(d),
+                    miss_distance: miss,
+                },
+            )
+        })
+        .collect();
+    Loads {
+        force: out(acc.force),
+        moment: out(m_o),
+        moment_about: out(o),
+        wetted_area: acc.wetted_area,
+        uplift: acc.uplift,
+        downthrust: acc.downthrust,
+        submerged_volume,
+        centre_of_buoyancy,
+        line_of_action: line.map(|l| LineOut {
+            point: out(l.point),
+            direction: out(l.direction),
+            couple: l.couple,
+        }),
+        centre_of_pressure,
+        horizontal_force: acc.force.xy().norm(),
+        vertical_force: acc.force.z,
+        max_pressure: if acc.max_pressure.is_finite() {
+            acc.max_pressure
+        } else {
+            0.0
+        },
+        axis_moments,
+    }
+}
+
+/// Shortest distance between the line of action and the axis through `p` along `d`.
+fn line_distance(l: &LineOfAction, p: Vec3, d: Vec3) -> f64 {
+    let w = p - l.point;
+    let n = l.direction.cross(&d);
+    let nn = n.norm();
+    if nn < 1e-12 {
+        w.cross(&l.direction).norm()
+    } else {
+        (w.dot(&n) / nn).abs()
+    }
+}
+
+fn check_finite(r: &MeshResult) -> Result<(), ComputeError> {
+    // serde_json writes NaN and ±∞ as null, where they would hide among the real nulls.
+    let bad = |x: f64| !x.is_finite();
+    for c in &r.cases {
+        let sets = std::iter::once(("the whole mesh", &c.loads))
+            .chain(c.parts.iter().map(|p| (p.name.as_str(), &p.loads)));
+        for (who, l) in sets {
+            let scalars = [l.wetted_area, l.uplift, l.downthrust, l.max_pressure];
+            if l.force
+                .iter()
+                .chain(&l.moment)
+                .chain(&scalars)
+                .any(|&x| bad(x))
+                || l.submerged_volume.is_some_and(bad)
+            {
+                return Err(ComputeError::NonFinite {
+                    what: format!("case \"{}\", {who}", c.name),
+                });
+            }
+        }
+    }
+    Ok(())
+}

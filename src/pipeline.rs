@@ -1,0 +1,147 @@
+//! One recomputation: read a mesh and its sidecar, compute, write the result file.
+//!
+//! `calc`, `watch --once` and the watcher all call [`calc_file`]; the watcher adds only
+//! events and state. This is the only layer that reads inputs and writes results.
+
+use std::fs;
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
+
+use thiserror::Error;
+
+use crate::compute::{self, ComputeError, MeshResult};
+use crate::mesh::{self, MeshError};
+use crate::report;
+use crate::sidecar::{self, SidecarError};
+
+/// Name of the folder, beside the meshes, that receives every output.
+pub const RESULTS_DIR: &str = "results";
+
+/// Why one mesh could not be computed. Every message names the file.
+#[derive(Debug, Error)]
+pub enum RunError {
+    #[error("cannot read {}: {source}", path.display())]
+    Read { path: PathBuf, source: io::Error },
+    #[error(transparent)]
+    Mesh(#[from] MeshError),
+    #[error(transparent)]
+    Sidecar(#[from] SidecarError),
+    #[error(
+        "{}: no sidecar {} beside it; create it with at least {{\"units\": \"mm\", \"liquid\": {{\"level\": 5.0, \"density\": 1000}}}}",
+        mesh.display(),
+        sidecar.display()
+    )]
+    NoSidecar { mesh: PathBuf, sidecar: PathBuf },
+    #[error("{} (with {}): {source}", mesh.display(), sidecar.display())]
+    Compute {
+        mesh: PathBuf,
+        sidecar: PathBuf,
+        source: Box<ComputeError>,
+    },
+    #[error("cannot write {}: {source}", path.display())]
+    Write { path: PathBuf, source: io::Error },
+}
+
+/// The sidecar of a mesh: `<stem>.json` beside it.
+pub fn sidecar_path(mesh: &Path) -> PathBuf {
+    mesh.with_extension("json")
+}
+
+/// The results folder of a mesh: `results/` beside it.
+pub fn results_dir(mesh: &Path) -> PathBuf {
+    mesh.parent()
+        .map_or_else(|| PathBuf::from(RESULTS_DIR), |d| d.join(RESULTS_DIR))
+}
+
+/// The file stem of a path as text (lossy for names that are not UTF-8).
+pub fn stem(path: &Path) -> String {
+    path.file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default()
+}
+
+/// The inputs of one computation as read from disk.
+pub struct Inputs {
+    pub mesh_bytes: Vec<u8>,
+    pub sidecar_text: String,
+}
+
+/// Reads a mesh and its sidecar.
+pub fn read_inputs(mesh_path: &Path) -> Result<Inputs, RunError> {
+    let mesh_bytes = fs::read(mesh_path).map_err(|source| RunError::Read {
+        path: mesh_path.to_owned(),
+        source,
+    })?;
+    let side = sidecar_path(mesh_path);
+    let sidecar_text = match fs::read(&side) {
+        Ok(bytes) => String::from_utf8(bytes).map_err(|e| RunError::Read {
+            path: side.clone(),
+            source: io::Error::new(
+                io::ErrorKind::InvalidData,
+                format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
+            ),
+        })?,
+        Err(e) if e.kind() == io::ErrorKind::NotFound => {
+            return Err(RunError::NoSidecar {
+                mesh: mesh_path.to_owned(),
+                sidecar: side,
+            });
+        }
+        Err(source) => return Err(RunError::Read { path: side, source }),
+    };
+    Ok(Inputs {
+        mesh_bytes,
+        sidecar_text,
+    })
+}
+
+/// Parses and computes inputs already read (no file system access).
+pub fn compute_inputs(mesh_path: &Path, inputs: &Inputs) -> Result<MeshResult, RunError> {
+    let side = sidecar_path(mesh_path);
+    let sidecar = sidecar::parse_sidecar(&side, &inputs.sidecar_text)?;
+    let mesh = mesh::read_mesh(mesh_path, &inputs.mesh_bytes)?;
+    let name = mesh_path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    compute::compute(&name, &mesh, &sidecar).map_err(|source| RunError::Compute {
+        mesh: mesh_path.to_owned(),
+        sidecar: side,
+        source: Box::new(source),
+    })
+}
+
+/// Reads, computes and writes `results/<stem>.json`; returns the result.
+pub fn calc_file(mesh_path: &Path) -> Result<MeshResult, RunError> {
+    let inputs = read_inputs(mesh_path)?;
+    let result = compute_inputs(mesh_path, &inputs)?;
+    let dir = results_dir(mesh_path);
+    let out = dir.join(format!("{}.json", stem(mesh_path)));
+    write_atomic(&out, &report::json::render(&result))?;
+    Ok(result)
+}
+
+/// Writes `bytes` to `path` so that readers see the old file or the new one, never a
+/// part: a temporary file in the same folder, flushed to disk, renamed over the target,
+/// then the folder flushed. Creates the folder if needed.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), RunError> {
+    let err = |source| RunError::Write {
+        path: path.to_owned(),
+        source,
+    };
+    let dir = path.parent().unwrap_or(Path::new("."));
+    fs::create_dir_all(dir).map_err(err)?;
+    let mut tmp = tempfile::Builder::new()
+        .prefix(".wetload-")
+        .suffix(".tmp")
+        .tempfile_in(dir)
+        .map_err(err)?;
+    tmp.write_all(bytes).map_err(err)?;
+    tmp.as_file().sync_all().map_err(err)?;
+    tmp.persist(path).map_err(|e| err(e.error))?;
+    // Make the rename itself durable; a folder that cannot be opened for this is no error.
+    if let Ok(d) = fs::File::open(dir) {
+        let _ = d.sync_all();
+    }
+    Ok(())
+}

@@ -1,0 +1,5 @@
+//! Writers: each renders a result into bytes, with no file system access; the pipeline
+//! writes the bytes atomically. One file per format.
+
+pub mod json;
+pub mod summary;
