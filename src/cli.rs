@@ -17,6 +17,30 @@ pub enum Command {
     /// Compute the loads of one or more meshes once, write results/<stem>.json beside
     /// each, and print a summary.
     Calc(CalcArgs),
+    /// Compute every mesh in a folder, then recompute whenever a mesh or its sidecar is
+    /// saved, until interrupted (Ctrl-C). Results and the change log go to DIR/results/.
+    Watch(WatchArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct WatchArgs {
+    /// The folder the CAD tool exports meshes into.
+    #[arg(value_name = "DIR")]
+    pub dir: PathBuf,
+    /// Compute everything once and exit (status 1 if any mesh failed).
+    #[arg(long)]
+    pub once: bool,
+    /// Quiet time after the last file event before a mesh is computed, in ms. Raise it
+    /// (1000–2000) for exporters that write large files in bursts.
+    #[arg(long, value_name = "MS", default_value_t = 500)]
+    pub debounce_ms: u64,
+    /// Poll the folder every MS milliseconds instead of using file-system events (for
+    /// network drives, which deliver no events).
+    #[arg(long, value_name = "MS")]
+    pub poll_ms: Option<u64>,
+    /// Show every force and moment component and every warning.
+    #[arg(long, short)]
+    pub verbose: bool,
 }
 
 #[derive(Debug, clap::Args)]

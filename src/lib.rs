@@ -11,11 +11,12 @@ pub mod pipeline;
 pub mod report;
 pub mod shapes;
 pub mod sidecar;
+pub mod watch;
 
 use std::io::Write;
 use std::process::ExitCode;
 
-use crate::cli::{CalcArgs, Cli, Command};
+use crate::cli::{CalcArgs, Cli, Command, WatchArgs};
 use crate::report::summary::{self, SummaryOptions};
 
 /// Runs a parsed command line; returns the exit status (0 success, 1 an input could not
@@ -23,6 +24,39 @@ use crate::report::summary::{self, SummaryOptions};
 pub fn run(cli: Cli) -> ExitCode {
     match cli.command {
         Command::Calc(args) => calc(&args),
+        Command::Watch(args) => watch(&args),
+    }
+}
+
+fn watch(args: &WatchArgs) -> ExitCode {
+    let mut opts = watch::WatchOptions::new(args.dir.clone());
+    opts.once = args.once;
+    opts.debounce = std::time::Duration::from_millis(args.debounce_ms);
+    opts.poll = args.poll_ms.map(std::time::Duration::from_millis);
+    opts.verbose = args.verbose;
+    let stop = std::sync::Arc::new(std::sync::atomic::AtomicBool::new(false));
+    let flag = stop.clone();
+    if let Err(e) =
+        ctrlc::set_handler(move || flag.store(true, std::sync::atomic::Ordering::SeqCst))
+    {
+        eprintln!("note: Ctrl-C handler not installed ({e}); stop with a signal");
+    }
+    match watch::run(&opts, stop, Box::new(std::io::stdout())) {
+        Ok(outcome) => {
+            if !args.once {
+                println!("stopped");
+            }
+            println!("\n{}", summary::caution_text(compute::CAUTION));
+            if outcome.failures > 0 {
+                ExitCode::from(1)
+            } else {
+                ExitCode::SUCCESS
+            }
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(1)
+        }
     }
 }
 

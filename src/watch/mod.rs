@@ -1,0 +1,527 @@
+//! `wetload watch DIR`: compute every mesh in a folder, then recompute on every save.
+//!
+//! The watcher adds only events and state to [`crate::pipeline`]: it watches the folder
+//! itself (not each file: an atomic replace silently ends a per-file watch), non-recursively
+//! (so the tool's own `results/` never triggers anything), reacts only to write-type
+//! events (the tool's own reads fire access events too), holds each touched path in a
+//! [`Schedule`] until it has been quiet for the debounce window, skips content it has
+//! already computed (BLAKE3 of mesh and sidecar bytes), and rescans when notify says
+//! events were lost.
+//!
+//! A broken input never replaces a result: the last good result is kept and marked
+//! `stale` with the reason, the change log records `failed`, and the watcher goes on.
+//! A file that is still being written (its size changes while it is read, or it fails to
+//! parse right after a save) is retried after another quiet window before it counts as
+//! broken. Only a folder that cannot be watched, or a change log that cannot be written,
+//! ends the watcher.
+//!
+//! Symbolic links: the folder is listed as it is; a link to a mesh elsewhere is read, but
+//! results are only ever written inside `DIR/results/`.
+
+pub mod changelog;
+pub mod record;
+pub mod schedule;
+
+use std::collections::{BTreeMap, BTreeSet};
+use std::fs;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::mpsc;
+use std::time::{Duration, Instant, SystemTime};
+
+use notify::event::{AccessKind, AccessMode, EventKind, ModifyKind};
+use notify::{RecursiveMode, Watcher};
+use serde_json::{Value, json};
+use thiserror::Error;
+
+use crate::pipeline::{self, RESULTS_DIR, RunError};
+use changelog::{ChangeLog, LogError};
+pub use schedule::Schedule;
+
+/// Settings of a watch run.
+#[derive(Clone, Debug)]
+pub struct WatchOptions {
+    /// The folder with meshes and sidecars.
+    pub dir: PathBuf,
+    /// How long a file must be quiet before it is computed.
+    pub debounce: Duration,
+    /// Compute everything once and return.
+    pub once: bool,
+    /// Poll the folder at this interval instead of using OS events (network drives).
+    pub poll: Option<Duration>,
+    /// Print every component and every warning.
+    pub verbose: bool,
+    /// How many times a file that looks half-written is retried before it counts as broken.
+    pub retries: u32,
+}
+
+impl WatchOptions {
+    /// Defaults: 500 ms debounce, OS events, 2 retries.
+    pub fn new(dir: PathBuf) -> WatchOptions {
+        WatchOptions {
+            dir,
+            debounce: Duration::from_millis(500),
+            once: false,
+            poll: None,
+            verbose: false,
+            retries: 2,
+        }
+    }
+}
+
+/// What ends a watcher (everything else is reported and survived).
+#[derive(Debug, Error)]
+pub enum WatchError {
+    #[error("{} is not a folder that can be read: {source}", dir.display())]
+    Folder {
+        dir: PathBuf,
+        source: std::io::Error,
+    },
+    #[error("cannot watch {}: {source}", dir.display())]
+    Notify { dir: PathBuf, source: notify::Error },
+    #[error(transparent)]
+    Log(#[from] LogError),
+}
+
+/// How a run ended: whether every mesh computed in the last pass (for `--once`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Outcome {
+    pub failures: usize,
+}
+
+/// Per-mesh state carried between saves.
+#[derive(Debug, Default)]
+struct MeshState {
+    /// Hashes of the last computed mesh and sidecar.
+    hashes: Option<(String, String)>,
+    iteration: u64,
+    /// `cases` of the previous and of the first `computed` line.
+    previous: Option<Value>,
+    baseline: Option<Value>,
+    retries: u32,
+}
+
+struct Watch<'a> {
+    opts: &'a WatchOptions,
+    /// The watched folder, canonical, so event paths compare equal to scanned ones.
+    dir: PathBuf,
+    results: PathBuf,
+    log: ChangeLog,
+    meshes: BTreeMap<PathBuf, MeshState>,
+    out: Box<dyn Write + 'a>,
+}
+
+/// Runs the watcher until `stop` is set (or once, with `opts.once`).
+pub fn run(
+    opts: &WatchOptions,
+    stop: Arc<AtomicBool>,
+    out: Box<dyn Write + '_>,
+) -> Result<Outcome, WatchError> {
+    let folder_err = |source| WatchError::Folder {
+        dir: opts.dir.clone(),
+        source,
+    };
+    let dir = fs::canonicalize(&opts.dir).map_err(folder_err)?;
+    fs::read_dir(&dir).map_err(folder_err)?;
+    let results = dir.join(RESULTS_DIR);
+    let (log, recovered) = ChangeLog::open(&results)?;
+    let mut w = Watch {
+        opts,
+        dir: dir.clone(),
+        results,
+        log,
+        meshes: BTreeMap::new(),
+        out,
+    };
+    for note in &recovered.notes {
+        w.say(&format!("note: {note}\n"));
+    }
+    w.restore(&recovered.lines);
+
+    // Start watching before the first scan, so a save during the scan is not lost.
+    let (tx, rx) = mpsc::channel();
+    let mut watcher: Box<dyn Watcher> = if opts.once {
+        Box::new(notify::NullWatcher)
+    } else if let Some(interval) = opts.poll {
+        let config = notify::Config::default().with_poll_interval(interval);
+        Box::new(
+            notify::PollWatcher::new(tx, config).map_err(|source| WatchError::Notify {
+                dir: dir.clone(),
+                source,
+            })?,
+        )
+    } else {
+        Box::new(
+            notify::recommended_watcher(tx).map_err(|source| WatchError::Notify {
+                dir: dir.clone(),
+                source,
+            })?,
+        )
+    };
+    if !opts.once {
+        watcher
+            .watch(&dir, RecursiveMode::NonRecursive)
+            .map_err(|source| WatchError::Notify {
+                dir: dir.clone(),
+                source,
+            })?;
+    }
+
+    let mut failures = 0;
+    for mesh in scan(&dir) {
+        if !w.process(&mesh, None)? {
+            failures += 1;
+        }
+    }
+    if opts.once {
+        return Ok(Outcome { failures });
+    }
+    w.say(&format!(
+        "watching {} (debounce {} ms); Ctrl-C to stop\n",
+        dir.display(),
+        opts.debounce.as_millis()
+    ));
+
+    let mut schedule = Schedule::new(opts.debounce);
+    while !stop.load(Ordering::SeqCst) {
+        let wait = schedule
+            .next_in(Instant::now())
+            .unwrap_or(Duration::from_millis(200))
+            .min(Duration::from_millis(200));
+        match rx.recv_timeout(wait) {
+            Ok(Ok(event)) => {
+                let now = Instant::now();
+                if event.need_rescan() {
+                    for mesh in scan(&dir) {
+                        schedule.touch(mesh, now);
+                    }
+                }
+                if is_write(&event.kind) {
+                    for p in &event.paths {
+                        for mesh in w.meshes_for(p) {
+                            schedule.touch(mesh, now);
+                        }
+                    }
+                }
+            }
+            Ok(Err(e)) => w.say(&format!("note: file-system event error: {e}; rescanning\n")),
+            Err(mpsc::RecvTimeoutError::Timeout) => {}
+            Err(mpsc::RecvTimeoutError::Disconnected) => break,
+        }
+        for mesh in schedule.due(Instant::now()) {
+            w.process(&mesh, Some(&mut schedule))?;
+        }
+    }
+    drop(watcher);
+    Ok(Outcome { failures: 0 })
+}
+
+/// The meshes in `dir`, sorted (links are listed like files; see the module doc).
+pub fn scan(dir: &Path) -> Vec<PathBuf> {
+    let mut out: Vec<PathBuf> = fs::read_dir(dir)
+        .map(|rd| {
+            rd.filter_map(Result::ok)
+                .map(|e| e.path())
+                .filter(|p| p.is_file() && crate::mesh::is_mesh_path(p) && !is_temp_name(p))
+                .collect()
+        })
+        .unwrap_or_default();
+    out.sort();
+    out
+}
+
+/// Names that editors and exporters use for files in the middle of a save.
+fn is_temp_name(p: &Path) -> bool {
+    let name = p
+        .file_name()
+        .map(|n| n.to_string_lossy())
+        .unwrap_or_default();
+    name.starts_with('.')
+        || name.ends_with('~')
+        || [".tmp", ".part", ".swp", ".bak"]
+            .iter()
+            .any(|s| name.to_ascii_lowercase().ends_with(s))
+}
+
+/// Events that can mean new content (not the tool's own reads).
+fn is_write(kind: &EventKind) -> bool {
+    matches!(
+        kind,
+        EventKind::Create(_)
+            | EventKind::Remove(_)
+            | EventKind::Modify(ModifyKind::Data(_) | ModifyKind::Name(_) | ModifyKind::Any)
+            | EventKind::Access(AccessKind::Close(AccessMode::Write))
+            | EventKind::Any
+    )
+}
+
+fn hash(bytes: &[u8]) -> String {
+    blake3::hash(bytes).to_hex().to_string()
+}
+
+fn now_rfc3339() -> String {
+    jiff::Timestamp::now()
+        .round(jiff::Unit::Millisecond)
+        .map_or_else(|_| jiff::Timestamp::now().to_string(), |t| t.to_string())
+}
+
+fn clock() -> String {
+    jiff::Zoned::now().strftime("%H:%M:%S").to_string()
+}
+
+impl Watch<'_> {
+    fn say(&mut self, text: &str) {
+        let _ = self.out.write_all(text.as_bytes());
+        let _ = self.out.flush();
+    }
+
+    /// Rebuilds per-mesh iteration, previous and baseline from an existing change log.
+    fn restore(&mut self, lines: &[Value]) {
+        for line in lines {
+            let Some(mesh) = line["mesh"].as_str() else {
+                continue;
+            };
+            let path = self.dir.join(mesh);
+            let st = self.meshes.entry(path).or_default();
+            match line["event"].as_str() {
+                Some("computed") => {
+                    st.iteration = line["iteration"].as_u64().unwrap_or(st.iteration + 1);
+                    st.previous = Some(line["cases"].clone());
+                    if st.baseline.is_none() {
+                        st.baseline = Some(line["cases"].clone());
+                    }
+                    if let (Some(m), Some(s)) =
+                        (line["mesh_hash"].as_str(), line["sidecar_hash"].as_str())
+                    {
+                        st.hashes = Some((m.to_owned(), s.to_owned()));
+                    }
+                }
+                Some("removed") => st.hashes = None,
+                _ => {}
+            }
+        }
+    }
+
+    /// The meshes a changed path concerns: itself if it is a mesh, the meshes with its
+    /// stem if it is a sidecar; nothing for anything else.
+    fn meshes_for(&self, p: &Path) -> Vec<PathBuf> {
+        // Only direct children of the folder count: never anything inside results/.
+        if is_temp_name(p) || p.parent() != Some(self.dir.as_path()) {
+            return Vec::new();
+        }
+        if crate::mesh::is_mesh_path(p) {
+            return vec![p.to_owned()];
+        }
+        let is_json = p
+            .extension()
+            .is_some_and(|e| e.eq_ignore_ascii_case("json"));
+        if !is_json {
+            return Vec::new();
+        }
+        let stem = pipeline::stem(p);
+        let mut out: BTreeSet<PathBuf> = scan(&self.dir)
+            .into_iter()
+            .filter(|m| pipeline::stem(m) == stem)
+            .collect();
+        // A mesh that was known but has gone is still worth a look (it will be noted).
+        out.extend(
+            self.meshes
+                .keys()
+                .filter(|m| pipeline::stem(m) == stem)
+                .cloned(),
+        );
+        out.into_iter().collect()
+    }
+
+    /// Computes one mesh and records the outcome; returns false when it failed.
+    /// With a schedule, a file that looks half-written is handed back for a retry.
+    fn process(
+        &mut self,
+        mesh: &Path,
+        schedule: Option<&mut Schedule>,
+    ) -> Result<bool, WatchError> {
+        let name = mesh
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        if !mesh.exists() {
+            let known = self.meshes.get(mesh).is_some_and(|s| s.hashes.is_some());
+            if known {
+                self.meshes.entry(mesh.to_owned()).or_default().hashes = None;
+                self.mark_stale(mesh, "the mesh file was deleted");
+                self.log.append(&json!({
+                    "time": now_rfc3339(), "mesh": name, "event": "removed",
+                }))?;
+                self.say(&format!(
+                    "{} {name} · removed; its last result is kept, marked stale\n",
+                    clock()
+                ));
+            }
+            return Ok(true);
+        }
+        let inputs = match pipeline::read_inputs(mesh) {
+            Ok(i) => i,
+            Err(e) => return self.failed(mesh, &name, &e, schedule),
+        };
+        // A file still growing while we read it is half-written: look again later.
+        let settled = fs::metadata(mesh).is_ok_and(|m| m.len() == inputs.mesh_bytes.len() as u64);
+        if !settled && let Some(s) = schedule {
+            s.retry(mesh.to_owned(), Instant::now());
+            return Ok(true);
+        }
+        let hashes = (
+            hash(&inputs.mesh_bytes),
+            hash(inputs.sidecar_text.as_bytes()),
+        );
+        let st = self.meshes.entry(mesh.to_owned()).or_default();
+        if st.hashes.as_ref() == Some(&hashes) {
+            let iteration = st.iteration;
+            st.retries = 0;
+            self.log.append(&json!({
+                "time": now_rfc3339(), "mesh": name, "event": "unchanged",
+                "iteration": iteration, "mesh_hash": hashes.0, "sidecar_hash": hashes.1,
+            }))?;
+            self.say(&format!(
+                "{} {name} · unchanged (iteration {iteration})\n",
+                clock()
+            ));
+            return Ok(true);
+        }
+        let result = match pipeline::compute_inputs(mesh, &inputs) {
+            Ok(r) => r,
+            Err(e) => return self.failed(mesh, &name, &e, schedule),
+        };
+        let out = self.results.join(format!("{}.json", pipeline::stem(mesh)));
+        if let Err(e) = pipeline::write_atomic(&out, &crate::report::json::render(&result)) {
+            // A full or read-only results folder: say so, keep running, retry on the next save.
+            self.say(&format!("{} {name} · error: {e}\n", clock()));
+            return Ok(false);
+        }
+        let st = self.meshes.entry(mesh.to_owned()).or_default();
+        st.iteration += 1;
+        st.retries = 0;
+        let cases = record::cases_with_changes(&result, st.previous.as_ref(), st.baseline.as_ref());
+        let cases = Value::Array(cases);
+        st.previous = Some(cases.clone());
+        if st.baseline.is_none() {
+            st.baseline = Some(cases.clone());
+        }
+        st.hashes = Some(hashes.clone());
+        let iteration = st.iteration;
+        self.log.append(&json!({
+            "time": now_rfc3339(), "mesh": name, "event": "computed", "iteration": iteration,
+            "mesh_hash": hashes.0, "sidecar_hash": hashes.1, "facets": result.inputs.facets,
+            "warnings": result.warnings.len(), "cases": cases,
+        }))?;
+        let block = record::block(
+            &clock(),
+            &result,
+            iteration,
+            cases.as_array().map_or(&[][..], Vec::as_slice),
+            self.opts.verbose,
+        );
+        self.say(&block);
+        Ok(true)
+    }
+
+    fn failed(
+        &mut self,
+        mesh: &Path,
+        name: &str,
+        e: &RunError,
+        schedule: Option<&mut Schedule>,
+    ) -> Result<bool, WatchError> {
+        let st = self.meshes.entry(mesh.to_owned()).or_default();
+        let fresh = [mesh.to_owned(), pipeline::sidecar_path(mesh)]
+            .iter()
+            .filter_map(|p| fs::metadata(p).and_then(|m| m.modified()).ok())
+            .any(|t| {
+                SystemTime::now().duration_since(t).unwrap_or_default() < 4 * self.opts.debounce
+            });
+        if let Some(s) = schedule
+            && fresh
+            && st.retries < self.opts.retries
+        {
+            st.retries += 1;
+            s.retry(mesh.to_owned(), Instant::now());
+            return Ok(true);
+        }
+        st.retries = 0;
+        // The next good save must compute even if it restores the last good content.
+        st.hashes = None;
+        let message = e.to_string();
+        let kept = self.mark_stale(mesh, &message);
+        self.log.append(&json!({
+            "time": now_rfc3339(), "mesh": name, "event": "failed", "error": message,
+        }))?;
+        let tail = if kept {
+            "the last good result is kept, marked stale"
+        } else {
+            "no result yet"
+        };
+        self.say(&format!(
+            "{} {name} · error: {message}\n  ({tail})\n",
+            clock()
+        ));
+        Ok(false)
+    }
+
+    /// Marks `results/<stem>.json` stale with a reason; returns whether one existed.
+    fn mark_stale(&mut self, mesh: &Path, reason: &str) -> bool {
+        let path = self.results.join(format!("{}.json", pipeline::stem(mesh)));
+        let Ok(bytes) = fs::read(&path) else {
+            return false;
+        };
+        let Ok(mut doc) = serde_json::from_slice::<Value>(&bytes) else {
+            return false;
+        };
+        if let Value::Object(m) = &mut doc {
+            m.insert(
+                "stale".into(),
+                json!({"since": now_rfc3339(), "reason": reason}),
+            );
+        }
+        let mut text = serde_json::to_vec_pretty(&doc).expect("a JSON value always serializes");
+        text.push(b'\n');
+        if let Err(e) = pipeline::write_atomic(&path, &text) {
+            self.say(&format!("note: {e}\n"));
+        }
+        true
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn temporary_names_are_ignored() {
+        for n in [
+            ".gate.stl.swp",
+            "gate.stl~",
+            "gate.stl.tmp",
+            ".wetload-x.tmp",
+            "a.part",
+        ] {
+            assert!(is_temp_name(Path::new(n)), "{n}");
+        }
+        assert!(!is_temp_name(Path::new("gate.stl")));
+    }
+
+    #[test]
+    fn only_write_type_events_count() {
+        use notify::event::CreateKind;
+        assert!(is_write(&EventKind::Create(CreateKind::File)));
+        assert!(is_write(&EventKind::Access(AccessKind::Close(
+            AccessMode::Write
+        ))));
+        assert!(!is_write(&EventKind::Access(AccessKind::Open(
+            AccessMode::Any
+        ))));
+        assert!(!is_write(&EventKind::Access(AccessKind::Close(
+            AccessMode::Read
+        ))));
+    }
+}
