@@ -72,6 +72,24 @@ pub struct Topology {
     pub degenerate_facets: usize,
     /// Facets with the same three vertices as an earlier facet (any order or winding).
     pub duplicate_facets: usize,
+    /// Every finding with the facet it is charged to (an edge's lowest facet), so callers
+    /// can count per part.
+    pub defects: Vec<(Defect, u32)>,
+}
+
+/// A topological finding, charged to one facet.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Defect {
+    /// An edge used by one facet only.
+    OpenEdge,
+    /// An edge used by more than two facets.
+    NonManifoldEdge,
+    /// A manifold edge whose two facets traverse it in the same direction as stored.
+    InconsistentEdge,
+    /// A facet with a repeated vertex after welding.
+    Degenerate,
+    /// A facet with the same three vertices as an earlier one.
+    Duplicate,
 }
 
 impl Topology {
@@ -110,8 +128,16 @@ impl Topology {
             .iter()
             .map(|[a, b, c]| a == b || b == c || a == c)
             .collect();
-        let degenerate_facets = degenerate.iter().filter(|&&d| d).count();
-        let duplicate_facets = count_duplicates(&ids, &degenerate);
+        let mut defects: Vec<(Defect, u32)> = Vec::new();
+        for (f, d) in degenerate.iter().enumerate() {
+            if *d {
+                defects.push((Defect::Degenerate, f as u32));
+            }
+        }
+        let degenerate_facets = defects.len();
+        let duplicates = duplicate_facet_list(&ids, &degenerate);
+        let duplicate_facets = duplicates.len();
+        defects.extend(duplicates.into_iter().map(|f| (Defect::Duplicate, f)));
 
         // Directed edges, grouped by their undirected key.
         let mut edges: Vec<(u64, u32, bool)> = Vec::with_capacity(3 * n);
@@ -143,12 +169,14 @@ impl Topology {
                 1 => {
                     open_edges += 1;
                     bad_facet[group[0].1 as usize] = true;
+                    defects.push((Defect::OpenEdge, group[0].1));
                 }
                 2 => {
                     let (f, g) = (group[0].1, group[1].1);
                     let same = group[0].2 == group[1].2;
                     if same {
                         inconsistent_edges += 1;
+                        defects.push((Defect::InconsistentEdge, group[0].1));
                     }
                     uf.union(f as usize, g as usize);
                     if f == g {
@@ -166,6 +194,7 @@ impl Topology {
                 }
                 _ => {
                     non_manifold_edges += 1;
+                    defects.push((Defect::NonManifoldEdge, group[0].1));
                     for e in group {
                         bad_facet[e.1 as usize] = true;
                         uf.union(group[0].1 as usize, e.1 as usize);
@@ -292,6 +321,7 @@ impl Topology {
             inconsistent_edges,
             degenerate_facets,
             duplicate_facets,
+            defects,
         }
     }
 }
@@ -383,19 +413,24 @@ fn weld(tris: &[Tri], tol: f64, origin: Vec3) -> (Vec<[u32; 3]>, usize) {
     (ids, reps.len())
 }
 
-fn count_duplicates(ids: &[[u32; 3]], degenerate: &[bool]) -> usize {
-    let mut keys: Vec<[u32; 3]> = ids
+/// Facets whose three welded vertices repeat an earlier facet's (any order or winding).
+fn duplicate_facet_list(ids: &[[u32; 3]], degenerate: &[bool]) -> Vec<u32> {
+    let mut keys: Vec<([u32; 3], u32)> = ids
         .iter()
         .zip(degenerate)
-        .filter(|(_, d)| !**d)
-        .map(|(t, _)| {
+        .enumerate()
+        .filter(|(_, (_, d))| !**d)
+        .map(|(f, (t, _))| {
             let mut k = *t;
             k.sort_unstable();
-            k
+            (k, f as u32)
         })
         .collect();
     keys.sort_unstable();
-    keys.windows(2).filter(|w| w[0] == w[1]).count()
+    keys.windows(2)
+        .filter(|w| w[0].0 == w[1].0)
+        .map(|w| w[1].1)
+        .collect()
 }
 
 /// Sets the nesting depth of every closed shell: how many other closed shells enclose it.
@@ -491,5 +526,109 @@ impl UnionFind {
             let (lo, hi) = (ra.min(rb), ra.max(rb));
             self.parent[hi] = lo as u32;
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::shapes;
+
+    fn tris(t: Vec<shapes::Triangle>) -> Vec<Tri> {
+        t.into_iter()
+            .map(|f| f.map(|p| Vec3::new(p[0], p[1], p[2])))
+            .collect()
+    }
+
+    fn unit_box() -> Vec<Tri> {
+        tris(shapes::box_solid([0.0, 0.0, 0.0], [2.0, 3.0, 4.0], 2))
+    }
+
+    #[test]
+    fn a_clean_box_is_one_closed_outward_shell() {
+        let t = Topology::build(&unit_box());
+        assert!(t.closed());
+        assert_eq!(t.shells.len(), 1);
+        assert!(t.defects.is_empty());
+        assert_eq!(t.shells[0].flipped_facets, 0);
+        // Exact polyhedron volume 2 × 3 × 4.
+        assert!((t.shells[0].volume - 24.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_reversed_box_is_turned_outward_and_flagged() {
+        let rev: Vec<Tri> = unit_box().into_iter().map(|[a, b, c]| [a, c, b]).collect();
+        let t = Topology::build(&rev);
+        assert!(t.closed());
+        assert!(t.shells[0].inverted);
+        assert_eq!(t.shells[0].flipped_facets, rev.len());
+        assert!((t.shells[0].volume - 24.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn mixed_winding_is_made_consistent() {
+        let mut m = unit_box();
+        let n = m.len();
+        for (i, f) in m.iter_mut().enumerate() {
+            if i % 3 == 0 {
+                f.swap(1, 2);
+            }
+        }
+        let t = Topology::build(&m);
+        assert!(t.closed());
+        assert_eq!(t.shells[0].flipped_facets, n.div_ceil(3));
+        assert!(t.inconsistent_edges > 0);
+        assert!((t.shells[0].volume - 24.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn defects_are_counted_exactly() {
+        // One facet removed: its three edges become open.
+        let mut m = unit_box();
+        m.pop();
+        let t = Topology::build(&m);
+        assert!(!t.closed());
+        assert_eq!(t.open_edges, 3);
+
+        // One facet doubled: its three edges are used three times, one duplicate.
+        let mut m = unit_box();
+        m.push(m[0]);
+        let t = Topology::build(&m);
+        assert_eq!(t.duplicate_facets, 1);
+        assert_eq!(t.non_manifold_edges, 3);
+        assert!(!t.closed());
+
+        // A sliver whose vertices collapse within the weld tolerance.
+        let mut m = unit_box();
+        let p = m[0][0];
+        m.push([p, p + Vec3::new(1e-12, 0.0, 0.0), Vec3::new(1.0, 1.0, 1.0)]);
+        let t = Topology::build(&m);
+        assert_eq!(t.degenerate_facets, 1);
+        assert!(t.closed(), "a degenerate facet is ignored for topology");
+    }
+
+    #[test]
+    fn float_noise_below_the_tolerance_does_not_open_the_mesh() {
+        let m: Vec<Tri> = unit_box()
+            .into_iter()
+            .enumerate()
+            .map(|(i, f)| f.map(|p| p + Vec3::repeat(if i % 2 == 0 { 1e-13 } else { 0.0 })))
+            .collect();
+        assert!(Topology::build(&m).closed());
+    }
+
+    #[test]
+    fn a_sealed_inner_shell_is_a_cavity() {
+        let mut m = tris(shapes::box_solid([0.0, 0.0, 0.0], [4.0, 4.0, 4.0], 1));
+        m.extend(tris(shapes::box_solid([1.0, 1.0, 1.0], [2.0, 2.0, 2.0], 1)));
+        m.extend(tris(shapes::box_solid([6.0, 0.0, 0.0], [7.0, 1.0, 1.0], 1)));
+        let t = Topology::build(&m);
+        assert!(t.closed());
+        let depths: Vec<u32> = t.shells.iter().map(|s| s.depth).collect();
+        assert_eq!(depths, vec![0, 1, 0]);
+        assert_eq!(t.shells[0].children, 1);
+        assert_eq!(t.shells[2].children, 0);
+        assert!(t.closed_within(0..12));
+        assert!(!t.closed_within(0..11));
     }
 }
