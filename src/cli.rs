@@ -20,6 +20,20 @@ pub enum Command {
     /// Compute every mesh in a folder, then recompute whenever a mesh or its sidecar is
     /// saved, until interrupted (Ctrl-C). Results and the change log go to DIR/results/.
     Watch(WatchArgs),
+    /// Report the health of meshes: shells, open and non-manifold edges, winding,
+    /// degenerate and duplicate facets, stale STL normals. Exit status 0 when every mesh
+    /// is usable as it is, 1 when one is unusable or needs the repairs calc would make.
+    Check(CheckArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct CheckArgs {
+    /// Mesh files (.stl or .obj). A sidecar beside one, if present, gives its units.
+    #[arg(required = true, value_name = "MESH")]
+    pub meshes: Vec<PathBuf>,
+    /// Print the reports as JSON (an array for several meshes).
+    #[arg(long)]
+    pub json: bool,
 }
 
 #[derive(Debug, clap::Args)]

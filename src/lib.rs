@@ -3,6 +3,7 @@
 //! The data walks one way: command line → pipeline → { mesh readers, sidecar } → the pure
 //! core in [`hydro`] → report writers. See DEVELOPERS.md for the architecture map.
 
+pub mod check;
 pub mod cli;
 pub mod compute;
 pub mod hydro;
@@ -16,7 +17,7 @@ pub mod watch;
 use std::io::Write;
 use std::process::ExitCode;
 
-use crate::cli::{CalcArgs, Cli, Command, WatchArgs};
+use crate::cli::{CalcArgs, CheckArgs, Cli, Command, WatchArgs};
 use crate::report::summary::{self, SummaryOptions};
 
 /// Runs a parsed command line; returns the exit status (0 success, 1 an input could not
@@ -25,6 +26,58 @@ pub fn run(cli: Cli) -> ExitCode {
     match cli.command {
         Command::Calc(args) => calc(&args),
         Command::Watch(args) => watch(&args),
+        Command::Check(args) => check_meshes(&args),
+    }
+}
+
+fn check_meshes(args: &CheckArgs) -> ExitCode {
+    let mut reports = Vec::new();
+    let mut ok = true;
+    for path in &args.meshes {
+        let inputs = std::fs::read(path).map_err(|source| pipeline::RunError::Read {
+            path: path.clone(),
+            source,
+        });
+        let mesh = inputs.and_then(|b| mesh::read_mesh(path, &b).map_err(pipeline::RunError::from));
+        let mesh = match mesh {
+            Ok(m) => m,
+            Err(e) => {
+                ok = false;
+                eprintln!("error: {e}");
+                continue;
+            }
+        };
+        let side = pipeline::sidecar_path(path);
+        let scale = std::fs::read_to_string(&side)
+            .ok()
+            .and_then(|t| sidecar::parse_sidecar(&side, &t).ok())
+            .map(|s| s.units.metres());
+        let name = path
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        let h = check::check(&name, &mesh, scale);
+        ok &= h.usable_as_is;
+        if !args.json {
+            print!("{}", check::render(&h));
+        }
+        reports.push(h);
+    }
+    if args.json {
+        let text = if reports.len() == 1 && args.meshes.len() == 1 {
+            serde_json::to_string_pretty(&reports[0])
+        } else {
+            serde_json::to_string_pretty(&reports)
+        };
+        println!(
+            "{}",
+            text.expect("plain structs with string keys always serialize")
+        );
+    }
+    if ok {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(1)
     }
 }
 

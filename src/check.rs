@@ -1,0 +1,249 @@
+//! Mesh health: what `wetload check` reports, per part, about a mesh's topology.
+//!
+//! Pure: a read [`Mesh`] (and the metres per mesh unit, when a sidecar says it) in, a
+//! [`Health`] report out. It runs the same topology as `calc` (weld within 1e-7 of the
+//! bounding-box diagonal, edges, shells, winding, nesting) and counts every finding per
+//! part. It repairs nothing itself; `calc` makes the winding consistent and turns closed
+//! shells outward, and says so in its warnings.
+
+use std::collections::BTreeSet;
+
+use serde::Serialize;
+
+use crate::hydro::{Defect, NO_SHELL, Topology, Tri, Vec3};
+use crate::mesh::Mesh;
+
+/// A stored STL normal counts as stale when it is more than this many degrees from the
+/// normal given by the facet's winding.
+pub const STALE_NORMAL_DEG: f64 = 45.0;
+
+/// The health report of one mesh (`check --json`).
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct Health {
+    pub mesh: String,
+    /// The length unit of `bounding_box`, `surface_area`, `volume`: `"m"` when a sidecar
+    /// gave the mesh's units, else `"file units"`.
+    pub length_unit: String,
+    pub closed: bool,
+    pub parts: Vec<PartHealth>,
+    pub warnings: Vec<String>,
+    /// Whether `calc` can use the mesh as it is (no repair, no defect).
+    #[serde(skip)]
+    pub usable_as_is: bool,
+}
+
+/// Findings for one part.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct PartHealth {
+    pub name: String,
+    pub facets: usize,
+    pub shells: usize,
+    pub closed: bool,
+    pub open_edges: usize,
+    pub non_manifold_edges: usize,
+    pub inconsistent_edges: usize,
+    pub degenerate_facets: usize,
+    pub duplicate_facets: usize,
+    pub inverted_shells: usize,
+    pub stale_normals: usize,
+    /// `[min, max]`, mesh axes.
+    pub bounding_box: [[f64; 3]; 2],
+    pub surface_area: f64,
+    /// Enclosed volume (outer shells minus sealed cavities) when the part is closed by
+    /// itself, else null.
+    pub volume: Option<f64>,
+}
+
+/// Checks `mesh`; `scale` converts mesh units to metres when known.
+pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
+    let s = scale.unwrap_or(1.0);
+    let tris: Vec<Tri> = mesh
+        .facets
+        .iter()
+        .map(|t| t.map(|p| Vec3::new(p[0] * s, p[1] * s, p[2] * s)))
+        .collect();
+    let topo = Topology::build(&tris);
+    let mut parts = Vec::with_capacity(mesh.parts.len());
+    let cos_limit = STALE_NORMAL_DEG.to_radians().cos();
+    for part in &mesh.parts {
+        let range = part.facets.clone();
+        let count = |d: Defect| {
+            topo.defects
+                .iter()
+                .filter(|(k, f)| *k == d && range.contains(&(*f as usize)))
+                .count()
+        };
+        let shells: BTreeSet<u32> = topo.facet_shell[range.clone()]
+            .iter()
+            .copied()
+            .filter(|&s| s != NO_SHELL)
+            .collect();
+        let inverted_shells = shells
+            .iter()
+            .filter(|&&s| topo.shells[s as usize].inverted)
+            .count();
+        let closed = topo.closed_within(range.clone());
+        let volume = closed.then(|| {
+            shells
+                .iter()
+                .map(|&s| {
+                    let sh = &topo.shells[s as usize];
+                    if sh.depth % 2 == 0 {
+                        sh.volume
+                    } else {
+                        -sh.volume
+                    }
+                })
+                .sum()
+        });
+        let mut lo = [f64::INFINITY; 3];
+        let mut hi = [f64::NEG_INFINITY; 3];
+        let mut area = 0.0;
+        let mut stale = 0;
+        for f in range.clone() {
+            let t = &tris[f];
+            for p in t {
+                for k in 0..3 {
+                    lo[k] = lo[k].min(p[k]);
+                    hi[k] = hi[k].max(p[k]);
+                }
+            }
+            let a = (t[1] - t[0]).cross(&(t[2] - t[0]));
+            area += 0.5 * a.norm();
+            if let Some(normals) = &mesh.stored_normals {
+                let n = normals[f];
+                let n = Vec3::new(f64::from(n[0]), f64::from(n[1]), f64::from(n[2]));
+                let (ln, la) = (n.norm(), a.norm());
+                // A zero normal means "not given", a common export choice: not stale.
+                if ln > 0.0 && la > 0.0 && n.dot(&a) < cos_limit * ln * la {
+                    stale += 1;
+                }
+            }
+        }
+        parts.push(PartHealth {
+            name: part.name.clone(),
+            facets: range.len(),
+            shells: shells.len(),
+            closed,
+            open_edges: count(Defect::OpenEdge),
+            non_manifold_edges: count(Defect::NonManifoldEdge),
+            inconsistent_edges: count(Defect::InconsistentEdge),
+            degenerate_facets: count(Defect::Degenerate),
+            duplicate_facets: count(Defect::Duplicate),
+            inverted_shells,
+            stale_normals: stale,
+            bounding_box: [lo, hi],
+            surface_area: area,
+            volume,
+        });
+    }
+
+    let mut warnings = Vec::new();
+    let closed = topo.closed();
+    if !closed {
+        warnings.push(format!(
+            "the mesh is open ({} open edges, {} non-manifold edges): it has no volume, and calc needs \"wet_side\": \"front\" or \"back\" (the side the right-hand-rule normals point to, or the other)",
+            topo.open_edges, topo.non_manifold_edges
+        ));
+    }
+    if topo.inconsistent_edges > 0 {
+        warnings.push(format!(
+            "{} edge(s) join facets wound in opposite senses: calc makes the winding consistent within each closed shell",
+            topo.inconsistent_edges
+        ));
+    }
+    let inverted: usize = parts.iter().map(|p| p.inverted_shells).sum();
+    if inverted > 0 {
+        warnings.push(format!(
+            "{inverted} closed shell(s) are wound inward (negative volume): calc turns them outward"
+        ));
+    }
+    let stale: usize = parts.iter().map(|p| p.stale_normals).sum();
+    if stale > 0 {
+        warnings.push(format!(
+            "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals, but other tools may not"
+        ));
+    }
+    if topo.duplicate_facets > 0 {
+        warnings.push(format!(
+            "{} duplicate facet(s): loads on them would be counted twice",
+            topo.duplicate_facets
+        ));
+    }
+    if topo.degenerate_facets > 0 {
+        warnings.push(format!(
+            "{} degenerate facet(s) (zero or near-zero area)",
+            topo.degenerate_facets
+        ));
+    }
+    let usable_as_is = topo.non_manifold_edges == 0
+        && topo.inconsistent_edges == 0
+        && inverted == 0
+        && topo.duplicate_facets == 0
+        && topo.degenerate_facets == 0
+        && !tris.is_empty();
+    Health {
+        mesh: name.to_owned(),
+        length_unit: if scale.is_some() { "m" } else { "file units" }.to_owned(),
+        closed,
+        parts,
+        warnings,
+        usable_as_is,
+    }
+}
+
+/// The health report as text for the terminal.
+pub fn render(h: &Health) -> String {
+    use std::fmt::Write;
+    let mut s = String::new();
+    let verdict = if h.usable_as_is {
+        "usable as it is"
+    } else {
+        "needs attention"
+    };
+    let _ = writeln!(
+        s,
+        "{} · {} · {} ({})",
+        h.mesh,
+        if h.closed { "closed" } else { "open" },
+        verdict,
+        h.length_unit
+    );
+    for p in &h.parts {
+        let _ = writeln!(
+            s,
+            "  part {}: {} facets, {} shell(s), {}",
+            p.name,
+            p.facets,
+            p.shells,
+            if p.closed { "closed" } else { "open" }
+        );
+        let _ = writeln!(
+            s,
+            "    open edges {}, non-manifold {}, inconsistent {}, degenerate {}, duplicate {}, inverted shells {}, stale normals {}",
+            p.open_edges,
+            p.non_manifold_edges,
+            p.inconsistent_edges,
+            p.degenerate_facets,
+            p.duplicate_facets,
+            p.inverted_shells,
+            p.stale_normals
+        );
+        let [lo, hi] = p.bounding_box;
+        let vol = p
+            .volume
+            .map_or_else(|| "—".to_owned(), |v| format!("{v:.6}"));
+        let _ = writeln!(
+            s,
+            "    size {:.4} × {:.4} × {:.4}, surface area {:.6}, volume {vol}",
+            hi[0] - lo[0],
+            hi[1] - lo[1],
+            hi[2] - lo[2],
+            p.surface_area
+        );
+    }
+    for w in &h.warnings {
+        let _ = writeln!(s, "  warning: {w}");
+    }
+    s
+}
