@@ -88,7 +88,7 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
                 .iter()
                 .map(|&s| {
                     let sh = &topo.shells[s as usize];
-                    if sh.depth % 2 == 0 {
+                    if sh.depth.is_multiple_of(2) {
                         sh.volume
                     } else {
                         -sh.volume
