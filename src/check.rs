@@ -247,3 +247,108 @@ pub fn render(h: &Health) -> String {
     }
     s
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::mesh::{Format, Part};
+    use crate::shapes;
+
+    fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>, normals: bool) -> Mesh {
+        let mut facets = Vec::new();
+        let mut out = Vec::new();
+        for (name, t) in parts {
+            let start = facets.len();
+            facets.extend(t);
+            out.push(Part {
+                name: name.to_owned(),
+                facets: start..facets.len(),
+            });
+        }
+        let stored_normals = normals.then(|| {
+            facets
+                .iter()
+                .map(|t: &[[f64; 3]; 3]| {
+                    let u = [t[1][0] - t[0][0], t[1][1] - t[0][1], t[1][2] - t[0][2]];
+                    let v = [t[2][0] - t[0][0], t[2][1] - t[0][1], t[2][2] - t[0][2]];
+                    [
+                        (u[1] * v[2] - u[2] * v[1]) as f32,
+                        (u[2] * v[0] - u[0] * v[2]) as f32,
+                        (u[0] * v[1] - u[1] * v[0]) as f32,
+                    ]
+                })
+                .collect()
+        });
+        Mesh {
+            facets,
+            parts: out,
+            stored_normals,
+            format: Format::StlAscii,
+        }
+    }
+
+    fn cube(at: f64) -> Vec<shapes::Triangle> {
+        shapes::box_solid([at, 0.0, 0.0], [at + 1.0, 1.0, 1.0], 1)
+    }
+
+    #[test]
+    fn a_clean_cube_is_usable_as_it_is() {
+        let h = check("c.stl", &mesh(vec![("c", cube(0.0))], true), Some(1.0));
+        assert!(h.usable_as_is && h.closed);
+        let p = &h.parts[0];
+        assert_eq!((p.shells, p.open_edges, p.stale_normals), (1, 0, 0));
+        assert!((p.surface_area - 6.0).abs() < 1e-12);
+        assert!((p.volume.expect("closed") - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn each_defect_is_counted_in_its_part() {
+        // Part a: one facet missing (3 open edges). Part b: one facet reversed (3
+        // inconsistent edges) and its stored normal left as it was (1 stale normal).
+        // Part c: a duplicated facet (1 duplicate, 3 non-manifold edges).
+        let mut a = cube(0.0);
+        a.pop();
+        let mut m = mesh(vec![("a", a), ("b", cube(3.0)), ("c", cube(6.0))], true);
+        let b0 = m.parts[1].facets.start;
+        m.facets[b0].swap(1, 2);
+        let c0 = m.parts[2].facets.start;
+        let dup = m.facets[c0];
+        m.facets.push(dup);
+        if let Some(n) = m.stored_normals.as_mut() {
+            n.push(n[c0]);
+        }
+        m.parts[2].facets.end += 1;
+        let h = check("m.stl", &m, None);
+        assert!(!h.usable_as_is && !h.closed);
+        let counts: Vec<[usize; 6]> = h
+            .parts
+            .iter()
+            .map(|p| {
+                [
+                    p.open_edges,
+                    p.inconsistent_edges,
+                    p.stale_normals,
+                    p.duplicate_facets,
+                    p.non_manifold_edges,
+                    usize::from(p.closed),
+                ]
+            })
+            .collect();
+        assert_eq!(
+            counts,
+            vec![[3, 0, 0, 0, 0, 0], [0, 3, 1, 0, 0, 1], [0, 0, 0, 1, 3, 0]]
+        );
+        assert_eq!(h.length_unit, "file units");
+    }
+
+    #[test]
+    fn an_inward_cube_is_flagged() {
+        let h = check(
+            "i.stl",
+            &mesh(vec![("i", shapes::reverse_winding(&cube(0.0)))], false),
+            None,
+        );
+        assert_eq!(h.parts[0].inverted_shells, 1);
+        assert!(!h.usable_as_is);
+    }
+}

@@ -800,3 +800,175 @@ fn check_finite(r: &MeshResult) -> Result<(), ComputeError> {
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::mesh::{Format, Part};
+    use crate::shapes;
+    use crate::sidecar::parse_sidecar;
+    use approx::assert_relative_eq;
+    use std::path::Path;
+
+    const G: f64 = 9.80665;
+
+    fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>) -> Mesh {
+        let mut facets = Vec::new();
+        let mut out = Vec::new();
+        for (name, t) in parts {
+            let start = facets.len();
+            facets.extend(t);
+            out.push(Part {
+                name: name.to_owned(),
+                facets: start..facets.len(),
+            });
+        }
+        Mesh {
+            facets,
+            parts: out,
+            stored_normals: None,
+            format: Format::Obj,
+        }
+    }
+
+    fn side(json: &str) -> Sidecar {
+        parse_sidecar(Path::new("t.json"), json).expect("valid sidecar")
+    }
+
+    fn block() -> Vec<shapes::Triangle> {
+        shapes::box_solid([-1.0, -1.5, 0.0], [1.0, 1.5, 2.0], 3)
+    }
+
+    #[test]
+    fn a_box_in_water_carries_its_buoyancy_through_its_centre_of_buoyancy() {
+        // Archimedes: F = ρ g V_sub upward, through the centroid of the submerged box.
+        let s = side(r#"{"units": "m", "liquid": {"level": 1.5, "density": 1025}}"#);
+        let r = compute("b", &mesh(vec![("b", block())]), &s).expect("computes");
+        let c = &r.cases[0].loads;
+        let v = 2.0 * 3.0 * 1.5;
+        assert_relative_eq!(c.force[2], 1025.0 * G * v, max_relative = 1e-13);
+        assert_relative_eq!(c.force[0], 0.0, epsilon = 1e-8);
+        assert_relative_eq!(c.submerged_volume.expect("closed"), v, max_relative = 1e-13);
+        let cob = c.centre_of_buoyancy.expect("closed");
+        assert_relative_eq!(cob[2], 0.75, epsilon = 1e-12);
+        let line = c.line_of_action.expect("non-zero");
+        assert_relative_eq!(line.point[0], 0.0, epsilon = 1e-12);
+        assert_relative_eq!(line.point[1], 0.0, epsilon = 1e-12);
+        // Uplift on the underside: ρ g h A = the whole buoyancy, walls add nothing vertical.
+        assert_relative_eq!(c.uplift, 1025.0 * G * 1.5 * 6.0, max_relative = 1e-13);
+        assert_relative_eq!(c.downthrust, 0.0, epsilon = 1e-9);
+    }
+
+    #[test]
+    fn reversed_or_mixed_winding_gives_the_same_loads_after_repair() {
+        let s = side(
+            r#"{"units": "m", "moment_about": [0.3, 0.2, 0.1], "liquid": {"level": 1.2, "density": 1000}}"#,
+        );
+        let clean = compute("b", &mesh(vec![("b", block())]), &s).expect("computes");
+        let reversed = compute(
+            "b",
+            &mesh(vec![("b", shapes::reverse_winding(&block()))]),
+            &s,
+        )
+        .expect("computes");
+        let mut half = block();
+        for (i, t) in half.iter_mut().enumerate() {
+            // A fixed pseudo-random half: the bits of a Weyl sequence.
+            if (i as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 63 == 1 {
+                t.swap(1, 2);
+            }
+        }
+        let mixed = compute("b", &mesh(vec![("b", half)]), &s).expect("computes");
+        for other in [&reversed, &mixed] {
+            let (a, b) = (&clean.cases[0].loads, &other.cases[0].loads);
+            for k in 0..3 {
+                assert_relative_eq!(a.force[k], b.force[k], epsilon = 1e-9 * a.uplift);
+                assert_relative_eq!(a.moment[k], b.moment[k], epsilon = 1e-9 * a.uplift);
+            }
+            assert_relative_eq!(a.uplift, b.uplift, max_relative = 1e-12);
+            assert!(!other.warnings.is_empty(), "the repair is reported");
+        }
+    }
+
+    #[test]
+    fn a_sealed_cavity_is_dry_and_its_volume_belongs_to_the_body() {
+        let mut inner = shapes::box_solid([-0.5, -0.5, 0.5], [0.5, 0.5, 1.5], 1);
+        inner = shapes::reverse_winding(&inner); // as a CAD solid stores a void
+        let s = side(r#"{"units": "m", "liquid": {"level": 5.0, "density": 1000}}"#);
+        let r =
+            compute("b", &mesh(vec![("outer", block()), ("void", inner)]), &s).expect("computes");
+        let c = &r.cases[0];
+        assert_relative_eq!(
+            c.loads.submerged_volume.expect("closed"),
+            12.0,
+            max_relative = 1e-13
+        );
+        assert_relative_eq!(c.loads.force[2], 1000.0 * G * 12.0, max_relative = 1e-13);
+        let void = &c.parts[1].loads;
+        assert_eq!(void.force, [0.0; 3]);
+        assert_eq!(void.submerged_volume, Some(0.0));
+        assert_eq!(void.centre_of_buoyancy, None);
+    }
+
+    #[test]
+    fn inside_loads_the_walls_of_a_tank_outward() {
+        // A 2 × 3 tank filled to 1.2 m: the floor carries ρ g h A downward, the side walls
+        // ρ g h²/2 per metre outward, and the net horizontal force is zero.
+        let s = side(
+            r#"{"units": "m", "wet_side": "inside", "liquid": {"level": 1.2, "density": 1000}}"#,
+        );
+        let r = compute("t", &mesh(vec![("t", block())]), &s).expect("computes");
+        let l = &r.cases[0].loads;
+        assert_relative_eq!(l.force[2], -1000.0 * G * 1.2 * 6.0, max_relative = 1e-13);
+        assert_relative_eq!(l.downthrust, 1000.0 * G * 1.2 * 6.0, max_relative = 1e-13);
+        assert_relative_eq!(
+            l.submerged_volume.expect("closed"),
+            7.2,
+            max_relative = 1e-13
+        );
+        assert_relative_eq!(l.horizontal_force, 0.0, epsilon = 1e-8);
+    }
+
+    #[test]
+    fn an_open_plate_needs_a_wet_side_and_back_is_front_reversed() {
+        let plate = shapes::rectangle([0.0, 0.0, -3.0], [2.0, 0.0, 0.0], [0.0, 0.0, 2.0], 2, 2);
+        let m = mesh(vec![("p", plate.clone())]);
+        let none = side(r#"{"units": "m", "liquid": {"level": 0.0, "density": 1000}}"#);
+        assert!(matches!(
+            compute("p", &m, &none),
+            Err(ComputeError::OpenWithoutSide { .. })
+        ));
+        let out = side(
+            r#"{"units": "m", "wet_side": "outside", "liquid": {"level": 0.0, "density": 1000}}"#,
+        );
+        assert!(matches!(
+            compute("p", &m, &out),
+            Err(ComputeError::OpenWithClosedSide { .. })
+        ));
+        let front = side(
+            r#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000}}"#,
+        );
+        let back = side(
+            r#"{"units": "m", "wet_side": "back", "liquid": {"level": 0.0, "density": 1000}}"#,
+        );
+        let f = compute("p", &m, &front).expect("computes");
+        let b = compute(
+            "p",
+            &mesh(vec![("p", shapes::reverse_winding(&plate))]),
+            &back,
+        )
+        .expect("computes");
+        assert_eq!(f.cases[0].loads.force, b.cases[0].loads.force);
+        // Closed form: vertical plate 2 m wide from 1 m to 3 m deep, F = ρ g b (h2² − h1²)/2,
+        // centre of pressure depth (h2³ − h1³)/(3 · (h2² − h1²)/2) = 2.1667 m.
+        let l = &f.cases[0].loads;
+        assert_relative_eq!(
+            l.horizontal_force,
+            1000.0 * G * 2.0 * 4.0,
+            max_relative = 1e-14
+        );
+        let cp = l.centre_of_pressure.expect("planar");
+        assert_relative_eq!(-cp[2], 26.0 / 12.0, max_relative = 1e-13);
+        assert_relative_eq!(cp[0], 1.0, epsilon = 1e-12);
+    }
+}
