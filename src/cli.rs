@@ -36,6 +36,13 @@ pub struct CheckArgs {
     pub json: bool,
 }
 
+/// Unit system of the terminal output.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
+pub enum Units {
+    Si,
+    Us,
+}
+
 #[derive(Debug, clap::Args)]
 pub struct WatchArgs {
     /// The folder the CAD tool exports meshes into.
@@ -66,4 +73,8 @@ pub struct CalcArgs {
     /// meshes). The result files are written either way.
     #[arg(long)]
     pub json: bool,
+    /// Units of the summary: `si` (kN, kN·m, m, kPa) or `us` (kip, kip·ft, ft, psi). The
+    /// result files are SI either way.
+    #[arg(long, value_enum, default_value_t = Units::Si)]
+    pub units: Units,
 }

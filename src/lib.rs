@@ -122,7 +122,13 @@ fn calc(args: &CalcArgs) -> ExitCode {
         match pipeline::calc_file(mesh) {
             Ok(r) => {
                 if !args.json {
-                    let opts = SummaryOptions { no_caution: true };
+                    let opts = SummaryOptions {
+                        no_caution: true,
+                        units: match args.units {
+                            cli::Units::Si => summary::UnitSystem::Si,
+                            cli::Units::Us => summary::UnitSystem::Us,
+                        },
+                    };
                     if !results.is_empty() {
                         let _ = writeln!(out);
                     }

@@ -1,30 +1,99 @@
 //! The terminal summary of a result: a compact block per case, parts as a table.
 //!
-//! Layout (plain text, 2-space indents, kN / kN·m / m² / m³ / kPa, mesh axes):
+//! Layout (plain text, 2-space indents, mesh axes; SI shows kN, kN·m, m, m², m³, kPa and
+//! US customary shows kip, kip·ft, ft, ft², ft³, psi):
 //!
 //! ```text
 //! radial_gate.stl · binary STL · 256 facets · 1 part · open surface
 //!   units mm, up +z, g 9.80665 m/s², moments about (0.000, 0.000, 4.500) m
+//!   size 2.031 × 4.000 × 6.000 m (mesh axes)
 //!
 //!   case normal · liquid level 5.000 m, 1000 kg/m³
-//!     force         Fx −490.33  Fy 0.00  Fz 288.23 kN   |F| 568.84 kN
+//!     force        Fx 490.33  Fy 0  Fz 288.10 kN   |F| 568.71 kN
 //!     …
 //! ```
-//! It ends with the warnings and the caution.
+//! It ends with the warnings and, unless left out, the caution. The JSON result stays SI
+//! whatever the presentation.
 
 use std::fmt::Write;
 
 use crate::compute::{CaseResult, Loads, MeshResult};
+
+/// How quantities are shown on the terminal.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum UnitSystem {
+    /// kN, kN·m, m, m², m³, kPa.
+    #[default]
+    Si,
+    /// kip, kip·ft, ft, ft², ft³, psi (exact conversions: 1 ft = 0.3048 m,
+    /// 1 lbf = 4.4482216152605 N, 1 kip = 1000 lbf).
+    Us,
+}
+
+/// Unit names and factors (value shown = SI value × factor).
+#[derive(Clone, Copy, Debug)]
+struct Show {
+    force: (&'static str, f64),
+    moment: (&'static str, f64),
+    length: (&'static str, f64),
+    small: (&'static str, f64),
+    area: (&'static str, f64),
+    volume: (&'static str, f64),
+    pressure: (&'static str, f64),
+}
+
+const LBF_N: f64 = 4.448_221_615_260_5;
+const FT_M: f64 = 0.3048;
+
+impl Show {
+    fn of(u: UnitSystem) -> Show {
+        match u {
+            UnitSystem::Si => Show {
+                force: ("kN", 1e-3),
+                moment: ("kN·m", 1e-3),
+                length: ("m", 1.0),
+                small: ("mm", 1e3),
+                area: ("m²", 1.0),
+                volume: ("m³", 1.0),
+                pressure: ("kPa", 1e-3),
+            },
+            UnitSystem::Us => Show {
+                force: ("kip", 1.0 / (1000.0 * LBF_N)),
+                moment: ("kip·ft", 1.0 / (1000.0 * LBF_N * FT_M)),
+                length: ("ft", 1.0 / FT_M),
+                small: ("in", 1.0 / 0.0254),
+                area: ("ft²", 1.0 / (FT_M * FT_M)),
+                volume: ("ft³", 1.0 / (FT_M * FT_M * FT_M)),
+                pressure: ("psi", 0.0254 * 0.0254 / LBF_N),
+            },
+        }
+    }
+    fn f(&self, x: f64) -> String {
+        num(x * self.force.1, 2)
+    }
+    fn m(&self, x: f64) -> String {
+        num(x * self.moment.1, 2)
+    }
+    fn l(&self, x: f64) -> String {
+        num(x * self.length.1, 3)
+    }
+    fn p(&self, p: [f64; 3]) -> String {
+        format!("({}, {}, {})", self.l(p[0]), self.l(p[1]), self.l(p[2]))
+    }
+}
 
 /// Options of the summary.
 #[derive(Clone, Copy, Debug, Default)]
 pub struct SummaryOptions {
     /// Leave out the caution (when several meshes are printed, it is printed once).
     pub no_caution: bool,
+    /// The unit system shown.
+    pub units: UnitSystem,
 }
 
 /// Renders the summary of one mesh.
 pub fn render(r: &MeshResult, opts: SummaryOptions) -> String {
+    let u = Show::of(opts.units);
     let mut s = String::new();
     let i = &r.inputs;
     let surface = if i.closed {
@@ -49,23 +118,25 @@ pub fn render(r: &MeshResult, opts: SummaryOptions) -> String {
         .unwrap_or_default();
     let _ = writeln!(
         s,
-        "  units {}, up {}, g {} m/s², moments about {} m",
+        "  units {}, up {}, g {} m/s², moments about {} {}",
         i.units,
         i.up,
         i.gravity,
-        point(about)
+        u.p(about),
+        u.length.0
     );
     let bb = i.bounding_box;
     let _ = writeln!(
         s,
-        "  size {:.3} × {:.3} × {:.3} m (mesh axes)",
-        bb[1][0] - bb[0][0],
-        bb[1][1] - bb[0][1],
-        bb[1][2] - bb[0][2]
+        "  size {} × {} × {} {} (mesh axes)",
+        u.l(bb[1][0] - bb[0][0]),
+        u.l(bb[1][1] - bb[0][1]),
+        u.l(bb[1][2] - bb[0][2]),
+        u.length.0
     );
     for c in &r.cases {
         s.push('\n');
-        case_block(&mut s, c, i.parts.len() > 1);
+        case_block(&mut s, c, i.parts.len() > 1, &u);
     }
     if !r.warnings.is_empty() {
         s.push('\n');
@@ -110,47 +181,58 @@ fn plural(n: usize) -> &'static str {
     if n == 1 { "" } else { "s" }
 }
 
-fn case_block(s: &mut String, c: &CaseResult, several_parts: bool) {
+fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, u: &Show) {
     let liquids: Vec<String> = c
         .liquids
         .iter()
         .map(|l| {
             let dens: Vec<String> = l.layers.iter().map(|(d, _)| format!("{d}")).collect();
             let gas = if l.surface_pressure != 0.0 {
-                format!(", gas {:.2} kPa", l.surface_pressure / 1000.0)
+                format!(
+                    ", gas {} {}",
+                    num(l.surface_pressure * u.pressure.1, 2),
+                    u.pressure.0
+                )
             } else {
                 String::new()
             };
             format!(
-                "{} level {:.3} m, {} kg/m³{gas}",
+                "{} level {} {}, {} kg/m³{gas}",
                 l.name,
-                l.level,
+                u.l(l.level),
+                u.length.0,
                 dens.join("/")
             )
         })
         .collect();
     let _ = writeln!(s, "  case {} · {}", c.name, liquids.join("; "));
-    loads_block(s, &c.loads, "    ");
+    loads_block(s, &c.loads, "    ", u);
     if several_parts {
         let _ = writeln!(
             s,
-            "    {:<20} {:>11} {:>11} {:>11} {:>11} {:>11} {:>10}",
-            "part", "Fx kN", "Fy kN", "Fz kN", "uplift kN", "area m²", "volume m³"
+            "    {:<20} {:>11} {:>11} {:>11} {:>11} {:>11} {:>11}",
+            "part",
+            format!("Fx {}", u.force.0),
+            format!("Fy {}", u.force.0),
+            format!("Fz {}", u.force.0),
+            format!("uplift {}", u.force.0),
+            format!("area {}", u.area.0),
+            format!("volume {}", u.volume.0)
         );
         for p in &c.parts {
             let l = &p.loads;
             let vol = l
                 .submerged_volume
-                .map_or_else(|| "—".to_owned(), |v| format!("{v:.3}"));
+                .map_or_else(|| "—".to_owned(), |v| num(v * u.volume.1, 3));
             let _ = writeln!(
                 s,
-                "    {:<20} {:>11} {:>11} {:>11} {:>11.2} {:>11.3} {:>10}",
+                "    {:<20} {:>11} {:>11} {:>11} {:>11} {:>11} {:>11}",
                 truncate(&p.name, 20),
-                num(l.force[0] / 1e3, 2),
-                num(l.force[1] / 1e3, 2),
-                num(l.force[2] / 1e3, 2),
-                l.uplift / 1e3,
-                l.wetted_area,
+                u.f(l.force[0]),
+                u.f(l.force[1]),
+                u.f(l.force[2]),
+                u.f(l.uplift),
+                num(l.wetted_area * u.area.1, 3),
                 vol
             );
         }
@@ -158,10 +240,11 @@ fn case_block(s: &mut String, c: &CaseResult, several_parts: bool) {
     if let Some(sw) = &c.sweep {
         let _ = writeln!(
             s,
-            "    sweep of {} levels from {:.3} to {:.3} m (table in the result file)",
+            "    sweep of {} levels from {} to {} {} (table in the result file)",
             sw.len(),
-            sw.first().map_or(0.0, |x| x.level),
-            sw.last().map_or(0.0, |x| x.level)
+            u.l(sw.first().map_or(0.0, |x| x.level)),
+            u.l(sw.last().map_or(0.0, |x| x.level)),
+            u.length.0
         );
     }
     if let Some(f) = &c.flotation {
@@ -170,49 +253,52 @@ fn case_block(s: &mut String, c: &CaseResult, several_parts: bool) {
     }
 }
 
-fn loads_block(s: &mut String, l: &Loads, ind: &str) {
+fn loads_block(s: &mut String, l: &Loads, ind: &str, u: &Show) {
     let f = l.force;
     let mag = (f[0] * f[0] + f[1] * f[1] + f[2] * f[2]).sqrt();
+    let (fu, mu, lu) = (u.force.0, u.moment.0, u.length.0);
     let _ = writeln!(
         s,
-        "{ind}force        Fx {}  Fy {}  Fz {} kN   |F| {:.2} kN",
-        num(f[0] / 1e3, 2),
-        num(f[1] / 1e3, 2),
-        num(f[2] / 1e3, 2),
-        mag / 1e3
+        "{ind}force        Fx {}  Fy {}  Fz {} {fu}   |F| {} {fu}",
+        u.f(f[0]),
+        u.f(f[1]),
+        u.f(f[2]),
+        u.f(mag)
     );
     let _ = writeln!(
         s,
-        "{ind}components   horizontal {:.2} kN, vertical {} kN (+ up)",
-        l.horizontal_force / 1e3,
-        num(l.vertical_force / 1e3, 2)
+        "{ind}components   horizontal {} {fu}, vertical {} {fu} (+ up)",
+        u.f(l.horizontal_force),
+        u.f(l.vertical_force)
     );
     let m = l.moment;
     let _ = writeln!(
         s,
-        "{ind}moment       Mx {}  My {}  Mz {} kN·m about {} m",
-        num(m[0] / 1e3, 2),
-        num(m[1] / 1e3, 2),
-        num(m[2] / 1e3, 2),
-        point(l.moment_about)
+        "{ind}moment       Mx {}  My {}  Mz {} {mu} about {} {lu}",
+        u.m(m[0]),
+        u.m(m[1]),
+        u.m(m[2]),
+        u.p(l.moment_about)
     );
     let _ = writeln!(
         s,
-        "{ind}uplift       {:.2} kN   downthrust {:.2} kN   wetted area {:.3} m²   max pressure {:.2} kPa",
-        l.uplift / 1e3,
-        l.downthrust / 1e3,
-        l.wetted_area,
-        l.max_pressure / 1e3
+        "{ind}uplift       {} {fu}   downthrust {} {fu}   wetted area {} {}   max pressure {} {}",
+        u.f(l.uplift),
+        u.f(l.downthrust),
+        num(l.wetted_area * u.area.1, 3),
+        u.area.0,
+        num(l.max_pressure * u.pressure.1, 2),
+        u.pressure.0
     );
     match &l.line_of_action {
         Some(line) => {
             let _ = writeln!(
                 s,
-                "{ind}line of action through {} m along {}{}",
-                point(line.point),
+                "{ind}line of action through {} {lu} along {}{}",
+                u.p(line.point),
                 direction(line.direction),
                 if line.couple.abs() > 1e-6 * mag.max(1.0) {
-                    format!(", couple {:.3} kN·m", line.couple / 1e3)
+                    format!(", couple {} {mu}", num(line.couple * u.moment.1, 3))
                 } else {
                     String::new()
                 }
@@ -223,31 +309,30 @@ fn loads_block(s: &mut String, l: &Loads, ind: &str) {
         }
     }
     if let Some(cp) = l.centre_of_pressure {
-        let _ = writeln!(s, "{ind}centre of pressure {} m", point(cp));
+        let _ = writeln!(s, "{ind}centre of pressure {} {lu}", u.p(cp));
     }
     if let Some(v) = l.submerged_volume {
         let cob = l
             .centre_of_buoyancy
-            .map_or_else(|| "—".to_owned(), |c| format!("{} m", point(c)));
+            .map_or_else(|| "—".to_owned(), |c| format!("{} {lu}", u.p(c)));
         let _ = writeln!(
             s,
-            "{ind}submerged volume {v:.3} m³, centre of buoyancy {cob}"
+            "{ind}submerged volume {} {}, centre of buoyancy {cob}",
+            num(v * u.volume.1, 3),
+            u.volume.0
         );
     }
     for (name, a) in &l.axis_moments {
-        let miss = a
-            .miss_distance
-            .map_or_else(|| "—".to_owned(), |d| format!("{:.1} mm", d * 1e3));
+        let miss = a.miss_distance.map_or_else(
+            || "—".to_owned(),
+            |d| format!("{} {}", num(d * u.small.1, 1), u.small.0),
+        );
         let _ = writeln!(
             s,
-            "{ind}axis {name}: moment {} kN·m, line of action misses it by {miss}",
-            num(a.moment / 1e3, 3)
+            "{ind}axis {name}: moment {} {mu}, line of action misses it by {miss}",
+            num(a.moment * u.moment.1, 3)
         );
     }
-}
-
-fn point(p: [f64; 3]) -> String {
-    format!("({}, {}, {})", num(p[0], 3), num(p[1], 3), num(p[2], 3))
 }
 
 fn direction(p: [f64; 3]) -> String {
@@ -270,5 +355,26 @@ fn truncate(s: &str, n: usize) -> String {
         let mut t: String = s.chars().take(n - 1).collect();
         t.push('…');
         t
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn us_factors_are_the_exact_definitions() {
+        let u = Show::of(UnitSystem::Us);
+        // 1 kip = 4448.2216152605 N; 1 psi = 6894.757 Pa; 1 ft³ = 0.028316846592 m³.
+        assert!((4448.221_615_260_5 * u.force.1 - 1.0).abs() < 1e-15);
+        assert!((6894.757_293_168 * u.pressure.1 - 1.0).abs() < 1e-12);
+        assert!((0.028_316_846_592 * u.volume.1 - 1.0).abs() < 1e-14);
+        assert!((1355.817_948_331_400_4 * u.moment.1 - 1.0).abs() < 1e-14);
+    }
+
+    #[test]
+    fn rounding_to_zero_drops_the_sign() {
+        assert_eq!(num(-0.0001, 2), "0.00");
+        assert_eq!(num(-0.01, 2), "-0.01");
     }
 }
