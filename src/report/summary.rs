@@ -366,10 +366,10 @@ mod tests {
     fn us_factors_are_the_exact_definitions() {
         let u = Show::of(UnitSystem::Us);
         // 1 kip = 4448.2216152605 N; 1 psi = 6894.757 Pa; 1 ft³ = 0.028316846592 m³.
-        assert!((4448.221_615_260_5 * u.force.1 - 1.0).abs() < 1e-15);
-        assert!((6894.757_293_168 * u.pressure.1 - 1.0).abs() < 1e-12);
+        assert!((4_448.221_615_260_5 * u.force.1 - 1.0).abs() < 1e-15);
+        assert!((6_894.757_293_168 * u.pressure.1 - 1.0).abs() < 1e-12);
         assert!((0.028_316_846_592 * u.volume.1 - 1.0).abs() < 1e-14);
-        assert!((1355.817_948_331_400_4 * u.moment.1 - 1.0).abs() < 1e-14);
+        assert!((1_355.817_948_331_400_4 * u.moment.1 - 1.0).abs() < 1e-14);
     }
 
     #[test]
