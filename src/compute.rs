@@ -1074,8 +1074,8 @@ mod tests {
         let f = field(&m, &s, 0).expect("computes");
         let mut sum = [0.0; 3];
         for row in &f.facets {
-            for k in 0..3 {
-                sum[k] += row.force[k];
+            for (s, x) in sum.iter_mut().zip(row.force) {
+                *s += x;
             }
         }
         let total = r.cases[0].loads.force;
