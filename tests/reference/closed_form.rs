@@ -393,7 +393,7 @@ fn d6_radial_gate() {
         let l = loads(&r);
         // Exact polyhedral value: the strips integrated in the section plane.
         let pts = arc_points(0.0, zt, radius, phi0, phi_top, n_arc);
-        let s = section(&pts, (0.0, zt), (0.0, zt), h, RHO * G);
+        let s = section(&pts, (0.0, zt), true, (0.0, zt), h, RHO * G);
         let scale = norm(l.force);
         rel(&format!("D6 n={n_arc}: F_x = ½ρgH²w"), l.force[0], fx, PLANAR);
         rel(&format!("D6 n={n_arc}: F_x vs section"), l.force[0], s.fx * w, PLANAR);

@@ -11,3 +11,4 @@
 
 mod closed_form;
 mod support;
+mod textbook;

@@ -216,13 +216,15 @@ pub struct Section {
 
 /// Exact `−∫ p n ds` and its moment over the polyline `pts` (`(x, z)` pairs), with
 /// `p = ρ g (level − z)` below the level and 0 above; `n` is the unit normal of each
-/// segment pointing away from `away_from` (the liquid is on that side).
+/// segment pointing into the liquid: away from the point `centre` when `convex` (liquid on
+/// the convex side of an arc about `centre`), towards it otherwise.
 ///
 /// On a segment (clipped at the level) p is linear, so `∫ p ds = L (p_a + p_b)/2` and
 /// `∫ p r ds = L (p_a (2a + b) + p_b (a + 2b)) / 6` are exact.
 pub fn section(
     pts: &[(f64, f64)],
-    away_from: (f64, f64),
+    centre: (f64, f64),
+    convex: bool,
     about: (f64, f64),
     level: f64,
     rho_g: f64,
@@ -238,8 +240,8 @@ pub fn section(
         let (dx, dz) = (b.0 - a.0, b.1 - a.1);
         let len = dx.hypot(dz);
         let (mut nx, mut nz) = (dz / len, -dx / len);
-        let mid = ((a.0 + b.0) / 2.0 - away_from.0, (a.1 + b.1) / 2.0 - away_from.1);
-        if nx * mid.0 + nz * mid.1 < 0.0 {
+        let mid = ((a.0 + b.0) / 2.0 - centre.0, (a.1 + b.1) / 2.0 - centre.1);
+        if (nx * mid.0 + nz * mid.1 < 0.0) == convex {
             (nx, nz) = (-nx, -nz);
         }
         // Clip to z ≤ level.
