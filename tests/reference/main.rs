@@ -10,5 +10,6 @@
 //! the error observed and the tolerance allowed.
 
 mod closed_form;
+mod parry;
 mod support;
 mod textbook;
