@@ -10,6 +10,7 @@
 //! the error observed and the tolerance allowed.
 
 mod closed_form;
+mod invariance;
 mod parry;
 mod support;
 mod textbook;
