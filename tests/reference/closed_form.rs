@@ -31,10 +31,17 @@ fn d1_vertical_rectangle_wall() {
     // Closed form: F = ρ g b (d₂² − d₁²)/2, pushing the wall towards +y.
     let f = RHO * G * b * (d2 * d2 - d1 * d1) / 2.0;
     rel("D1 F_y = ρgb(d2²−d1²)/2", l.force[1], f, PLANAR);
-    abs("D1 F_x, F_z = 0", l.force[0].abs() + l.force[2].abs(), 0.0, PLANAR * f);
+    abs(
+        "D1 F_x, F_z = 0",
+        l.force[0].abs() + l.force[2].abs(),
+        0.0,
+        PLANAR * f,
+    );
     // Closed form: centre of pressure depth = ∫d² / ∫d = (2/3)(d₂³ − d₁³)/(d₂² − d₁²).
     let cop_depth = 2.0 / 3.0 * (d2.powi(3) - d1.powi(3)) / (d2 * d2 - d1 * d1);
-    let cop = l.centre_of_pressure.expect("a plane wall has a centre of pressure");
+    let cop = l
+        .centre_of_pressure
+        .expect("a plane wall has a centre of pressure");
     rel("D1 CoP depth", -cop[2], cop_depth, PLANAR);
     abs("D1 CoP x = b/2", cop[0], b / 2.0, PLANAR * b);
     // Closed form: moment about the top edge = ρ g b ∫_{d1}^{d2} (d − d₁) d dd.
@@ -45,8 +52,18 @@ fn d1_vertical_rectangle_wall() {
         m_top,
         PLANAR,
     );
-    rel("D1 moment about top edge (point)", l.moment[0], m_top, PLANAR);
-    rel("D1 wetted area = b(d2−d1)", l.wetted_area, b * (d2 - d1), PLANAR);
+    rel(
+        "D1 moment about top edge (point)",
+        l.moment[0],
+        m_top,
+        PLANAR,
+    );
+    rel(
+        "D1 wetted area = b(d2−d1)",
+        l.wetted_area,
+        b * (d2 - d1),
+        PLANAR,
+    );
     // trade.md §3.5 D1, printed to 0.1 N, 1e-5 m and 0.1 N·m.
     abs("D1 F vs trade.md 117679.8 N", l.force[1], 117_679.8, 0.05);
     abs("D1 CoP vs trade.md 2.16667 m", -cop[2], 2.16667, 5e-6);
@@ -70,10 +87,25 @@ fn vertical_wall_cut_by_the_free_surface() {
     );
     let l = loads(&r);
     // Closed form: F = ρ g b H²/2 acting at 2H/3 below the surface; wetted area b H.
-    rel("wall cut by surface: F = ρgbH²/2", l.force[1], RHO * G * b * h * h / 2.0, PLANAR);
+    rel(
+        "wall cut by surface: F = ρgbH²/2",
+        l.force[1],
+        RHO * G * b * h * h / 2.0,
+        PLANAR,
+    );
     let cop = l.centre_of_pressure.expect("plane");
-    rel("wall cut by surface: CoP depth 2H/3", -cop[2], 2.0 * h / 3.0, PLANAR);
-    rel("wall cut by surface: wetted area bH", l.wetted_area, b * h, PLANAR);
+    rel(
+        "wall cut by surface: CoP depth 2H/3",
+        -cop[2],
+        2.0 * h / 3.0,
+        PLANAR,
+    );
+    rel(
+        "wall cut by surface: wetted area bH",
+        l.wetted_area,
+        b * h,
+        PLANAR,
+    );
 }
 
 /// An inclined rectangle, liquid above it.
@@ -135,18 +167,42 @@ fn circular_plate() {
         let a_n = polygon_area(radius, n);
         let i_n = polygon_second_moment(radius, n);
         let f_n = RHO * G * hc * a_n;
-        rel(&format!("disc n={n}: F = ρgh_cA_n (polygon)"), l.force[1], f_n, PLANAR);
+        rel(
+            &format!("disc n={n}: F = ρgh_cA_n (polygon)"),
+            l.force[1],
+            f_n,
+            PLANAR,
+        );
         let cop = l.centre_of_pressure.expect("plane");
         let depth_n = hc + i_n / (a_n * hc);
-        rel(&format!("disc n={n}: CoP depth (polygon)"), -cop[2], depth_n, PLANAR);
-        abs(&format!("disc n={n}: CoP x on the vertical diameter"), cop[0], 0.3, PLANAR);
-        rel(&format!("disc n={n}: wetted area A_n"), l.wetted_area, a_n, PLANAR);
+        rel(
+            &format!("disc n={n}: CoP depth (polygon)"),
+            -cop[2],
+            depth_n,
+            PLANAR,
+        );
+        abs(
+            &format!("disc n={n}: CoP x on the vertical diameter"),
+            cop[0],
+            0.3,
+            PLANAR,
+        );
+        rel(
+            &format!("disc n={n}: wetted area A_n"),
+            l.wetted_area,
+            a_n,
+            PLANAR,
+        );
         // Smooth circle: F = ρ g h_c π R², CoP = h_c + R²/(4 h_c). The inscribed polygon's
         // area falls short by 1 − sin(θ)/θ ≤ θ²/6 = 2π²/(3n²) relative (θ = 2π/n).
         let f_smooth = RHO * G * hc * PI * radius * radius;
         let bound = 2.0 * PI * PI / (3.0 * (n * n) as f64);
         let e = ((l.force[1] - f_smooth) / f_smooth).abs();
-        at_most(&format!("disc n={n}: |F/F_circle − 1| ≤ 2π²/(3n²)"), e, bound);
+        at_most(
+            &format!("disc n={n}: |F/F_circle − 1| ≤ 2π²/(3n²)"),
+            e,
+            bound,
+        );
         f_err.push(e);
         let depth = hc + radius * radius / (4.0 * hc);
         cop_err.push((-cop[2] - depth).abs());
@@ -193,12 +249,32 @@ fn d3_two_layers_and_gas() {
         );
     }
     // trade.md §3.5 D3, printed to 0.1 N and 1e-5 m.
-    abs("D3 F with gas vs trade.md", case(&r, "gas").force[1], 135_815.1, 0.05);
+    abs(
+        "D3 F with gas vs trade.md",
+        case(&r, "gas").force[1],
+        135_815.1,
+        0.05,
+    );
     let cop = |n| -case(&r, n).centre_of_pressure.expect("plane")[2];
     abs("D3 CoP with gas vs trade.md", cop("gas"), 3.21243, 5e-6);
-    abs("D3 F without gas vs trade.md", case(&r, "no_gas").force[1], 110_815.1, 0.05);
-    abs("D3 CoP without gas vs trade.md", cop("no_gas"), 3.37316, 5e-6);
-    abs("D3 bottom pressure vs trade.md", case(&r, "gas").max_pressure, 51_091.3, 0.05);
+    abs(
+        "D3 F without gas vs trade.md",
+        case(&r, "no_gas").force[1],
+        110_815.1,
+        0.05,
+    );
+    abs(
+        "D3 CoP without gas vs trade.md",
+        cop("no_gas"),
+        3.37316,
+        5e-6,
+    );
+    abs(
+        "D3 bottom pressure vs trade.md",
+        case(&r, "gas").max_pressure,
+        51_091.3,
+        0.05,
+    );
 }
 
 /// Surface pressure alone on a plate above the liquid: F = −p_s A n̂ at the centroid.
@@ -215,7 +291,12 @@ fn surface_pressure_only_on_a_plate() {
     // Closed form: uniform p_s on a plane area A: F = −p_s A n̂, through the centroid.
     let an = cross(u, v);
     let want = mul(an, -2500.0);
-    abs3("plate under p_s: F = −p_s A n̂", l.force, want, PLANAR * norm(want));
+    abs3(
+        "plate under p_s: F = −p_s A n̂",
+        l.force,
+        want,
+        PLANAR * norm(want),
+    );
     let centroid = add(corner, mul(add(u, v), 0.5));
     let moment = cross(centroid, want);
     abs3(
@@ -225,7 +306,12 @@ fn surface_pressure_only_on_a_plate() {
         PLANAR * norm(want) * norm(centroid),
     );
     let cop = l.centre_of_pressure.expect("plane");
-    abs3("plate under p_s: CoP = centroid", cop, centroid, PLANAR * norm(u));
+    abs3(
+        "plate under p_s: CoP = centroid",
+        cop,
+        centroid,
+        PLANAR * norm(u),
+    );
 }
 
 /// D5: a closed surface under uniform gas pressure only has zero net force and moment.
@@ -236,7 +322,10 @@ fn d5_uniform_pressure_on_closed_bodies() {
             "perturbed icosphere",
             shapes::perturb(&shapes::icosphere([0.4, -0.3, 2.0], 1.2, 3), 0.02, 7),
         ),
-        ("box", shapes::box_solid([-1.0, 0.5, 1.0], [2.0, 1.7, 2.5], 3)),
+        (
+            "box",
+            shapes::box_solid([-1.0, 0.5, 1.0], [2.0, 1.7, 2.5], 3),
+        ),
         (
             "tilted torus",
             shapes::translate(
@@ -266,7 +355,10 @@ fn d5_uniform_pressure_on_closed_bodies() {
             norm(l.moment) / (p * a * size),
             1e-12,
         );
-        assert!(l.line_of_action.is_none(), "D5 {name}: zero force has no line of action");
+        assert!(
+            l.line_of_action.is_none(),
+            "D5 {name}: zero force has no line of action"
+        );
     }
 }
 
@@ -299,7 +391,11 @@ fn d4_submerged_sphere() {
         // Archimedes: F = ρ g V up, no horizontal force, no moment about the centre.
         let f = RHO * G * v_poly;
         rel(&format!("D4 k={k}: F_z = ρgV_poly"), l.force[2], f, PLANAR);
-        at_most(&format!("D4 k={k}: |F_h| / F_z"), l.horizontal_force / f, PLANAR);
+        at_most(
+            &format!("D4 k={k}: |F_h| / F_z"),
+            l.horizontal_force / f,
+            PLANAR,
+        );
         at_most(
             &format!("D4 k={k}: |M_centre| / (F R)"),
             norm(l.moment) / (f * radius),
@@ -332,16 +428,29 @@ fn d4_submerged_sphere() {
             l.force[2]
         );
         let e = (l.force[2] - hi) / hi;
-        println!("REF D4 k={k}: F_z vs 4/3πR³ relative {e:.4e} (band {:.3e})", (hi - lo) / hi);
+        println!(
+            "REF D4 k={k}: F_z vs 4/3πR³ relative {e:.4e} (band {:.3e})",
+            (hi - lo) / hi
+        );
         errs.push(e.abs());
         // trade.md §3.5 tessellation table: 320 → −3.38 %, 1280 → −0.86 %, 5120 → −0.216 %
         // (printed to 3 significant figures; 80 → −12.7 %).
         let table = [-0.127, -0.0338, -0.0086, -0.00216][k as usize - 1];
-        rel(&format!("D4 k={k}: error vs trade.md table"), e, table, 0.012);
+        rel(
+            &format!("D4 k={k}: error vs trade.md table"),
+            e,
+            table,
+            0.012,
+        );
         if k == 4 {
             // trade.md D4: 41 078.0 N (fresh), 42 104.9 N (sea), for the smooth sphere;
             // the faceting band at k = 4 is 0.22 %, so compare with that allowance.
-            abs("D4 fresh vs trade.md 41078.0 N", l.force[2], 41_078.0, hi - lo + 0.05);
+            abs(
+                "D4 fresh vs trade.md 41078.0 N",
+                l.force[2],
+                41_078.0,
+                hi - lo + 0.05,
+            );
             abs(
                 "D4 sea vs trade.md 42104.9 N",
                 case(&r, "sea").force[2],
@@ -395,24 +504,58 @@ fn d6_radial_gate() {
         let pts = arc_points(0.0, zt, radius, phi0, phi_top, n_arc);
         let s = section(&pts, (0.0, zt), true, (0.0, zt), h, RHO * G);
         let scale = norm(l.force);
-        rel(&format!("D6 n={n_arc}: F_x = ½ρgH²w"), l.force[0], fx, PLANAR);
-        rel(&format!("D6 n={n_arc}: F_x vs section"), l.force[0], s.fx * w, PLANAR);
-        rel(&format!("D6 n={n_arc}: F_z vs section"), l.force[2], s.fz * w, PLANAR);
-        abs(&format!("D6 n={n_arc}: F_y = 0"), l.force[1], 0.0, PLANAR * scale);
+        rel(
+            &format!("D6 n={n_arc}: F_x = ½ρgH²w"),
+            l.force[0],
+            fx,
+            PLANAR,
+        );
+        rel(
+            &format!("D6 n={n_arc}: F_x vs section"),
+            l.force[0],
+            s.fx * w,
+            PLANAR,
+        );
+        rel(
+            &format!("D6 n={n_arc}: F_z vs section"),
+            l.force[2],
+            s.fz * w,
+            PLANAR,
+        );
+        abs(
+            &format!("D6 n={n_arc}: F_y = 0"),
+            l.force[1],
+            0.0,
+            PLANAR * scale,
+        );
         abs(
             &format!("D6 n={n_arc}: trunnion moment vs section"),
             l.axis_moments["trunnion"].moment,
             s.my * w,
             PLANAR * scale * radius,
         );
-        rel(&format!("D6 n={n_arc}: wetted area vs section"), l.wetted_area, s.wetted * w, PLANAR);
+        rel(
+            &format!("D6 n={n_arc}: wetted area vs section"),
+            l.wetted_area,
+            s.wetted * w,
+            PLANAR,
+        );
         // Smooth arc: F_z differs by ρ g w × the circular segments between arc and chords.
         let delta = (phi_top - phi0) / n_arc as f64;
         let bound = RHO * G * w * n_arc as f64 * segment_area(radius, delta);
-        abs(&format!("D6 n={n_arc}: F_z vs smooth closed form"), l.force[2], fz, bound);
+        abs(
+            &format!("D6 n={n_arc}: F_z vs smooth closed form"),
+            l.force[2],
+            fz,
+            bound,
+        );
         fz_errs.push((l.force[2] - fz).abs());
         moments.push(l.axis_moments["trunnion"].moment.abs());
-        misses.push(l.axis_moments["trunnion"].miss_distance.expect("nonzero force"));
+        misses.push(
+            l.axis_moments["trunnion"]
+                .miss_distance
+                .expect("nonzero force"),
+        );
     }
     // The arc's pressure resultant passes through the trunnion: both vanish as it refines.
     decreasing("D6: |moment about trunnion| as n_arc ×2", &moments, 3.0);
@@ -420,7 +563,12 @@ fn d6_radial_gate() {
     decreasing("D6: |F_z − smooth| as n_arc ×2", &fz_errs, 3.0);
     // trade.md §3.5 D6, printed to 0.1 N.
     abs("D6 F_x vs trade.md 313812.8 N", fx, 313_812.8, 0.05);
-    abs("D6 F_z (closed form) vs trade.md 118081.0 N", fz, 118_081.0, 0.05);
+    abs(
+        "D6 F_z (closed form) vs trade.md 118081.0 N",
+        fz,
+        118_081.0,
+        0.05,
+    );
 }
 
 /// D2: a wall with headwater 6 m on one face and tailwater 2 m on the other (two liquids,
@@ -447,14 +595,51 @@ fn d2_two_sided_wall() {
     let f = RHO * G * (h1 * h1 - h2 * h2) / 2.0;
     let m = RHO * G * (h1.powi(3) - h2.powi(3)) / 6.0;
     rel("D2 net F_x = ρg(H1²−H2²)/2", l.force[0], f, PLANAR);
-    abs("D2 F_y, F_z = 0", l.force[1].abs() + l.force[2].abs(), 0.0, PLANAR * f);
-    rel("D2 moment about base", l.axis_moments["base"].moment, m, PLANAR);
+    abs(
+        "D2 F_y, F_z = 0",
+        l.force[1].abs() + l.force[2].abs(),
+        0.0,
+        PLANAR * f,
+    );
+    rel(
+        "D2 moment about base",
+        l.axis_moments["base"].moment,
+        m,
+        PLANAR,
+    );
     let line = l.line_of_action.expect("nonzero force");
     rel("D2 height of the resultant", line.point[2], m / f, PLANAR);
-    let p = |n: &str| &r.cases[0].parts.iter().find(|p| p.name == n).expect("part").loads;
-    rel("D2 headwater part ρgH1²/2", p("upstream").force[0], RHO * G * h1 * h1 / 2.0, PLANAR);
-    rel("D2 tailwater part −ρgH2²/2", p("downstream").force[0], -RHO * G * h2 * h2 / 2.0, PLANAR);
+    let p = |n: &str| {
+        &r.cases[0]
+            .parts
+            .iter()
+            .find(|p| p.name == n)
+            .expect("part")
+            .loads
+    };
+    rel(
+        "D2 headwater part ρgH1²/2",
+        p("upstream").force[0],
+        RHO * G * h1 * h1 / 2.0,
+        PLANAR,
+    );
+    rel(
+        "D2 tailwater part −ρgH2²/2",
+        p("downstream").force[0],
+        -RHO * G * h2 * h2 / 2.0,
+        PLANAR,
+    );
     // trade.md §3.5 D2, printed to 0.1 N and 1e-5 m.
-    abs("D2 net F vs trade.md 156906.4 N", l.force[0], 156_906.4, 0.05);
-    abs("D2 height vs trade.md 2.16667 m", line.point[2], 2.16667, 5e-6);
+    abs(
+        "D2 net F vs trade.md 156906.4 N",
+        l.force[0],
+        156_906.4,
+        0.05,
+    );
+    abs(
+        "D2 height vs trade.md 2.16667 m",
+        line.point[2],
+        2.16667,
+        5e-6,
+    );
 }

@@ -71,7 +71,10 @@ impl Rigid {
     };
 
     fn shift(t: V3) -> Rigid {
-        Rigid { t, ..Rigid::IDENTITY }
+        Rigid {
+            t,
+            ..Rigid::IDENTITY
+        }
     }
 }
 
@@ -246,40 +249,93 @@ fn same(label: &str, a: &Loads, b: &Loads, map: &Rigid, tol: f64, size: f64) {
     let p = |x: V3| map.point(x);
     abs3(&format!("{label}: force"), b.force, v(a.force), tol * fs);
     abs3(&format!("{label}: moment"), b.moment, v(a.moment), tol * ms);
-    rel(&format!("{label}: wetted area"), b.wetted_area, a.wetted_area, tol);
+    rel(
+        &format!("{label}: wetted area"),
+        b.wetted_area,
+        a.wetted_area,
+        tol,
+    );
     abs(&format!("{label}: uplift"), b.uplift, a.uplift, tol * fs);
-    abs(&format!("{label}: downthrust"), b.downthrust, a.downthrust, tol * fs);
-    rel(&format!("{label}: max pressure"), b.max_pressure, a.max_pressure, tol);
+    abs(
+        &format!("{label}: downthrust"),
+        b.downthrust,
+        a.downthrust,
+        tol * fs,
+    );
+    rel(
+        &format!("{label}: max pressure"),
+        b.max_pressure,
+        a.max_pressure,
+        tol,
+    );
     match (a.submerged_volume, b.submerged_volume) {
         (Some(va), Some(vb)) => rel(&format!("{label}: submerged volume"), vb, va, tol),
         (None, None) => {}
         other => panic!("{label}: submerged volume {other:?}"),
     }
     match (a.centre_of_buoyancy, b.centre_of_buoyancy) {
-        (Some(ca), Some(cb)) => abs3(&format!("{label}: centre of buoyancy"), cb, p(ca), tol * size),
+        (Some(ca), Some(cb)) => abs3(
+            &format!("{label}: centre of buoyancy"),
+            cb,
+            p(ca),
+            tol * size,
+        ),
         (None, None) => {}
         other => panic!("{label}: centre of buoyancy {other:?}"),
     }
     match (a.line_of_action, b.line_of_action) {
         (Some(la), Some(lb)) => {
-            abs3(&format!("{label}: line point"), lb.point, p(la.point), tol * size);
-            abs3(&format!("{label}: line direction"), lb.direction, v(la.direction), tol);
-            abs(&format!("{label}: line couple"), lb.couple, la.couple, tol * ms);
+            abs3(
+                &format!("{label}: line point"),
+                lb.point,
+                p(la.point),
+                tol * size,
+            );
+            abs3(
+                &format!("{label}: line direction"),
+                lb.direction,
+                v(la.direction),
+                tol,
+            );
+            abs(
+                &format!("{label}: line couple"),
+                lb.couple,
+                la.couple,
+                tol * ms,
+            );
         }
         (None, None) => {}
         other => panic!("{label}: line of action {other:?}"),
     }
     match (a.centre_of_pressure, b.centre_of_pressure) {
-        (Some(ca), Some(cb)) => abs3(&format!("{label}: centre of pressure"), cb, p(ca), tol * size),
+        (Some(ca), Some(cb)) => abs3(
+            &format!("{label}: centre of pressure"),
+            cb,
+            p(ca),
+            tol * size,
+        ),
         (None, None) => {}
         other => panic!("{label}: centre of pressure {other:?}"),
     }
     assert_eq!(a.axis_moments.len(), b.axis_moments.len(), "{label}: axes");
     for (name, ma) in &a.axis_moments {
         let mb = &b.axis_moments[name];
-        abs(&format!("{label}: axis {name} moment"), mb.moment, ma.moment, tol * ms);
-        let (da, db) = (ma.miss_distance.expect("force"), mb.miss_distance.expect("force"));
-        abs(&format!("{label}: axis {name} miss distance"), db, da, tol * size);
+        abs(
+            &format!("{label}: axis {name} moment"),
+            mb.moment,
+            ma.moment,
+            tol * ms,
+        );
+        let (da, db) = (
+            ma.miss_distance.expect("force"),
+            mb.miss_distance.expect("force"),
+        );
+        abs(
+            &format!("{label}: axis {name} miss distance"),
+            db,
+            da,
+            tol * size,
+        );
     }
 }
 
@@ -290,7 +346,10 @@ fn base(scene: &dyn Scene) -> MeshResult {
 fn every_drawing(scene_name: &str, scene: &dyn Scene) {
     let a = base(scene);
     let la = loads(&a);
-    assert!(norm(la.force) > 0.0 && la.wetted_area > 0.0, "a loaded base case");
+    assert!(
+        norm(la.force) > 0.0 && la.wetted_area > 0.0,
+        "a loaded base case"
+    );
     for d in drawings() {
         let b = run(&single(d.tris(&scene.tris())), &scene.json(&d));
         same(
@@ -303,7 +362,10 @@ fn every_drawing(scene_name: &str, scene: &dyn Scene) {
         );
     }
     // Every facet split into 4 at its edge midpoints: the same surface.
-    let split = run(&single(shapes::split_each(&scene.tris())), &scene.json(&plain()));
+    let split = run(
+        &single(shapes::split_each(&scene.tris())),
+        &scene.json(&plain()),
+    );
     same(
         &format!("{scene_name}, facets split in 4"),
         la,
@@ -329,7 +391,10 @@ fn open_gate_is_invariant() {
 fn reversed_closed_mesh_gives_the_same_loads() {
     let plain = plain();
     let a = run(&single(Closed.tris()), &Closed.json(&plain));
-    let b = run(&single(shapes::reverse_winding(&Closed.tris())), &Closed.json(&plain));
+    let b = run(
+        &single(shapes::reverse_winding(&Closed.tris())),
+        &Closed.json(&plain),
+    );
     same(
         "closed, every facet reversed",
         loads(&a),
@@ -346,7 +411,10 @@ fn reversed_open_surface_front_equals_back() {
     let plain = plain();
     let back = Open.json(&plain).replace("\"front\"", "\"back\"");
     let a = run(&single(Open.tris()), &back);
-    let b = run(&single(shapes::reverse_winding(&Open.tris())), &Open.json(&plain));
+    let b = run(
+        &single(shapes::reverse_winding(&Open.tris())),
+        &Open.json(&plain),
+    );
     same(
         "open, reversed + front vs back",
         loads(&a),

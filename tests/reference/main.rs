@@ -12,5 +12,6 @@
 mod closed_form;
 mod invariance;
 mod parry;
+mod real_exports;
 mod support;
 mod textbook;

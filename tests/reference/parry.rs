@@ -31,10 +31,11 @@ fn indexed(tris: &[Triangle]) -> (Vec<Vector>, Vec<[u32; 3]>) {
         .iter()
         .map(|t| {
             t.map(|p| {
-                *map.entry(p.map(|c| (c + 0.0).to_bits())).or_insert_with(|| {
-                    vertices.push(Vector::new(p[0], p[1], p[2]));
-                    (vertices.len() - 1) as u32
-                })
+                *map.entry(p.map(|c| (c + 0.0).to_bits()))
+                    .or_insert_with(|| {
+                        vertices.push(Vector::new(p[0], p[1], p[2]));
+                        (vertices.len() - 1) as u32
+                    })
             })
         })
         .collect();
@@ -117,7 +118,11 @@ fn check(label: &str, json: &str, tris: &[Triangle], size: f64, vol: f64, com: V
     // Archimedes: F = ρ g V straight up (ρ = 1025 in these sidecars).
     let f = 1025.0 * G * vol;
     rel(&format!("{label}: F_z = ρ g V_parry"), l.force[2], f, TOL);
-    at_most(&format!("{label}: |F_h| / F_z"), l.horizontal_force / f, TOL);
+    at_most(
+        &format!("{label}: |F_h| / F_z"),
+        l.horizontal_force / f,
+        TOL,
+    );
     let line = l.line_of_action.expect("nonzero force");
     let off = sub(com, line.point);
     let horizontal = cross(off, line.direction);
@@ -133,7 +138,14 @@ fn fully_submerged_bodies_match_parry() {
     for (name, tris, size) in bodies() {
         let (vol, com) = parry_whole(&tris);
         let json = r#"{"units": "m", "liquid": {"level": 10.0, "density": 1025}}"#;
-        check(&format!("parry {name} submerged"), json, &tris, size, vol, com);
+        check(
+            &format!("parry {name} submerged"),
+            json,
+            &tris,
+            size,
+            vol,
+            com,
+        );
     }
 }
 
@@ -144,8 +156,18 @@ fn partly_submerged_bodies_match_parry_split() {
     for ((name, tris, size), level) in bodies().into_iter().zip(levels) {
         let (vol, com) = parry_below(&tris, level);
         let (whole, _) = parry_whole(&tris);
-        assert!(vol > 0.1 * whole && vol < 0.9 * whole, "{name}: the cut is partial");
+        assert!(
+            vol > 0.1 * whole && vol < 0.9 * whole,
+            "{name}: the cut is partial"
+        );
         let json = format!(r#"{{"units": "m", "liquid": {{"level": {level}, "density": 1025}}}}"#);
-        check(&format!("parry {name} at {level}"), &json, &tris, size, vol, com);
+        check(
+            &format!("parry {name} at {level}"),
+            &json,
+            &tris,
+            size,
+            vol,
+            com,
+        );
     }
 }

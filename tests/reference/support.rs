@@ -108,7 +108,9 @@ pub fn rel(label: &str, got: f64, want: f64, tol: f64) {
     } else {
         ((got - want) / want).abs()
     };
-    println!("REF {label} err={err:.3e} tol={tol:.1e} (relative; got {got:.10e}, want {want:.10e})");
+    println!(
+        "REF {label} err={err:.3e} tol={tol:.1e} (relative; got {got:.10e}, want {want:.10e})"
+    );
     assert!(
         err <= tol,
         "{label}: got {got:.12e}, want {want:.12e}, relative error {err:.3e} > {tol:.1e}"
@@ -119,7 +121,9 @@ pub fn rel(label: &str, got: f64, want: f64, tol: f64) {
 #[track_caller]
 pub fn abs(label: &str, got: f64, want: f64, tol: f64) {
     let err = (got - want).abs();
-    println!("REF {label} err={err:.3e} tol={tol:.1e} (absolute; got {got:.10e}, want {want:.10e})");
+    println!(
+        "REF {label} err={err:.3e} tol={tol:.1e} (absolute; got {got:.10e}, want {want:.10e})"
+    );
     assert!(
         err <= tol,
         "{label}: got {got:.12e}, want {want:.12e}, error {err:.3e} > {tol:.1e}"
@@ -130,7 +134,9 @@ pub fn abs(label: &str, got: f64, want: f64, tol: f64) {
 #[track_caller]
 pub fn abs3(label: &str, got: V3, want: V3, tol: f64) {
     let err = norm(sub(got, want));
-    println!("REF {label} err={err:.3e} tol={tol:.1e} (absolute, vector; got {got:?}, want {want:?})");
+    println!(
+        "REF {label} err={err:.3e} tol={tol:.1e} (absolute, vector; got {got:?}, want {want:?})"
+    );
     assert!(
         err <= tol,
         "{label}: got {got:?}, want {want:?}, distance {err:.3e} > {tol:.1e}"
@@ -150,7 +156,10 @@ pub fn at_most(label: &str, value: f64, bound: f64) {
 pub fn decreasing(label: &str, seq: &[f64], min_ratio: f64) {
     let ratios: Vec<f64> = seq.windows(2).map(|w| w[0] / w[1]).collect();
     let shown: Vec<String> = seq.iter().map(|x| format!("{x:.3e}")).collect();
-    println!("REF {label} sequence=[{}] ratios={ratios:.2?} (each ≥ {min_ratio})", shown.join(", "));
+    println!(
+        "REF {label} sequence=[{}] ratios={ratios:.2?} (each ≥ {min_ratio})",
+        shown.join(", ")
+    );
     for (i, r) in ratios.iter().enumerate() {
         assert!(
             *r >= min_ratio,

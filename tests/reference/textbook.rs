@@ -96,8 +96,18 @@ impl Arc {
     fn check_exact(&self, label: &str, l: &Loads, s: &Section) {
         let w = self.width;
         let scale = norm(l.force);
-        rel(&format!("{label}: F_x vs exact strips"), l.force[0], s.fx * w, EXACT);
-        rel(&format!("{label}: F_z vs exact strips"), l.force[2], s.fz * w, EXACT);
+        rel(
+            &format!("{label}: F_x vs exact strips"),
+            l.force[0],
+            s.fx * w,
+            EXACT,
+        );
+        rel(
+            &format!("{label}: F_z vs exact strips"),
+            l.force[2],
+            s.fz * w,
+            EXACT,
+        );
         abs(&format!("{label}: F_y = 0"), l.force[1], 0.0, EXACT * scale);
         abs(
             &format!("{label}: moment about the axis vs exact strips"),
@@ -116,7 +126,11 @@ impl Arc {
                 l.axis_moments["axis"].miss_distance.expect("nonzero force")
             })
             .collect();
-        decreasing(&format!("{label}: miss distance from the axis"), &misses, 3.0);
+        decreasing(
+            &format!("{label}: miss distance from the axis"),
+            &misses,
+            3.0,
+        );
     }
 }
 
@@ -148,7 +162,12 @@ fn e1_inclined_circular_gate() {
         // y_R = y_c + I_n/(A_n y_c) along the incline from the surface.
         let (a_n, i_n) = (polygon_area(radius, n), polygon_second_moment(radius, n));
         let f = gamma * hc * a_n;
-        abs3(&format!("E1 n={n}: F = −γh_cA_n n̂"), l.force, mul(normal, -f), EXACT * f);
+        abs3(
+            &format!("E1 n={n}: F = −γh_cA_n n̂"),
+            l.force,
+            mul(normal, -f),
+            EXACT * f,
+        );
         rel(
             &format!("E1 n={n}: shaft moment −γ sinα I_n"),
             l.axis_moments["shaft"].moment,
@@ -157,14 +176,24 @@ fn e1_inclined_circular_gate() {
         );
         let cop = l.centre_of_pressure.expect("plane");
         let y_r = -cop[2] / s;
-        rel(&format!("E1 n={n}: y_R (polygon)"), y_r, yc + i_n / (a_n * yc), EXACT);
+        rel(
+            &format!("E1 n={n}: y_R (polygon)"),
+            y_r,
+            yc + i_n / (a_n * yc),
+            EXACT,
+        );
         // Smooth circle: the n-gon lies between the circles of R cos(π/n) and R, so
         // F ∈ [F_c cos²(π/n), F_c] and I ∈ [I_c cos⁴(π/n), I_c].
         let shrink = (PI / n as f64).cos();
         let f_band = f_smooth * (1.0 - shrink * shrink);
         let m_smooth = gamma * s * i_smooth;
         let m_band = m_smooth * (1.0 - shrink.powi(4));
-        abs(&format!("E1 n={n}: |F| vs γh_cπR²"), norm(l.force), f_smooth, f_band);
+        abs(
+            &format!("E1 n={n}: |F| vs γh_cπR²"),
+            norm(l.force),
+            f_smooth,
+            f_band,
+        );
         abs(
             &format!("E1 n={n}: shaft moment vs γ sinα πR⁴/4"),
             -l.axis_moments["shaft"].moment,
@@ -174,11 +203,21 @@ fn e1_inclined_circular_gate() {
         f_errs.push((norm(l.force) - f_smooth).abs());
         if n == 384 {
             // trade.md E1 [D]: F = 1 231 504 N, y_R − y_c = 0.0866 m, M = 106 651 N·m.
-            abs("E1 F vs [D] 1231504 N", norm(l.force), 1_231_504.0, f_band + 0.5);
+            abs(
+                "E1 F vs [D] 1231504 N",
+                norm(l.force),
+                1_231_504.0,
+                f_band + 0.5,
+            );
             // I_n/A_n = R²(2 + cos θ)/12 against R²/4: short by R²(1 − cos θ)/12.
             let theta = 2.0 * PI / n as f64;
             let e_band = radius * radius * (1.0 - theta.cos()) / (12.0 * yc);
-            abs("E1 y_R − y_c vs [D] 0.0866 m", y_r - yc, 0.0866, 5e-5 + e_band);
+            abs(
+                "E1 y_R − y_c vs [D] 0.0866 m",
+                y_r - yc,
+                0.0866,
+                5e-5 + e_band,
+            );
             abs(
                 "E1 shaft moment vs [D] 106651 N·m",
                 -l.axis_moments["shaft"].moment,
@@ -186,7 +225,12 @@ fn e1_inclined_circular_gate() {
                 m_band + 0.5,
             );
             // Printed (values from memory): F = 1.23 MN, y_R = 11.6 m, M = 1.07e5 N·m.
-            abs("E1 F vs book 1.23 MN", norm(l.force), 1.23e6, 0.005e6 + f_band);
+            abs(
+                "E1 F vs book 1.23 MN",
+                norm(l.force),
+                1.23e6,
+                0.005e6 + f_band,
+            );
             abs("E1 y_R vs book 11.6 m", y_r, 11.6, 0.05);
             abs(
                 "E1 shaft moment vs book 1.07e5 N·m",
@@ -235,14 +279,34 @@ fn e2_half_full_conduit_in_feet() {
     let mag = norm(l.force) / LBF;
     let angle = (l.force[2] / l.force[0]).atan().to_degrees();
     abs("E2 F_H vs [D] 280.8 lb", -l.force[0] / LBF, 280.8, 0.05);
-    abs("E2 F_V vs [D] 441.08 lb", -l.force[2] / LBF, 441.08, 0.005 + band);
+    abs(
+        "E2 F_V vs [D] 441.08 lb",
+        -l.force[2] / LBF,
+        441.08,
+        0.005 + band,
+    );
     abs("E2 |F| vs [D] 522.88 lb", mag, 522.88, 0.005 + band);
-    abs("E2 angle vs [D] 57.52°", angle, 57.52, 0.005 + (band / mag).to_degrees());
+    abs(
+        "E2 angle vs [D] 57.52°",
+        angle,
+        57.52,
+        0.005 + (band / mag).to_degrees(),
+    );
     // Printed (values from memory): 281 lb, 441 lb, 523 lb at 57.5°, through the centre.
     abs("E2 F_H vs book 281 lb", -l.force[0] / LBF, 281.0, 0.5);
-    abs("E2 F_V vs book 441 lb", -l.force[2] / LBF, 441.0, 0.5 + band);
+    abs(
+        "E2 F_V vs book 441 lb",
+        -l.force[2] / LBF,
+        441.0,
+        0.5 + band,
+    );
     abs("E2 |F| vs book 523 lb", mag, 523.0, 0.5 + band);
-    abs("E2 angle vs book 57.5°", angle, 57.5, 0.05 + (band / mag).to_degrees());
+    abs(
+        "E2 angle vs book 57.5°",
+        angle,
+        57.5,
+        0.05 + (band / mag).to_degrees(),
+    );
     arc.check_through_axis("E2", 8);
 }
 
@@ -354,7 +418,12 @@ fn e5_tainter_gate_full_width() {
     let angle_band = (band / mag).to_degrees();
     // trade.md E5 [D]: 17 167 500 N, 6 220 546 N, 18 259 744 N, 19.92°.
     abs("E5 F_x vs [D] 17167500 N", l.force[0], 17_167_500.0, 0.5);
-    abs("E5 F_z vs [D] 6220546 N", l.force[2], 6_220_546.0, 0.5 + band);
+    abs(
+        "E5 F_z vs [D] 6220546 N",
+        l.force[2],
+        6_220_546.0,
+        0.5 + band,
+    );
     abs("E5 |F| vs [D] 18259744 N", mag, 18_259_744.0, 0.5 + band);
     abs("E5 angle vs [D] 19.92°", angle, 19.92, 0.005 + angle_band);
     // Printed: 17.2 MN, 6.22 MN, 18.3 MN at 19.9°, through the hinge.
@@ -420,23 +489,50 @@ fn e7_water_filled_dome() {
         // dome closed by its rim), no horizontal force.
         let a_n = polygon_area(radius, n_lon);
         let fz = RHO * 9.79 * (h * a_n - v_dome);
-        rel(&format!("E7 {n_lon}x{n_lat}: F_z = γ(H A_n − V_dome)"), l.force[2], fz, EXACT);
-        at_most(&format!("E7 {n_lon}x{n_lat}: |F_h| / F_z"), l.horizontal_force / fz, EXACT);
+        rel(
+            &format!("E7 {n_lon}x{n_lat}: F_z = γ(H A_n − V_dome)"),
+            l.force[2],
+            fz,
+            EXACT,
+        );
+        at_most(
+            &format!("E7 {n_lon}x{n_lat}: |F_h| / F_z"),
+            l.horizontal_force / fz,
+            EXACT,
+        );
         // Smooth: the rim polygon and the dome lie between radii r_in and R.
         let lo = RHO * 9.79 * (PI * r_in * r_in * h - 2.0 / 3.0 * PI * radius.powi(3));
         let hi = RHO * 9.79 * (PI * radius * radius * h - 2.0 / 3.0 * PI * r_in.powi(3));
-        assert!(lo <= l.force[2] && l.force[2] <= hi, "E7: outside the faceting band");
+        assert!(
+            lo <= l.force[2] && l.force[2] <= hi,
+            "E7: outside the faceting band"
+        );
         errs.push((l.force[2] - fz_smooth).abs());
         if n_lon == 64 {
             let band = hi - lo;
             // trade.md E7 [D]: γ(πR²H − ⅔πR³) = 574 115 N; per bolt 90 686 N without the
             // pipe's water (which the notes put at ±28 N in all).
-            abs("E7 uplift vs [D] 574115 N", l.force[2], 574_115.0, 0.5 + band);
+            abs(
+                "E7 uplift vs [D] 574115 N",
+                l.force[2],
+                574_115.0,
+                0.5 + band,
+            );
             let per_bolt = (l.force[2] - 30e3) / 6.0;
-            abs("E7 per bolt vs [D] 90686 N", per_bolt, 90_686.0, 0.5 + band / 6.0);
+            abs(
+                "E7 per bolt vs [D] 90686 N",
+                per_bolt,
+                90_686.0,
+                0.5 + band / 6.0,
+            );
             // Printed: net uplift ≈ 574 kN, 90 700 N per bolt.
             abs("E7 uplift vs book 574 kN", l.force[2], 574e3, 500.0 + band);
-            abs("E7 per bolt vs book 90700 N", per_bolt, 90_700.0, 50.0 + band / 6.0);
+            abs(
+                "E7 per bolt vs book 90700 N",
+                per_bolt,
+                90_700.0,
+                50.0 + band / 6.0,
+            );
         }
     }
     decreasing("E7: |F_z − smooth| as the dome refines ×2", &errs, 3.0);
@@ -465,10 +561,16 @@ fn e8_hemisphere_on_a_wall() {
         // Exact for the polyhedron (divergence theorem over the dome closed by its rim
         // polygon on the wall): F = ρ g h_c A_n x̂ + ρ g V ẑ; about the rim's centre
         // M = ρ g V (r_c × ẑ) + ρ g (0, −I_n, 0).
-        let (a_n, i_n) = (polygon_area(radius, n_lon), polygon_second_moment(radius, n_lon));
+        let (a_n, i_n) = (
+            polygon_area(radius, n_lon),
+            polygon_second_moment(radius, n_lon),
+        );
         let f = [rg * hc * a_n, 0.0, rg * v];
         let rc = sub(c, centre);
-        let m = add(mul(cross(rc, [0.0, 0.0, 1.0]), rg * v), [0.0, -rg * i_n, 0.0]);
+        let m = add(
+            mul(cross(rc, [0.0, 0.0, 1.0]), rg * v),
+            [0.0, -rg * i_n, 0.0],
+        );
         let label = format!("E8 {n_lon}x{n_lat}");
         abs3(&format!("{label}: F vs exact"), l.force, f, EXACT * norm(f));
         abs3(
@@ -493,10 +595,25 @@ fn e8_hemisphere_on_a_wall() {
             // R²(1 − cos θ)/(12 h_c).
             let theta = 2.0 * PI / n_lon as f64;
             let e_band = radius * radius * (1.0 - theta.cos()) / (12.0 * hc);
-            abs("E8 F_H depth below centre vs [D] 0.125 m", e, 0.125, 5e-4 + e_band);
+            abs(
+                "E8 F_H depth below centre vs [D] 0.125 m",
+                e,
+                0.125,
+                5e-4 + e_band,
+            );
             // Printed: F_H = 61.64 kN acting 0.125 m below the centre, F_V = 20.55 kN.
-            abs("E8 F_H vs book 61.64 kN", l.force[0], 61.64e3, 5.0 + fh_band);
-            abs("E8 F_V vs book 20.55 kN", l.force[2], 20.55e3, 5.0 + fv_band);
+            abs(
+                "E8 F_H vs book 61.64 kN",
+                l.force[0],
+                61.64e3,
+                5.0 + fh_band,
+            );
+            abs(
+                "E8 F_V vs book 20.55 kN",
+                l.force[2],
+                20.55e3,
+                5.0 + fv_band,
+            );
         }
     }
     // Every normal of the smooth sphere passes through its centre, so does the resultant.
