@@ -32,7 +32,8 @@ struct Arc {
     width: f64,
     level: f64,
     gravity: f64,
-    units_per_m: f64,
+    /// The mesh's unit, and its length in metres (the sidecar stays in metres).
+    units: (&'static str, f64),
     convex: bool,
 }
 
@@ -40,7 +41,8 @@ impl Arc {
     /// wetload's loads on the patch of `n_arc` strips, and the exact section integral
     /// (per unit width, SI).
     fn run(&self, n_arc: usize) -> (Loads, Section) {
-        let k = self.units_per_m;
+        let (units, metres) = self.units;
+        let k = 1.0 / metres;
         let tris = shapes::cylinder_patch(
             [self.axis.0 * k, 0.0, self.axis.1 * k],
             [0.0, 1.0, 0.0],
@@ -52,7 +54,6 @@ impl Arc {
             n_arc,
             2,
         );
-        let units = if k == 1.0 { "m" } else { "ft" };
         let side = if self.convex { "front" } else { "back" };
         let json = format!(
             r#"{{"units": "{units}", "wet_side": "{side}", "gravity": {g},
@@ -263,7 +264,7 @@ fn e2_half_full_conduit_in_feet() {
         width: FT,
         level: 0.0,
         gravity: G * rho / RHO,
-        units_per_m: 1.0 / FT,
+        units: ("ft", FT),
         convex: false,
     };
     let n = 64;
@@ -324,7 +325,7 @@ fn e3_cylinder_quarter() {
         width: 1.0,
         level: 0.0,
         gravity: 9.81,
-        units_per_m: 1.0,
+        units: ("m", 1.0),
         convex: true,
     };
     let n = 64;
@@ -392,7 +393,7 @@ fn tainter(radius: f64, width: f64, depth: f64) -> (Arc, f64, f64) {
         width,
         level: depth,
         gravity: 9.81,
-        units_per_m: 1.0,
+        units: ("m", 1.0),
         convex: true,
     };
     let k = 0.5 * RHO * 9.81 * radius * radius * width;
