@@ -301,28 +301,14 @@ fn overview(s: &mut String, page: &FolderPage) {
         s.push_str("<p class=\"muted\">No results yet: put a mesh (<code>.stl</code> or <code>.obj</code>) and its sidecar <code>.json</code> in the folder.</p>\n</section>\n");
         return;
     }
-    let forces = page
-        .meshes
-        .iter()
-        .filter_map(|m| m.result.as_ref())
-        .flat_map(|r| r["cases"].as_array().into_iter().flatten())
-        .flat_map(|c| {
-            let norm = v3(&c["force"]).map(|x| (x[0] * x[0] + x[1] * x[1] + x[2] * x[2]).sqrt());
-            [norm, f(&c["vertical_force"]), f(&c["uplift"])]
-        })
-        .flatten();
-    let sc = Scale::of(forces);
-    let _ = writeln!(
-        s,
-        "<div class=\"wide\"><table>\n<tr><th>mesh</th><th class=\"text\">case</th><th>|F| <span class=\"unit\">{p}N</span></th><th>horizontal <span class=\"unit\">{p}N</span></th><th>vertical, + up <span class=\"unit\">{p}N</span></th><th>uplift <span class=\"unit\">{p}N</span></th><th class=\"text\">state</th></tr>",
-        p = sc.prefix
-    );
+    // One prefix per mesh: a folder may hold a lab model next to a dam.
+    s.push_str("<div class=\"wide\"><table>\n<tr><th>mesh</th><th class=\"text\">case</th><th>|F|</th><th>horizontal</th><th>vertical, + up</th><th>uplift</th><th class=\"text\">unit</th><th class=\"text\">state</th></tr>\n");
     for m in page.meshes {
         let link = format!("<a href=\"#{}\">{}</a>", anchor(&m.stem), esc(&m.mesh));
         let Some(r) = &m.result else {
             let _ = writeln!(
                 s,
-                "<tr><td>{link}</td><td class=\"text\">—</td><td>—</td><td>—</td><td>—</td><td>—</td><td class=\"text\"><span class=\"tag fail\">no result</span></td></tr>"
+                "<tr><td>{link}</td><td class=\"text\">—</td><td>—</td><td>—</td><td>—</td><td>—</td><td></td><td class=\"text\"><span class=\"tag fail\">no result</span></td></tr>"
             );
             continue;
         };
@@ -331,18 +317,26 @@ fn overview(s: &mut String, page: &FolderPage) {
         } else {
             "<span class=\"tag\">current</span>"
         };
-        for c in r["cases"].as_array().into_iter().flatten() {
-            let fv = v3(&c["force"]).unwrap_or([f64::NAN; 3]);
-            let norm = (fv[0] * fv[0] + fv[1] * fv[1] + fv[2] * fv[2]).sqrt();
-            let show = |x: Option<f64>| x.map_or_else(|| "—".to_owned(), |x| sc.show(x));
+        let cases = r["cases"].as_array().map_or(&[][..], Vec::as_slice);
+        let norm =
+            |c: &Value| v3(&c["force"]).map(|x| (x[0] * x[0] + x[1] * x[1] + x[2] * x[2]).sqrt());
+        let sc = Scale::of(
+            cases
+                .iter()
+                .flat_map(|c| [norm(c), f(&c["uplift"])])
+                .flatten(),
+        );
+        let show = |x: Option<f64>| x.map_or_else(|| "—".to_owned(), |x| sc.show(x));
+        for c in cases {
             let _ = writeln!(
                 s,
-                "<tr><td>{link}</td><td class=\"text\">{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"text\">{state}</td></tr>",
+                "<tr><td>{link}</td><td class=\"text\">{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"text\">{}N</td><td class=\"text\">{state}</td></tr>",
                 esc(c["name"].as_str().unwrap_or("?")),
-                sc.show(norm),
+                show(norm(c)),
                 show(f(&c["horizontal_force"])),
                 show(f(&c["vertical_force"])),
                 show(f(&c["uplift"])),
+                sc.prefix,
             );
         }
     }
