@@ -8,6 +8,7 @@ pub mod cli;
 pub mod compute;
 pub mod hydro;
 pub mod mesh;
+pub mod outputs;
 pub mod pipeline;
 pub mod report;
 pub mod shapes;

@@ -10,9 +10,10 @@ use std::path::{Path, PathBuf};
 use thiserror::Error;
 
 use crate::compute::{self, ComputeError, MeshResult};
-use crate::mesh::{self, MeshError};
+use crate::mesh::{self, Mesh, MeshError};
+use crate::outputs;
 use crate::report;
-use crate::sidecar::{self, SidecarError};
+use crate::sidecar::{self, Sidecar, SidecarError};
 
 /// Name of the folder, beside the meshes, that receives every output.
 pub const RESULTS_DIR: &str = "results";
@@ -97,6 +98,18 @@ pub fn read_inputs(mesh_path: &Path) -> Result<Inputs, RunError> {
 
 /// Parses and computes inputs already read (no file system access).
 pub fn compute_inputs(mesh_path: &Path, inputs: &Inputs) -> Result<MeshResult, RunError> {
+    compute_parsed(mesh_path, inputs).map(|c| c.result)
+}
+
+/// A computed mesh with the parsed inputs it was computed from (the exports need them).
+pub struct Computed {
+    pub mesh: Mesh,
+    pub sidecar: Sidecar,
+    pub result: MeshResult,
+}
+
+/// Like [`compute_inputs`], keeping the parsed mesh and sidecar.
+pub fn compute_parsed(mesh_path: &Path, inputs: &Inputs) -> Result<Computed, RunError> {
     let side = sidecar_path(mesh_path);
     let sidecar = sidecar::parse_sidecar(&side, &inputs.sidecar_text)?;
     let mesh = mesh::read_mesh(mesh_path, &inputs.mesh_bytes)?;
@@ -104,21 +117,34 @@ pub fn compute_inputs(mesh_path: &Path, inputs: &Inputs) -> Result<MeshResult, R
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
-    compute::compute(&name, &mesh, &sidecar).map_err(|source| RunError::Compute {
+    let result = compute::compute(&name, &mesh, &sidecar).map_err(|source| RunError::Compute {
         mesh: mesh_path.to_owned(),
         sidecar: side,
         source: Box::new(source),
+    })?;
+    Ok(Computed {
+        mesh,
+        sidecar,
+        result,
     })
 }
 
-/// Reads, computes and writes `results/<stem>.json`; returns the result.
+/// Reads, computes and writes `results/<stem>.json`, the exports and the folder's page;
+/// returns the result.
 pub fn calc_file(mesh_path: &Path) -> Result<MeshResult, RunError> {
     let inputs = read_inputs(mesh_path)?;
-    let result = compute_inputs(mesh_path, &inputs)?;
+    let computed = compute_parsed(mesh_path, &inputs)?;
     let dir = results_dir(mesh_path);
     let out = dir.join(format!("{}.json", stem(mesh_path)));
-    write_atomic(&out, &report::json::render(&result))?;
-    Ok(result)
+    write_atomic(&out, &report::json::render(&computed.result))?;
+    outputs::write_outputs(
+        mesh_path,
+        &computed.mesh,
+        &computed.sidecar,
+        &computed.result,
+    )?;
+    outputs::write_folder_page(&dir, false)?;
+    Ok(computed.result)
 }
 
 /// Writes `bytes` to `path` so that readers see the old file or the new one, never a

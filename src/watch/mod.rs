@@ -175,6 +175,7 @@ pub fn run(
             failures += 1;
         }
     }
+    w.refresh_page(!opts.once);
     if opts.once {
         return Ok(Outcome { failures });
     }
@@ -210,11 +211,17 @@ pub fn run(
             Err(mpsc::RecvTimeoutError::Timeout) => {}
             Err(mpsc::RecvTimeoutError::Disconnected) => break,
         }
-        for mesh in schedule.due(Instant::now()) {
-            w.process(&mesh, Some(&mut schedule))?;
+        let due = schedule.due(Instant::now());
+        for mesh in &due {
+            w.process(mesh, Some(&mut schedule))?;
+        }
+        if !due.is_empty() {
+            w.refresh_page(true);
         }
     }
     drop(watcher);
+    // Stopped: the page no longer needs to reload itself.
+    w.refresh_page(false);
     Ok(Outcome { failures: 0 })
 }
 
@@ -389,8 +396,12 @@ impl Watch<'_> {
             ));
             return Ok(true);
         }
-        let result = match pipeline::compute_inputs(mesh, &inputs) {
-            Ok(r) => r,
+        let pipeline::Computed {
+            mesh: parsed,
+            sidecar,
+            result,
+        } = match pipeline::compute_parsed(mesh, &inputs) {
+            Ok(c) => c,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
         };
         let out = self.results.join(format!("{}.json", pipeline::stem(mesh)));
@@ -398,6 +409,10 @@ impl Watch<'_> {
             // A full or read-only results folder: say so, keep running, retry on the next save.
             self.say(&format!("{} {name} · error: {e}\n", clock()));
             return Ok(false);
+        }
+        // Pictures and exports: the result is written, so a failure here is only reported.
+        if let Err(e) = crate::outputs::write_outputs(mesh, &parsed, &sidecar, &result) {
+            self.say(&format!("{} {name} · note: {e}\n", clock()));
         }
         let st = self.meshes.entry(mesh.to_owned()).or_default();
         st.iteration += 1;
@@ -466,6 +481,13 @@ impl Watch<'_> {
             clock()
         ));
         Ok(false)
+    }
+
+    /// Rewrites the folder's page (`live`: it reloads itself); a failure is only reported.
+    fn refresh_page(&mut self, live: bool) {
+        if let Err(e) = crate::outputs::write_folder_page(&self.results, live) {
+            self.say(&format!("note: {e}\n"));
+        }
     }
 
     /// Marks `results/<stem>.json` stale with a reason; returns whether one existed.

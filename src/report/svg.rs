@@ -1,0 +1,871 @@
+//! Line charts as SVG: the load history of a mesh across design iterations
+//! (`results/<stem>.history.svg`) and the loads against the level of a sweep
+//! (`results/<stem>[.<case>].sweep.svg`).
+//!
+//! Owns the chart model ([`Chart`], [`Panel`], [`Series`]), its building from the change
+//! log and from sweeps, and the rendering into bytes with plotters' SVG backend (no font
+//! library: text is written as `font-family="sans-serif"` and the viewer supplies the
+//! font). It reads and writes no file.
+//!
+//! # What a chart looks like
+//!
+//! A title line, then panels stacked top to bottom, each 960 × 300 px: a plot with its
+//! axis descriptions (quantity and unit on y, `iteration` or the level in m on x) and a
+//! legend to its right, outside the data. Forces are drawn in N, kN, MN or GN and moments
+//! in N·m … GN·m, whichever keeps the largest value of the panel between 1 and 1000.
+//! Every series has its own colour, dash pattern (solid, dashed, dotted) and marker
+//! (hollow circle, filled triangle, hollow square, cross, filled circle, hollow diamond),
+//! so the chart reads in black and white. Markers sit on at most 12 points per series.
+//! Vertical dashed grey lines mark points of interest (the baseline of a history).
+
+use std::fmt::Write;
+
+use plotters::coord::Shift;
+use plotters::element::DashedPathElement;
+use plotters::prelude::*;
+use serde_json::Value;
+
+use crate::compute::SweepStep;
+
+/// One line of a chart: a label and its points (x, y in SI units).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Series {
+    pub label: String,
+    pub points: Vec<(f64, f64)>,
+}
+
+/// What the y axis of a panel shows.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Quantity {
+    /// N (shown with a prefix: kN, MN …).
+    Force,
+    /// N·m.
+    Moment,
+}
+
+/// One plot of a chart.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Panel {
+    pub title: String,
+    /// The description of the x axis, with its unit.
+    pub x_label: String,
+    pub quantity: Quantity,
+    pub series: Vec<Series>,
+    /// Vertical marker lines: x and a short label.
+    pub marks: Vec<(f64, String)>,
+    /// x takes whole numbers only (iterations): ticks are labelled as integers.
+    pub integer_x: bool,
+    /// The y range includes 0.
+    pub include_zero: bool,
+    /// Values with |y| at or below this (SI) are round-off and drawn as 0: without it, a
+    /// moment that is zero up to 1e-10 N·m would fill the panel with noise.
+    pub noise: f64,
+}
+
+/// A chart: a title and panels stacked vertically.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Chart {
+    pub title: String,
+    pub panels: Vec<Panel>,
+}
+
+impl Chart {
+    /// The number of series over all panels.
+    pub fn series_count(&self) -> usize {
+        self.panels.iter().map(|p| p.series.len()).sum()
+    }
+}
+
+/// One step of a sweep as the charts need it (SI units, mesh axes).
+#[derive(Clone, Debug, PartialEq)]
+pub struct SweepPoint {
+    /// m.
+    pub level: f64,
+    /// N.
+    pub force: [f64; 3],
+    /// N·m about `moment_about`.
+    pub moment: [f64; 3],
+    /// N ≥ 0.
+    pub uplift: f64,
+    /// N·m about each named axis, in name order.
+    pub axis_moments: Vec<(String, f64)>,
+}
+
+impl SweepPoint {
+    /// From a computed step.
+    pub fn from_step(s: &SweepStep) -> SweepPoint {
+        SweepPoint {
+            level: s.level,
+            force: s.force,
+            moment: s.moment,
+            uplift: s.uplift,
+            axis_moments: s
+                .axis_moments
+                .iter()
+                .map(|(k, a)| (k.clone(), a.moment))
+                .collect(),
+        }
+    }
+
+    /// From a step of a result document's `sweep` as read back from JSON; `None` when a
+    /// field is missing or not a number.
+    pub fn from_json(v: &Value) -> Option<SweepPoint> {
+        let axis_moments = match v.get("axis_moments") {
+            Some(Value::Object(m)) => m
+                .iter()
+                .map(|(k, a)| Some((k.clone(), a.get("moment")?.as_f64()?)))
+                .collect::<Option<Vec<_>>>()?,
+            _ => Vec::new(),
+        };
+        Some(SweepPoint {
+            level: v.get("level")?.as_f64()?,
+            force: vec3(v.get("force")?)?,
+            moment: vec3(v.get("moment")?)?,
+            uplift: v.get("uplift")?.as_f64()?,
+            axis_moments,
+        })
+    }
+}
+
+fn vec3(v: &Value) -> Option<[f64; 3]> {
+    let a = v.as_array()?;
+    if a.len() != 3 {
+        return None;
+    }
+    Some([a[0].as_f64()?, a[1].as_f64()?, a[2].as_f64()?])
+}
+
+const COMPONENTS: [&str; 3] = ["x", "y", "z"];
+
+/// The loads of one case against the swept level: a force panel (Fx, Fy, Fz, uplift) and
+/// a moment panel (the moments about the named axes, or the moment components about
+/// `moment_about` when the sidecar names no axis). `swept` names the swept liquid.
+pub fn sweep_chart(mesh: &str, case: &str, swept: Option<&str>, steps: &[SweepPoint]) -> Chart {
+    let x_label = match swept {
+        Some(l) => format!("level of {l} (m)"),
+        None => "swept level (m)".to_owned(),
+    };
+    let mut forces: Vec<Series> = (0..3)
+        .map(|k| Series {
+            label: format!("F{}", COMPONENTS[k]),
+            points: steps.iter().map(|s| (s.level, s.force[k])).collect(),
+        })
+        .collect();
+    forces.push(Series {
+        label: "uplift".to_owned(),
+        points: steps.iter().map(|s| (s.level, s.uplift)).collect(),
+    });
+    let moments = moment_series(
+        steps
+            .iter()
+            .map(|s| (s.level, s.moment, s.axis_moments.as_slice())),
+    );
+    let noise = noise_of(&forces);
+    let panel = |title: &str, quantity, series| Panel {
+        title: title.to_owned(),
+        x_label: x_label.clone(),
+        quantity,
+        series,
+        marks: Vec::new(),
+        integer_x: false,
+        include_zero: true,
+        noise,
+    };
+    Chart {
+        title: format!("{mesh} · case {case} · loads against level"),
+        panels: vec![
+            panel("Force of the liquid", Quantity::Force, forces),
+            panel(moments.0, Quantity::Moment, moments.1),
+        ],
+    }
+}
+
+/// The round-off level of a chart's forces and moments: 1e-9 of its largest force, in N
+/// (and, for moments, in N·m: 1e-9 × the force × 1 m, far below any lever arm of a
+/// structure and far above the round-off of the sums).
+fn noise_of(forces: &[Series]) -> f64 {
+    1e-9 * forces
+        .iter()
+        .flat_map(|s| s.points.iter().map(|p| p.1.abs()))
+        .filter(|y| y.is_finite())
+        .fold(0.0, f64::max)
+}
+
+/// Moment series: about each named axis when there are any, else the components.
+fn moment_series<'a>(
+    rows: impl Iterator<Item = (f64, [f64; 3], &'a [(String, f64)])> + Clone,
+) -> (&'static str, Vec<Series>) {
+    let mut names: Vec<&str> = Vec::new();
+    for (_, _, axes) in rows.clone() {
+        for (n, _) in axes {
+            if !names.contains(&n.as_str()) {
+                names.push(n);
+            }
+        }
+    }
+    if names.is_empty() {
+        let series = (0..3)
+            .map(|k| Series {
+                label: format!("M{}", COMPONENTS[k]),
+                points: rows.clone().map(|(x, m, _)| (x, m[k])).collect(),
+            })
+            .collect();
+        ("Moment about moment_about", series)
+    } else {
+        let series = names
+            .iter()
+            .map(|n| Series {
+                label: format!("about {n}"),
+                points: rows
+                    .clone()
+                    .filter_map(|(x, _, axes)| {
+                        axes.iter().find(|(a, _)| a == n).map(|(_, m)| (x, *m))
+                    })
+                    .collect(),
+            })
+            .collect();
+        ("Moment about the named axes", series)
+    }
+}
+
+/// The load history of the mesh named `mesh` (its file name, as in the change log) from
+/// the log's lines: per case, a force panel (Fx, Fy, Fz, vertical, uplift) and a moment
+/// panel (axis moments, or components), against the iteration; the first `computed` line
+/// is marked as the baseline. `None` when the log has no `computed` line for the mesh.
+///
+/// The vertical force is left out where it equals a component at every iteration (up is
+/// `+x`, `+y` or `+z`); that component is then labelled as vertical.
+pub fn history_chart(mesh: &str, lines: &[Value]) -> Option<Chart> {
+    let computed: Vec<(f64, &Value)> = lines
+        .iter()
+        .filter(|l| l["mesh"] == mesh && l["event"] == "computed")
+        .enumerate()
+        .map(|(i, l)| {
+            let it = l["iteration"].as_f64().unwrap_or((i + 1) as f64);
+            (it, l)
+        })
+        .collect();
+    let (baseline, _) = *computed.first()?;
+    let mut names: Vec<&str> = Vec::new();
+    for (_, l) in &computed {
+        for c in l["cases"].as_array().into_iter().flatten() {
+            if let Some(n) = c["name"].as_str()
+                && !names.contains(&n)
+            {
+                names.push(n);
+            }
+        }
+    }
+    let mut panels = Vec::new();
+    for name in names {
+        struct Row {
+            x: f64,
+            force: [f64; 3],
+            moment: [f64; 3],
+            vertical: f64,
+            uplift: f64,
+            axes: Vec<(String, f64)>,
+        }
+        let rows: Vec<Row> = computed
+            .iter()
+            .filter_map(|(x, l)| {
+                let c = l["cases"].as_array()?.iter().find(|c| c["name"] == name)?;
+                Some(Row {
+                    x: *x,
+                    force: vec3(&c["force"])?,
+                    moment: vec3(&c["moment"])?,
+                    vertical: c["vertical_force"].as_f64()?,
+                    uplift: c["uplift"].as_f64()?,
+                    axes: c["axis_moments"]
+                        .as_object()
+                        .map(|m| {
+                            m.iter()
+                                .filter_map(|(k, v)| Some((k.clone(), v.as_f64()?)))
+                                .collect()
+                        })
+                        .unwrap_or_default(),
+                })
+            })
+            .collect();
+        if rows.is_empty() {
+            continue;
+        }
+        let same = |a: f64, b: f64| (a - b).abs() <= 1e-9 * a.abs().max(b.abs());
+        let vertical_is = (0..3).find(|&k| rows.iter().all(|r| same(r.vertical, r.force[k])));
+        let mut forces: Vec<Series> = (0..3)
+            .map(|k| Series {
+                label: if vertical_is == Some(k) {
+                    format!("F{} (vertical)", COMPONENTS[k])
+                } else {
+                    format!("F{}", COMPONENTS[k])
+                },
+                points: rows.iter().map(|r| (r.x, r.force[k])).collect(),
+            })
+            .collect();
+        if vertical_is.is_none() {
+            forces.push(Series {
+                label: "vertical (+ up)".to_owned(),
+                points: rows.iter().map(|r| (r.x, r.vertical)).collect(),
+            });
+        }
+        forces.push(Series {
+            label: "uplift".to_owned(),
+            points: rows.iter().map(|r| (r.x, r.uplift)).collect(),
+        });
+        let (moment_title, moments) =
+            moment_series(rows.iter().map(|r| (r.x, r.moment, r.axes.as_slice())));
+        let marks = vec![(baseline, "baseline".to_owned())];
+        let noise = noise_of(&forces);
+        panels.push(Panel {
+            title: format!("Case {name}: force of the liquid"),
+            x_label: "iteration".to_owned(),
+            quantity: Quantity::Force,
+            series: forces,
+            marks: marks.clone(),
+            integer_x: true,
+            include_zero: false,
+            noise,
+        });
+        panels.push(Panel {
+            title: format!("Case {name}: {}", moment_title.to_lowercase()),
+            x_label: "iteration".to_owned(),
+            quantity: Quantity::Moment,
+            series: moments,
+            marks,
+            integer_x: true,
+            include_zero: false,
+            noise,
+        });
+    }
+    Some(Chart {
+        title: format!("{mesh} · load history across saves"),
+        panels,
+    })
+}
+
+/// Width of a chart, px.
+pub const WIDTH: u32 = 960;
+const TITLE_H: u32 = 40;
+const PANEL_H: u32 = 300;
+const LEGEND_W: u32 = 210;
+/// Markers per series at most.
+const MARKERS: usize = 12;
+
+const FONT: &str = "sans-serif";
+const INK: RGBColor = RGBColor(0x22, 0x26, 0x2b);
+const GRID: RGBColor = RGBColor(0xe4, 0xe7, 0xea);
+const GRID_BOLD: RGBColor = RGBColor(0xc8, 0xcd, 0xd2);
+const MARK: RGBColor = RGBColor(0x8a, 0x90, 0x96);
+
+/// Our palette: dark enough to read as distinct greys when printed in black and white.
+const PALETTE: [RGBColor; 6] = [
+    RGBColor(0x1d, 0x4e, 0x89), // deep blue
+    RGBColor(0xb0, 0x4a, 0x1c), // rust
+    RGBColor(0x2f, 0x6b, 0x3a), // pine
+    RGBColor(0x6a, 0x3d, 0x8f), // plum
+    RGBColor(0x7a, 0x6a, 0x12), // ochre
+    RGBColor(0x0f, 0x6e, 0x74), // teal
+];
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Dash {
+    Solid,
+    Dashed,
+    Dotted,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Marker {
+    Circle,
+    Triangle,
+    Square,
+    Cross,
+    Disc,
+    Diamond,
+}
+
+fn look(i: usize) -> (RGBColor, Dash, Marker) {
+    const DASHES: [Dash; 3] = [Dash::Solid, Dash::Dashed, Dash::Dotted];
+    const MARKS: [Marker; 6] = [
+        Marker::Circle,
+        Marker::Triangle,
+        Marker::Square,
+        Marker::Cross,
+        Marker::Disc,
+        Marker::Diamond,
+    ];
+    (PALETTE[i % 6], DASHES[i % 3], MARKS[i % 6])
+}
+
+/// Renders a chart as a standalone SVG document (UTF-8 bytes).
+///
+/// Never fails: should plotters refuse to draw, the result is a small SVG that says so.
+pub fn render(chart: &Chart) -> Vec<u8> {
+    let mut buf = String::new();
+    match draw(chart, &mut buf) {
+        Ok(()) => buf.into_bytes(),
+        Err(e) => {
+            let mut s = String::new();
+            let _ = writeln!(
+                s,
+                "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{WIDTH}\" height=\"60\"><text x=\"10\" y=\"30\" font-family=\"{FONT}\">{}: the chart could not be drawn ({})</text></svg>",
+                escape(&chart.title),
+                escape(&e)
+            );
+            s.into_bytes()
+        }
+    }
+}
+
+fn escape(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+fn draw(chart: &Chart, buf: &mut String) -> Result<(), String> {
+    let n = chart.panels.len().max(1) as u32;
+    let height = TITLE_H + PANEL_H * n;
+    let root = SVGBackend::with_string(buf, (WIDTH, height)).into_drawing_area();
+    let e = |e: DrawingAreaErrorKind<std::io::Error>| e.to_string();
+    root.fill(&WHITE).map_err(e)?;
+    let (top, rest) = root.split_vertically(TITLE_H);
+    top.draw_text(
+        &chart.title,
+        &(FONT, 22).into_font().style(FontStyle::Bold).color(&INK),
+        (16, 12),
+    )
+    .map_err(e)?;
+    if chart.panels.is_empty() {
+        rest.draw_text(
+            "nothing to draw yet",
+            &(FONT, 16).into_font().color(&MARK),
+            (16, 20),
+        )
+        .map_err(e)?;
+    }
+    let areas = rest.split_evenly((chart.panels.len().max(1), 1));
+    for (area, panel) in areas.iter().zip(&chart.panels) {
+        draw_panel(&root, area, panel)?;
+    }
+    root.present().map_err(e)?;
+    Ok(())
+}
+
+/// SI prefix (factor, symbol) that keeps the largest magnitude between 1 and 1000 (no
+/// prefix below 1).
+pub(crate) fn prefix(max_abs: f64) -> (f64, &'static str) {
+    const P: [(f64, &str); 4] = [(1.0, ""), (1e3, "k"), (1e6, "M"), (1e9, "G")];
+    P.iter()
+        .rev()
+        .find(|(f, _)| max_abs >= *f)
+        .copied()
+        .unwrap_or(P[0])
+}
+
+/// A padded range around `lo..hi`.
+fn padded(lo: f64, hi: f64, frac: f64, min_pad: f64) -> (f64, f64) {
+    if !(lo.is_finite() && hi.is_finite()) {
+        return (0.0, 1.0);
+    }
+    if hi - lo <= 1e-12 * lo.abs().max(hi.abs()) {
+        let pad = (0.05 * lo.abs()).max(min_pad);
+        return (lo - pad, hi + pad);
+    }
+    let pad = frac * (hi - lo);
+    (lo - pad, hi + pad)
+}
+
+/// Decimals for tick labels over a span (about five ticks).
+fn decimals(span: f64) -> usize {
+    if !(span.is_finite() && span > 0.0) {
+        return 0;
+    }
+    (-(span / 5.0).log10().floor()).clamp(0.0, 6.0) as usize
+}
+
+fn draw_panel(
+    root: &DrawingArea<SVGBackend<'_>, Shift>,
+    area: &DrawingArea<SVGBackend<'_>, Shift>,
+    panel: &Panel,
+) -> Result<(), String> {
+    let e = |e: DrawingAreaErrorKind<std::io::Error>| e.to_string();
+    let (plot, legend) = area.split_horizontally(WIDTH - LEGEND_W);
+
+    let finite = |p: &&(f64, f64)| p.0.is_finite() && p.1.is_finite();
+    let clean = |&(x, y): &(f64, f64)| (x, if y.abs() <= panel.noise { 0.0 } else { y });
+    let all = || {
+        panel
+            .series
+            .iter()
+            .flat_map(|s| s.points.iter().filter(finite).map(clean))
+    };
+    let max_abs = all().map(|p| p.1.abs()).fold(0.0, f64::max);
+    let (scale, pre) = prefix(max_abs);
+    let unit = match panel.quantity {
+        Quantity::Force => format!("force ({pre}N)"),
+        Quantity::Moment => format!("moment ({pre}N·m)"),
+    };
+    let (mut ylo, mut yhi) = all().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
+        (a.min(p.1 / scale), b.max(p.1 / scale))
+    });
+    if panel.include_zero || ylo > yhi {
+        ylo = ylo.min(0.0);
+        yhi = yhi.max(0.0);
+    }
+    let (y0, y1) = padded(ylo, yhi, 0.08, 1.0);
+    let (xlo, xhi) = all()
+        .map(|p| p.0)
+        .chain(panel.marks.iter().map(|m| m.0))
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
+            (a.min(x), b.max(x))
+        });
+    let (x0, x1) = if panel.integer_x {
+        let (a, b) = if xlo > xhi { (1.0, 1.0) } else { (xlo, xhi) };
+        (a - 0.4, b + 0.4)
+    } else if xlo > xhi {
+        (0.0, 1.0)
+    } else {
+        padded(xlo, xhi, 0.0, 0.5)
+    };
+
+    let mut cc = ChartBuilder::on(&plot)
+        .caption(&panel.title, (FONT, 18).into_font().color(&INK))
+        .margin_left(10)
+        .margin_right(16)
+        .margin_top(6)
+        .margin_bottom(6)
+        .x_label_area_size(42)
+        .y_label_area_size(78)
+        .build_cartesian_2d(x0..x1, y0..y1)
+        .map_err(e)?;
+    let ydec = decimals(y1 - y0);
+    let xdec = decimals(x1 - x0);
+    let integer_x = panel.integer_x;
+    let xfmt = move |x: &f64| {
+        if integer_x {
+            if (x - x.round()).abs() < 1e-9 {
+                format!("{:.0}", x.round())
+            } else {
+                String::new()
+            }
+        } else {
+            format!("{x:.xdec$}")
+        }
+    };
+    let yfmt = move |y: &f64| {
+        let s = format!("{y:.ydec$}");
+        // No "-0.0" on the zero line.
+        match s.strip_prefix('-') {
+            Some(r) if r.chars().all(|c| c == '0' || c == '.') => r.to_owned(),
+            _ => s,
+        }
+    };
+    let span_x = (xhi - xlo).max(0.0);
+    let x_ticks = if integer_x {
+        (span_x as usize + 1).clamp(2, 12)
+    } else {
+        8
+    };
+    cc.configure_mesh()
+        .x_desc(panel.x_label.as_str())
+        .y_desc(unit.as_str())
+        .x_labels(x_ticks)
+        .y_labels(7)
+        .x_label_formatter(&xfmt)
+        .y_label_formatter(&yfmt)
+        .max_light_lines(1)
+        .light_line_style(GRID)
+        .bold_line_style(GRID_BOLD)
+        .axis_style(INK)
+        .label_style((FONT, 14).into_font().color(&INK))
+        .axis_desc_style((FONT, 16).into_font().color(&INK))
+        .draw()
+        .map_err(e)?;
+
+    // The zero line, when it is inside the plot.
+    if y0 < 0.0 && y1 > 0.0 {
+        cc.draw_series(LineSeries::new([(x0, 0.0), (x1, 0.0)], INK.stroke_width(1)))
+            .map_err(e)?;
+    }
+    for (x, label) in &panel.marks {
+        cc.draw_series(DashedLineSeries::new(
+            [(*x, y0), (*x, y1)],
+            5,
+            4,
+            MARK.stroke_width(1),
+        ))
+        .map_err(e)?;
+        let (px, py) = cc.backend_coord(&(*x, y1));
+        root.draw(&Text::new(
+            label.clone(),
+            (px + 4, py + 4),
+            (FONT, 14).into_font().color(&MARK),
+        ))
+        .map_err(e)?;
+    }
+
+    for (i, s) in panel.series.iter().enumerate() {
+        let (colour, dash, marker) = look(i);
+        let pts: Vec<(f64, f64)> = s
+            .points
+            .iter()
+            .filter(finite)
+            .map(clean)
+            .map(|(x, y)| (x, y / scale))
+            .collect();
+        let style = colour.stroke_width(2);
+        match dash {
+            Dash::Solid => cc
+                .draw_series(LineSeries::new(pts.iter().copied(), style))
+                .map(|_| ()),
+            Dash::Dashed => cc
+                .draw_series(DashedLineSeries::new(pts.iter().copied(), 9, 5, style))
+                .map(|_| ()),
+            Dash::Dotted => cc
+                .draw_series(DashedLineSeries::new(pts.iter().copied(), 2, 4, style))
+                .map(|_| ()),
+        }
+        .map_err(e)?;
+        // Markers on a subset, offset per series so that coinciding series stay apart.
+        let stride = pts.len().div_ceil(MARKERS).max(1);
+        for (j, p) in pts.iter().enumerate() {
+            if j % stride == i % stride || (j + 1 == pts.len() && pts.len() <= MARKERS) {
+                draw_marker(root, marker, cc.backend_coord(p), colour)?;
+            }
+        }
+    }
+
+    // Legend, outside the data: a line sample with its marker, then the label.
+    let (lx, ly) = legend.get_base_pixel();
+    for (i, s) in panel.series.iter().enumerate() {
+        let (colour, dash, marker) = look(i);
+        let y = ly + 44 + 22 * i as i32;
+        let line = [(lx + 4, y), (lx + 40, y)];
+        let style = colour.stroke_width(2);
+        match dash {
+            Dash::Solid => root.draw(&PathElement::new(line, style)),
+            Dash::Dashed => root.draw(&DashedPathElement::new(line, 9, 5, style)),
+            Dash::Dotted => root.draw(&DashedPathElement::new(line, 2, 4, style)),
+        }
+        .map_err(e)?;
+        draw_marker(root, marker, (lx + 22, y), colour)?;
+        let label: String = if s.label.chars().count() > 22 {
+            s.label.chars().take(21).chain(['…']).collect()
+        } else {
+            s.label.clone()
+        };
+        root.draw(&Text::new(
+            label,
+            (lx + 48, y - 8),
+            (FONT, 16).into_font().color(&INK),
+        ))
+        .map_err(e)?;
+    }
+    Ok(())
+}
+
+fn draw_marker(
+    root: &DrawingArea<SVGBackend<'_>, Shift>,
+    marker: Marker,
+    (x, y): (i32, i32),
+    colour: RGBColor,
+) -> Result<(), String> {
+    let e = |e: DrawingAreaErrorKind<std::io::Error>| e.to_string();
+    let hollow = ShapeStyle::from(&WHITE).filled();
+    let edge = colour.stroke_width(2);
+    match marker {
+        Marker::Circle => {
+            root.draw(&Circle::new((x, y), 4, hollow)).map_err(e)?;
+            root.draw(&Circle::new((x, y), 4, edge)).map_err(e)
+        }
+        Marker::Disc => root
+            .draw(&Circle::new((x, y), 4, colour.filled()))
+            .map_err(e),
+        Marker::Triangle => root
+            .draw(&Polygon::new(
+                vec![(x, y - 5), (x + 5, y + 4), (x - 5, y + 4)],
+                colour.filled(),
+            ))
+            .map_err(e),
+        Marker::Square => {
+            let r = [(x - 4, y - 4), (x + 4, y + 4)];
+            root.draw(&Rectangle::new(r, hollow)).map_err(e)?;
+            root.draw(&Rectangle::new(r, edge)).map_err(e)
+        }
+        Marker::Cross => {
+            root.draw(&PathElement::new([(x - 4, y - 4), (x + 4, y + 4)], edge))
+                .map_err(e)?;
+            root.draw(&PathElement::new([(x - 4, y + 4), (x + 4, y - 4)], edge))
+                .map_err(e)
+        }
+        Marker::Diamond => {
+            let d = vec![(x, y - 5), (x + 5, y), (x, y + 5), (x - 5, y)];
+            root.draw(&Polygon::new(d.clone(), hollow)).map_err(e)?;
+            let mut outline = d;
+            outline.push((x, y - 5));
+            root.draw(&PathElement::new(outline, edge)).map_err(e)
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    /// Whether the SVG has a text element reading exactly `text` (plotters writes the
+    /// text on a line of its own).
+    fn has_text(svg: &str, text: &str) -> bool {
+        svg.contains(&format!(">\n{text}\n</text>"))
+    }
+
+    fn line(iteration: u64, fz: f64, axes: Value) -> Value {
+        json!({
+            "time": "2026-01-01T00:00:00Z", "mesh": "gate.stl", "event": "computed",
+            "iteration": iteration,
+            "cases": [{
+                "name": "normal", "force": [1000.0 * iteration as f64, 0.0, fz],
+                "moment": [0.0, 5.0e4, 0.0], "vertical_force": fz, "uplift": fz.max(0.0),
+                "axis_moments": axes,
+            }],
+        })
+    }
+
+    #[test]
+    fn the_history_has_a_panel_pair_per_case_and_marks_the_baseline() {
+        let lines = vec![
+            json!({"time": "t", "mesh": "other.stl", "event": "computed", "iteration": 1,
+                   "cases": [{"name": "x", "force": [1.0, 2.0, 3.0], "moment": [0.0, 0.0, 0.0],
+                              "vertical_force": 3.0, "uplift": 3.0, "axis_moments": {}}]}),
+            line(1, 2.0e5, json!({"trunnion": -1.0e5})),
+            json!({"time": "t", "mesh": "gate.stl", "event": "failed", "error": "bad"}),
+            line(2, 2.5e5, json!({"trunnion": -1.2e5})),
+            line(3, 2.4e5, json!({"trunnion": -1.1e5})),
+        ];
+        let chart = history_chart("gate.stl", &lines).expect("computed lines");
+        assert_eq!(chart.panels.len(), 2);
+        // Up is +z here, so the vertical force is Fz: Fx, Fy, Fz (vertical), uplift, and
+        // one axis moment.
+        assert_eq!(chart.panels[0].series.len(), 4);
+        assert_eq!(chart.panels[0].series[2].label, "Fz (vertical)");
+        assert_eq!(chart.panels[1].series.len(), 1);
+        assert_eq!(chart.series_count(), 5);
+        assert_eq!(chart.panels[0].series[0].points.len(), 3);
+        assert_eq!(chart.panels[0].marks, vec![(1.0, "baseline".to_owned())]);
+
+        let svg = String::from_utf8(render(&chart)).expect("utf-8");
+        assert!(svg.starts_with("<svg"), "{}", &svg[..80]);
+        assert!(svg.trim_end().ends_with("</svg>"));
+        for label in [
+            "iteration",
+            "force (kN)",
+            "moment (kN·m)",
+            "Fz (vertical)",
+            "about trunnion",
+            "baseline",
+        ] {
+            assert!(has_text(&svg, label), "missing {label}");
+        }
+        // One legend label per series, each exactly once.
+        for s in chart.panels.iter().flat_map(|p| &p.series) {
+            let n = svg.matches(&format!(">\n{}\n</text>", s.label)).count();
+            assert_eq!(n, 1, "{}", s.label);
+        }
+        assert!(history_chart("missing.stl", &lines).is_none());
+    }
+
+    #[test]
+    fn a_vertical_force_that_is_no_component_gets_its_own_series() {
+        // Up is −z: vertical = −Fz.
+        let mut l = line(1, 3.0e5, json!({}));
+        l["cases"][0]["vertical_force"] = json!(-3.0e5);
+        let chart = history_chart("gate.stl", &[l]).expect("one line");
+        let labels: Vec<&str> = chart.panels[0]
+            .series
+            .iter()
+            .map(|s| s.label.as_str())
+            .collect();
+        assert_eq!(labels, ["Fx", "Fy", "Fz", "vertical (+ up)", "uplift"]);
+        // Without axes, the moment components.
+        assert_eq!(chart.panels[1].series.len(), 3);
+        let svg = String::from_utf8(render(&chart)).expect("utf-8");
+        assert!(has_text(&svg, "Mx") && has_text(&svg, "vertical (+ up)"));
+    }
+
+    #[test]
+    fn a_sweep_chart_draws_forces_and_axis_moments_against_level() {
+        let steps: Vec<SweepPoint> = (0..=8)
+            .map(|i| {
+                let h = 0.5 * i as f64;
+                // Closed form, a vertical wall 1 m wide: F = ρ g h² / 2.
+                let f = 1000.0 * 9.80665 * h * h / 2.0;
+                SweepPoint {
+                    level: h,
+                    force: [f, 0.0, 0.0],
+                    moment: [0.0, f * h / 3.0, 0.0],
+                    uplift: 0.0,
+                    axis_moments: vec![("hinge".to_owned(), f * h / 3.0)],
+                }
+            })
+            .collect();
+        let chart = sweep_chart("wall.stl", "normal", Some("headwater"), &steps);
+        assert_eq!(chart.series_count(), 5);
+        let svg = String::from_utf8(render(&chart)).expect("utf-8");
+        for label in [
+            "level of headwater (m)",
+            "force (kN)",
+            "moment (kN·m)",
+            "uplift",
+            "about hinge",
+        ] {
+            assert!(has_text(&svg, label), "missing {label}");
+        }
+        // Round trip through the result document's JSON.
+        let v = json!({"level": 2.0, "force": [1.0, 2.0, 3.0], "moment": [4.0, 5.0, 6.0],
+                       "uplift": 7.0, "downthrust": 0.0, "wetted_area": 1.0,
+                       "submerged_volume": null,
+                       "axis_moments": {"hinge": {"moment": 8.0, "miss_distance": null}}});
+        let p = SweepPoint::from_json(&v).expect("complete");
+        assert_eq!(p.axis_moments, vec![("hinge".to_owned(), 8.0)]);
+        assert_eq!(p.force, [1.0, 2.0, 3.0]);
+        assert!(SweepPoint::from_json(&json!({"level": 1.0})).is_none());
+    }
+
+    #[test]
+    fn user_names_are_escaped_and_prefixes_follow_the_magnitude() {
+        let chart = Chart {
+            title: "<script>".to_owned(),
+            panels: vec![Panel {
+                title: "a & b".to_owned(),
+                x_label: "level (m)".to_owned(),
+                quantity: Quantity::Force,
+                series: vec![Series {
+                    label: "</text>".to_owned(),
+                    points: vec![(0.0, 2.0e7), (1.0, f64::NAN), (2.0, 3.0e7)],
+                }],
+                marks: Vec::new(),
+                integer_x: false,
+                include_zero: true,
+                noise: 0.0,
+            }],
+        };
+        let svg = String::from_utf8(render(&chart)).expect("utf-8");
+        assert!(!svg.contains("<script>") && !svg.contains("a & b"));
+        assert!(has_text(&svg, "&lt;/text&gt;"));
+        assert!(has_text(&svg, "force (MN)"));
+        // Round-off below the noise level is drawn as zero, not blown up to fill a panel.
+        let mut quiet = chart.clone();
+        quiet.panels[0].series[0].points = vec![(0.0, 3e-10), (10.0, -2e-10), (20.0, 1e-10)];
+        quiet.panels[0].noise = 1e-3;
+        let svg = String::from_utf8(render(&quiet)).expect("utf-8");
+        assert!(has_text(&svg, "1.0") && has_text(&svg, "force (N)"));
+        quiet.panels[0].noise = 0.0;
+        let svg = String::from_utf8(render(&quiet)).expect("utf-8");
+        assert!(!has_text(&svg, "1.0"));
+        assert_eq!(prefix(999.0), (1.0, ""));
+        assert_eq!(prefix(1000.0), (1e3, "k"));
+        assert_eq!(prefix(0.0), (1.0, ""));
+    }
+}
