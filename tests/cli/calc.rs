@@ -343,13 +343,20 @@ fn no_temporary_files_left_after_success_or_failure() {
     let f = Folder::new();
     write_box(&f, "tank");
     f.calc(&["tank.stl"]).expect_code(0);
-    assert_eq!(f.results_listing(), ["tank.json"]);
+    assert!(f.results_listing().contains(&"tank.json".to_owned()));
+    assert!(temp_files(&f).is_empty());
 
     // A failing input next to it.
     f.write("broken.stl", "solid broken\nendsolid broken\n");
     f.write("broken.json", BOX_SIDECAR);
     f.calc(&["broken.stl", "tank.stl"]).expect_code(1);
-    assert_eq!(f.results_listing(), ["tank.json"]);
+    let listing = f.results_listing();
+    assert!(listing.contains(&"tank.json".to_owned()));
+    assert!(
+        !listing.iter().any(|n| n.starts_with("broken")),
+        "{listing:?}"
+    );
+    assert!(temp_files(&f).is_empty());
 }
 
 #[test]
@@ -420,6 +427,9 @@ fn the_demo_folder() {
     let mut meshes = Vec::new();
     for entry in fs::read_dir(&demo).expect("the demo folder exists") {
         let path = entry.expect("a readable entry").path();
+        if !path.is_file() {
+            continue; // e.g. a results/ folder left by a local run
+        }
         let name = path
             .file_name()
             .expect("entries have names")
@@ -438,15 +448,10 @@ fn the_demo_folder() {
     let run = f.calc(&args);
     run.expect_code(0);
     assert!(!run.stderr.contains("panicked"));
-    assert_eq!(
-        f.results_listing(),
-        [
-            "culvert.json",
-            "pontoon.json",
-            "radial_gate.json",
-            "wet_well.json"
-        ]
-    );
+    let listing = f.results_listing();
+    for stem in ["culvert", "pontoon", "radial_gate", "wet_well"] {
+        assert!(listing.contains(&format!("{stem}.json")), "{listing:?}");
+    }
     for stem in ["culvert", "pontoon", "radial_gate", "wet_well"] {
         let doc = f.result(stem);
         assert_eq!(doc["schema"], 1, "{stem}");
