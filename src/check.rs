@@ -251,22 +251,13 @@ pub fn render(h: &Health) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::mesh::{Format, Part};
+    use crate::mesh::Format;
     use crate::shapes;
 
     fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>, normals: bool) -> Mesh {
-        let mut facets = Vec::new();
-        let mut out = Vec::new();
-        for (name, t) in parts {
-            let start = facets.len();
-            facets.extend(t);
-            out.push(Part {
-                name: name.to_owned(),
-                facets: start..facets.len(),
-            });
-        }
+        let mut m = Mesh::from_parts(parts, Format::StlAscii);
         let stored_normals = normals.then(|| {
-            facets
+            m.facets
                 .iter()
                 .map(|t: &[[f64; 3]; 3]| {
                     let u = [t[1][0] - t[0][0], t[1][1] - t[0][1], t[1][2] - t[0][2]];
@@ -279,12 +270,8 @@ mod tests {
                 })
                 .collect()
         });
-        Mesh {
-            facets,
-            parts: out,
-            stored_normals,
-            format: Format::StlAscii,
-        }
+        m.stored_normals = stored_normals;
+        m
     }
 
     fn cube(at: f64) -> Vec<shapes::Triangle> {

@@ -941,7 +941,7 @@ fn check_finite(r: &MeshResult) -> Result<(), ComputeError> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::mesh::{Format, Part};
+    use crate::mesh::Format;
     use crate::shapes;
     use crate::sidecar::parse_sidecar;
     use approx::assert_relative_eq;
@@ -950,22 +950,7 @@ mod tests {
     const G: f64 = 9.80665;
 
     fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>) -> Mesh {
-        let mut facets = Vec::new();
-        let mut out = Vec::new();
-        for (name, t) in parts {
-            let start = facets.len();
-            facets.extend(t);
-            out.push(Part {
-                name: name.to_owned(),
-                facets: start..facets.len(),
-            });
-        }
-        Mesh {
-            facets,
-            parts: out,
-            stored_normals: None,
-            format: Format::Obj,
-        }
+        Mesh::from_parts(parts, Format::Obj)
     }
 
     fn side(json: &str) -> Sidecar {

@@ -60,7 +60,8 @@ fn check_meshes(args: &CheckArgs) -> ExitCode {
         let h = check::check(&name, &mesh, scale);
         ok &= h.usable_as_is;
         if !args.json {
-            print!("{}", check::render(&h));
+            // A closed pipe is not an error worth a panic.
+            let _ = std::io::stdout().write_all(check::render(&h).as_bytes());
         }
         reports.push(h);
     }
@@ -70,10 +71,8 @@ fn check_meshes(args: &CheckArgs) -> ExitCode {
         } else {
             serde_json::to_string_pretty(&reports)
         };
-        println!(
-            "{}",
-            text.expect("plain structs with string keys always serialize")
-        );
+        let text = text.expect("plain structs with string keys always serialize");
+        let _ = writeln!(std::io::stdout(), "{text}");
     }
     if ok {
         ExitCode::SUCCESS
@@ -97,10 +96,12 @@ fn watch(args: &WatchArgs) -> ExitCode {
     }
     match watch::run(&opts, stop, Box::new(std::io::stdout())) {
         Ok(outcome) => {
+            // A closed pipe (e.g. `| head`) is not an error worth a panic.
+            let mut out = std::io::stdout().lock();
             if !args.once {
-                println!("stopped");
+                let _ = writeln!(out, "stopped");
             }
-            println!("\n{}", summary::caution_text(compute::CAUTION));
+            let _ = writeln!(out, "\n{}", summary::caution_text(compute::CAUTION));
             if outcome.failures > 0 {
                 ExitCode::from(1)
             } else {

@@ -163,6 +163,14 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), RunError> {
         .tempfile_in(dir)
         .map_err(err)?;
     tmp.write_all(bytes).map_err(err)?;
+    // Temporary files are created private (0600); results are meant to be shared.
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        tmp.as_file()
+            .set_permissions(fs::Permissions::from_mode(0o644))
+            .map_err(err)?;
+    }
     tmp.as_file().sync_all().map_err(err)?;
     tmp.persist(path).map_err(|e| err(e.error))?;
     // Make the rename itself durable; a folder that cannot be opened for this is no error.

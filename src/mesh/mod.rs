@@ -58,6 +58,27 @@ pub struct Mesh {
 }
 
 impl Mesh {
+    /// A mesh built from named groups of facets, in order (each group one part), with no
+    /// stored normals: for generated geometry in tests, benchmarks and examples.
+    pub fn from_parts<S: Into<String>>(groups: Vec<(S, Vec<Facet>)>, format: Format) -> Mesh {
+        let mut facets = Vec::new();
+        let mut parts = Vec::with_capacity(groups.len());
+        for (name, tris) in groups {
+            let start = facets.len();
+            facets.extend(tris);
+            parts.push(Part {
+                name: name.into(),
+                facets: start..facets.len(),
+            });
+        }
+        Mesh {
+            facets,
+            parts,
+            stored_normals: None,
+            format,
+        }
+    }
+
     /// The facets of part `i` (panics if `i` is out of range, like slice indexing).
     pub fn part_facets(&self, i: usize) -> &[Facet] {
         &self.facets[self.parts[i].facets.clone()]

@@ -241,7 +241,7 @@ fn comment_safe(text: &str) -> String {
 mod tests {
     use super::*;
     use crate::compute::{self, field};
-    use crate::mesh::{Format, Mesh, Part};
+    use crate::mesh::{Format, Mesh};
     use crate::shapes;
     use crate::sidecar::parse_sidecar;
     use approx::assert_relative_eq;
@@ -251,22 +251,7 @@ mod tests {
     const G: f64 = 9.80665;
 
     fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>) -> Mesh {
-        let mut facets = Vec::new();
-        let mut out = Vec::new();
-        for (name, t) in parts {
-            let start = facets.len();
-            facets.extend(t);
-            out.push(Part {
-                name: name.to_owned(),
-                facets: start..facets.len(),
-            });
-        }
-        Mesh {
-            facets,
-            parts: out,
-            stored_normals: None,
-            format: Format::Obj,
-        }
+        Mesh::from_parts(parts, Format::Obj)
     }
 
     fn read_back(bytes: &[u8]) -> PolyDataPiece {

@@ -305,7 +305,9 @@ impl Watch<'_> {
                         st.hashes = Some((m.to_owned(), s.to_owned()));
                     }
                 }
-                Some("removed") => st.hashes = None,
+                // After a failure or a removal the next save must compute even if it
+                // restores the last good content, or the stale mark would stay.
+                Some("removed" | "failed") => st.hashes = None,
                 _ => {}
             }
         }

@@ -13,7 +13,7 @@
 use std::path::Path;
 
 use wetload::compute::{self, ComputeError, Loads, MeshResult};
-use wetload::mesh::{Format, Mesh, Part};
+use wetload::mesh::{Format, Mesh};
 use wetload::shapes::Triangle;
 use wetload::sidecar::parse_sidecar;
 
@@ -57,22 +57,7 @@ pub fn single(tris: Vec<Triangle>) -> Mesh {
 
 /// A mesh of several named parts, in order (as an ASCII STL with several solids).
 pub fn parts(list: Vec<(&str, Vec<Triangle>)>) -> Mesh {
-    let mut facets = Vec::new();
-    let mut out = Vec::new();
-    for (name, tris) in list {
-        let start = facets.len();
-        facets.extend(tris);
-        out.push(Part {
-            name: name.to_owned(),
-            facets: start..facets.len(),
-        });
-    }
-    Mesh {
-        facets,
-        parts: out,
-        stored_normals: None,
-        format: Format::StlAscii,
-    }
+    Mesh::from_parts(list, Format::StlAscii)
 }
 
 /// Computes `mesh` with the sidecar text `json`; panics with the error if either is refused.
