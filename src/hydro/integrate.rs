@@ -105,7 +105,9 @@ impl PartAccum {
         self
     }
 
-    fn add_facet(&mut self, f: &FacetLoads) {
+    /// Adds one facet's loads: its force to the uplift or the downthrust by the sign of
+    /// its vertical component, and so on (the order of calls is the order of the sums).
+    pub fn add_facet(&mut self, f: &FacetLoads) {
         self.force += f.force;
         self.moment += f.moment;
         self.wetted_area += f.wetted_area;

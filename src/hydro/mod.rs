@@ -24,12 +24,14 @@ mod clip;
 mod integrate;
 mod loads;
 mod pressure;
+mod sweep;
 mod topology;
 
 pub use clip::{Piece, clip_polygon, slab_pieces};
 pub use integrate::{CHUNK, FacetLoads, PartAccum, PartInput, facet_loads, integrate, part_planes};
 pub use loads::{LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of};
 pub use pressure::{Layer, Liquid, LiquidError, Profile};
+pub use sweep::{SweepPart, SweptLiquid, sweep};
 pub use topology::{Defect, NO_SHELL, ShellInfo, Topology, WELD_TOLERANCE_REL, bounding_box};
 
 use nalgebra::Vector3;
