@@ -13,7 +13,7 @@ use crate::hydro::{
     Topology, Tri, Vec3, WetSide, Wetting,
 };
 use crate::mesh::Mesh;
-use crate::sidecar::{Sidecar, UnassignedPart};
+use crate::sidecar::{Case, Sidecar, Sweep, UnassignedPart};
 
 /// Version of the result document's layout.
 pub const SCHEMA: u32 = 1;
@@ -124,6 +124,9 @@ pub struct CaseResult {
     pub parts: Vec<PartResult>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub sweep: Option<Vec<SweepStep>>,
+    /// With a sweep: the largest magnitude of each headline quantity and its level.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sweep_governing: Option<Governing>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub flotation: Option<FlotationCheck>,
 }
@@ -250,34 +253,9 @@ pub fn compute(
         let (loads, parts) = assemble(&prep, mesh, &accs);
         let sweep = match &sidecar.sweep {
             None => None,
-            Some(sw) => {
-                let mut steps = Vec::new();
-                for level in sw.levels() {
-                    let mut liquids = case.liquids.clone();
-                    liquids[sw.liquid].level_m = level;
-                    let profiles = profiles_of(sidecar, &case.name, &liquids, prep.centre.z)?;
-                    let accs = run(&prep, mesh, &profiles);
-                    let total = total_of(&accs);
-                    let l = loads_of(
-                        &prep,
-                        &total,
-                        prep.topology.closed(),
-                        prep.mesh_plane.as_ref(),
-                    );
-                    steps.push(SweepStep {
-                        level,
-                        force: l.force,
-                        moment: l.moment,
-                        uplift: l.uplift,
-                        downthrust: l.downthrust,
-                        wetted_area: l.wetted_area,
-                        submerged_volume: l.submerged_volume,
-                        axis_moments: l.axis_moments,
-                    });
-                }
-                Some(steps)
-            }
+            Some(sw) => Some(sweep_steps(&prep, mesh, sidecar, case, sw, &accs)?),
         };
+        let sweep_governing = sweep.as_deref().map(governing);
         let flotation = sidecar.flotation.as_ref().map(|f| {
             let uplift = loads.vertical_force.max(0.0);
             let resisting: f64 = f.resisting.iter().map(|(_, v)| v).sum();
@@ -318,6 +296,7 @@ pub fn compute(
             loads,
             parts,
             sweep,
+            sweep_governing,
             flotation,
         });
     }
@@ -800,6 +779,143 @@ fn run(prep: &Prepared, mesh: &Mesh, profiles: &[Profile]) -> Vec<PartAccum> {
         })
         .collect();
     hydro::integrate(&prep.tris, &inputs, &prep.wetting, &prep.vol_sign)
+}
+
+/// The steps of a level sweep in one case: the parts the swept liquid does not reach
+/// keep the case's sums (`accs`), the others go through [`hydro::sweep`] in one pass.
+fn sweep_steps(
+    prep: &Prepared,
+    mesh: &Mesh,
+    sidecar: &Sidecar,
+    case: &Case,
+    sw: &Sweep,
+    accs: &[PartAccum],
+) -> Result<Vec<SweepStep>, ComputeError> {
+    let closed = prep.topology.closed();
+    let mut fixed = PartAccum::default();
+    let mut parts = Vec::new();
+    for (i, (p, (liquid, _))) in mesh.parts.iter().zip(&prep.part_setup).enumerate() {
+        let wet = *liquid == Some(sw.liquid);
+        // Volumes are measured below the part's own liquid, or the first one (see `run`).
+        let volume = closed && liquid.unwrap_or(0) == sw.liquid;
+        if wet || volume {
+            parts.push(hydro::SweepPart {
+                facets: p.facets.clone(),
+                wet,
+                volume,
+            });
+        } else {
+            fixed = fixed.merge(&accs[i]);
+        }
+    }
+    let levels = sw.levels();
+    let swept = hydro::SweptLiquid {
+        liquid: &case.liquids[sw.liquid],
+        g_m_s2: sidecar.gravity_m_s2,
+        origin_z: prep.centre.z,
+    };
+    let sums = hydro::sweep(
+        &prep.tris,
+        &parts,
+        &prep.wetting,
+        &prep.vol_sign,
+        &swept,
+        &levels,
+    )
+    .map_err(|source| ComputeError::Liquid {
+        case: case.name.clone(),
+        liquid: sidecar.liquids[sw.liquid].name.clone(),
+        source,
+    })?;
+    Ok(levels
+        .iter()
+        .zip(&sums)
+        .map(|(&level, acc)| {
+            let l = loads_of(prep, &fixed.merge(acc), closed, prep.mesh_plane.as_ref());
+            SweepStep {
+                level,
+                force: l.force,
+                moment: l.moment,
+                uplift: l.uplift,
+                downthrust: l.downthrust,
+                wetted_area: l.wetted_area,
+                submerged_volume: l.submerged_volume,
+                axis_moments: l.axis_moments,
+            }
+        })
+        .collect())
+}
+
+/// The largest magnitude of one quantity over a sweep, with its sign, and the level.
+#[derive(Clone, Copy, Debug, Serialize, PartialEq)]
+pub struct Extreme {
+    /// The value at that level (signed; its magnitude is the largest), SI.
+    pub value: f64,
+    /// m; the lowest level where the magnitude comes within a relative 1e-9 of the
+    /// largest (values equal in exact arithmetic differ by round-off).
+    pub level: f64,
+}
+
+/// The governing (largest-magnitude) value of each headline quantity over a sweep
+/// (`sweep_governing` in the result; force components in mesh axes, N; moments N·m;
+/// volume m³). `submerged_volume` is absent for an open mesh.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct Governing {
+    pub force_x: Extreme,
+    pub force_y: Extreme,
+    pub force_z: Extreme,
+    pub force_magnitude: Extreme,
+    pub uplift: Extreme,
+    pub downthrust: Extreme,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub submerged_volume: Option<Extreme>,
+    pub axis_moments: std::collections::BTreeMap<String, Extreme>,
+}
+
+/// The governing values of a sweep's steps (never empty: a sweep has at least one level).
+pub fn governing(steps: &[SweepStep]) -> Governing {
+    let pick = |f: &dyn Fn(&SweepStep) -> f64| {
+        let largest = steps.iter().map(|s| f(s).abs()).fold(0.0, f64::max);
+        // Equal values (a plateau, as buoyancy once a body is under) differ by round-off:
+        // the first level within 1e-9 of the largest governs, not the noisiest.
+        let s = steps
+            .iter()
+            .find(|s| f(s).abs() >= largest * (1.0 - 1e-9))
+            .or(steps.first());
+        s.map_or(
+            Extreme {
+                value: 0.0,
+                level: 0.0,
+            },
+            |s| Extreme {
+                value: f(s),
+                level: s.level,
+            },
+        )
+    };
+    let axes = steps
+        .first()
+        .map(|s| s.axis_moments.keys().cloned().collect::<Vec<_>>())
+        .unwrap_or_default();
+    Governing {
+        force_x: pick(&|s| s.force[0]),
+        force_y: pick(&|s| s.force[1]),
+        force_z: pick(&|s| s.force[2]),
+        force_magnitude: pick(&|s| s.force.iter().map(|x| x * x).sum::<f64>().sqrt()),
+        uplift: pick(&|s| s.uplift),
+        downthrust: pick(&|s| s.downthrust),
+        submerged_volume: steps
+            .first()
+            .and_then(|s| s.submerged_volume)
+            .map(|_| pick(&|s| s.submerged_volume.unwrap_or(0.0))),
+        axis_moments: axes
+            .into_iter()
+            .map(|name| {
+                let e = pick(&|s| s.axis_moments.get(&name).map_or(0.0, |a| a.moment));
+                (name, e)
+            })
+            .collect(),
+    }
 }
 
 fn total_of(accs: &[PartAccum]) -> PartAccum {

@@ -3,8 +3,8 @@
 //! Each module compares with one kind of outside reference, named beside every check:
 //! closed forms and the exact derived checks of the trade notes (`closed_form`), published
 //! worked examples rebuilt as meshes (`textbook`), the mass properties and plane splits of
-//! parry3d-f64 (`parry`), physical invariances (`invariance`), and real CAD exports
-//! (`real_exports`). Helpers live in `support`.
+//! parry3d-f64 (`parry`), physical invariances (`invariance`), real CAD exports
+//! (`real_exports`), and level sweeps against single calculations (`sweep`). Helpers live in `support`.
 //!
 //! `cargo test --test reference -- --nocapture` prints one `REF` line per comparison with
 //! the error observed and the tolerance allowed.
@@ -14,4 +14,5 @@ mod invariance;
 mod parry;
 mod real_exports;
 mod support;
+mod sweep;
 mod textbook;
