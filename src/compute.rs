@@ -255,7 +255,9 @@ pub fn compute(
             None => None,
             Some(sw) => Some(sweep_steps(&prep, mesh, sidecar, case, sw, &accs)?),
         };
-        let sweep_governing = sweep.as_deref().map(governing);
+        let sweep_governing = sweep.as_deref().zip(sidecar.sweep.as_ref()).map(|(steps, sw)| {
+            governing(&sidecar.liquids[sw.liquid].name, steps, diagonal(&prep))
+        });
         let flotation = sidecar.flotation.as_ref().map(|f| {
             let uplift = loads.vertical_force.max(0.0);
             let resisting: f64 = f.resisting.iter().map(|(_, v)| v).sum();
@@ -861,6 +863,8 @@ pub struct Extreme {
 /// volume m³). `submerged_volume` is absent for an open mesh.
 #[derive(Clone, Debug, Serialize, PartialEq)]
 pub struct Governing {
+    /// The liquid whose level the sweep steps.
+    pub liquid: String,
     pub force_x: Extreme,
     pub force_y: Extreme,
     pub force_z: Extreme,
@@ -872,32 +876,51 @@ pub struct Governing {
     pub axis_moments: std::collections::BTreeMap<String, Extreme>,
 }
 
-/// The governing values of a sweep's steps (never empty: a sweep has at least one level).
-pub fn governing(steps: &[SweepStep]) -> Governing {
-    let pick = |f: &dyn Fn(&SweepStep) -> f64| {
+/// The governing values of a sweep's steps; `extent_m` (the mesh's size) scales the
+/// round-off of moments.
+///
+/// A quantity whose largest magnitude is round-off (at most 1e-12 of the largest
+/// uplift + downthrust + |F| of the sweep, times `extent_m` for moments), such as the
+/// horizontal force on a closed body, governs as 0 at the first level.
+pub fn governing(liquid: &str, steps: &[SweepStep], extent_m: f64) -> Governing {
+    let force_scale = steps
+        .iter()
+        .map(|s| s.uplift + s.downthrust + s.force.iter().map(|x| x.abs()).sum::<f64>())
+        .fold(0.0, f64::max);
+    let pick_above = |f: &dyn Fn(&SweepStep) -> f64, noise: f64| {
         let largest = steps.iter().map(|s| f(s).abs()).fold(0.0, f64::max);
+        let first = steps.first().map_or(0.0, |s| s.level);
+        if largest <= noise {
+            return Extreme {
+                value: 0.0,
+                level: first,
+            };
+        }
         // Equal values (a plateau, as buoyancy once a body is under) differ by round-off:
         // the first level within 1e-9 of the largest governs, not the noisiest.
-        let s = steps
+        steps
             .iter()
             .find(|s| f(s).abs() >= largest * (1.0 - 1e-9))
-            .or(steps.first());
-        s.map_or(
-            Extreme {
-                value: 0.0,
-                level: 0.0,
-            },
-            |s| Extreme {
-                value: f(s),
-                level: s.level,
-            },
-        )
+            .map_or(
+                Extreme {
+                    value: 0.0,
+                    level: first,
+                },
+                |s| Extreme {
+                    value: f(s),
+                    level: s.level,
+                },
+            )
     };
+    let pick = |f: &dyn Fn(&SweepStep) -> f64| pick_above(f, 1e-12 * force_scale);
+    let pick_moment =
+        |f: &dyn Fn(&SweepStep) -> f64| pick_above(f, 1e-12 * force_scale * extent_m);
     let axes = steps
         .first()
         .map(|s| s.axis_moments.keys().cloned().collect::<Vec<_>>())
         .unwrap_or_default();
     Governing {
+        liquid: liquid.to_owned(),
         force_x: pick(&|s| s.force[0]),
         force_y: pick(&|s| s.force[1]),
         force_z: pick(&|s| s.force[2]),
@@ -907,15 +930,21 @@ pub fn governing(steps: &[SweepStep]) -> Governing {
         submerged_volume: steps
             .first()
             .and_then(|s| s.submerged_volume)
-            .map(|_| pick(&|s| s.submerged_volume.unwrap_or(0.0))),
+            .map(|_| pick_above(&|s| s.submerged_volume.unwrap_or(0.0), 0.0)),
         axis_moments: axes
             .into_iter()
             .map(|name| {
-                let e = pick(&|s| s.axis_moments.get(&name).map_or(0.0, |a| a.moment));
+                let e = pick_moment(&|s| s.axis_moments.get(&name).map_or(0.0, |a| a.moment));
                 (name, e)
             })
             .collect(),
     }
+}
+
+/// The diagonal of the mesh's bounding box, m.
+fn diagonal(prep: &Prepared) -> f64 {
+    let (lo, hi) = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+    (hi - lo).norm()
 }
 
 fn total_of(accs: &[PartAccum]) -> PartAccum {
@@ -1232,5 +1261,41 @@ mod tests {
         let cp = l.centre_of_pressure.expect("planar");
         assert_relative_eq!(-cp[2], 26.0 / 12.0, max_relative = 1e-13);
         assert_relative_eq!(cp[0], 1.0, epsilon = 1e-12);
+    }
+
+    #[test]
+    fn governing_values_take_the_largest_magnitude_and_ignore_round_off() {
+        let step = |level: f64, fx: f64, fz: f64, m: f64| SweepStep {
+            level,
+            force: [fx, 1e-9 * level, fz],
+            moment: [0.0; 3],
+            uplift: fz.max(0.0),
+            downthrust: (-fz).max(0.0),
+            wetted_area: 0.0,
+            submerged_volume: Some(fz / 1e4),
+            axis_moments: [(
+                "hinge".to_owned(),
+                AxisMoment {
+                    moment: m,
+                    miss_distance: None,
+                },
+            )]
+            .into(),
+        };
+        // F_x peaks negative in the middle; F_z reaches a plateau (equal up to round-off)
+        // at 2 m; F_y is round-off only.
+        let steps = [
+            step(1.0, -10.0, 5e4, 3.0),
+            step(2.0, -30.0, 1e5, -7.0),
+            step(3.0, -20.0, 1e5 * (1.0 + 1e-15), 6.0),
+        ];
+        let g = governing("river", &steps, 10.0);
+        assert_eq!(g.liquid, "river");
+        assert_eq!((g.force_x.value, g.force_x.level), (-30.0, 2.0));
+        assert_eq!(g.force_z.level, 2.0);
+        assert_eq!((g.force_y.value, g.force_y.level), (0.0, 1.0));
+        assert_eq!(g.axis_moments["hinge"].value, -7.0);
+        assert_eq!(g.submerged_volume.map(|v| v.level), Some(2.0));
+        assert_eq!(g.downthrust.value, 0.0);
     }
 }

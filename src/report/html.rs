@@ -16,7 +16,8 @@
 //! loads of the whole mesh and of every part, the line of action, centres, axis moments and
 //! the flotation check, the change since the previous save and since the baseline (from
 //! the change log), and the charts (load history; loads against level when there is a
-//! sweep). A mesh that only ever failed appears with its last error.
+//! sweep, with a table of the governing value of each quantity and its level). A mesh
+//! that only ever failed appears with its last error.
 //!
 //! Forces are shown with a prefix chosen per table (N, kN, MN, GN; moments N·m …), lengths
 //! in m, areas in m², volumes in m³, pressures in kPa; the files stay SI. A page written by
@@ -465,8 +466,50 @@ fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value]) {
                 .map_or_else(|| "—".to_owned(), |p| num(p.level, 3)),
             esc(name)
         );
+        governing_table(s, &c["sweep_governing"]);
     }
     s.push_str("</section>\n");
+}
+
+/// The governing values of a sweep (`sweep_governing`), if the result has them.
+fn governing_table(s: &mut String, g: &Value) {
+    let Some(g) = g.as_object() else {
+        return;
+    };
+    let forces = ["force_x", "force_y", "force_z", "force_magnitude", "uplift", "downthrust"];
+    let scale = Scale::of(forces.iter().filter_map(|k| f(&g.get(*k)?["value"])));
+    let axes = g.get("axis_moments").and_then(Value::as_object);
+    let moments = Scale::above(
+        axes.into_iter()
+            .flatten()
+            .filter_map(|(_, e)| f(&e["value"])),
+        scale.moment_noise(),
+    );
+    s.push_str("<div class=\"wide\"><table>\n<tr><th>governing over the sweep</th><th>largest magnitude</th><th>at level <span class=\"unit\">m</span></th></tr>\n");
+    let mut row = |label: &str, e: &Value, value: String| {
+        let _ = writeln!(
+            s,
+            "<tr><td>{}</td><td>{value}</td><td>{}</td></tr>",
+            esc(label),
+            f(&e["level"]).map_or_else(|| "—".to_owned(), |x| num(x, 3))
+        );
+    };
+    let p = scale.prefix;
+    for (key, label) in forces.iter().zip(["Fx", "Fy", "Fz", "|F|", "uplift", "downthrust"]) {
+        if let Some(e) = g.get(*key) {
+            let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| scale.show(x));
+            row(label, e, format!("{v} {p}N"));
+        }
+    }
+    if let Some(e) = g.get("submerged_volume") {
+        let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| num(x, 3));
+        row("submerged volume", e, format!("{v} m³"));
+    }
+    for (name, e) in axes.into_iter().flatten() {
+        let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| moments.show(x));
+        row(&format!("moment about {name}"), e, format!("{v} {}N·m", moments.prefix));
+    }
+    s.push_str("</table></div>\n");
 }
 
 fn inputs(s: &mut String, r: &Value) {
@@ -912,7 +955,14 @@ mod tests {
                      "downthrust": 0.0, "wetted_area": 4.0, "submerged_volume": null, "axis_moments": {"trunnion": {"moment": 1.0, "miss_distance": null}}},
                     {"level": 2.0, "force": [78453.2, 0.0, 0.0], "moment": [0.0, 2.0, 0.0], "uplift": 0.0,
                      "downthrust": 0.0, "wetted_area": 8.0, "submerged_volume": null, "axis_moments": {"trunnion": {"moment": 2.0, "miss_distance": null}}}
-                ]
+                ],
+                "sweep_governing": {
+                    "liquid": "liquid",
+                    "force_x": {"value": 78453.2, "level": 2.0}, "force_y": {"value": 0.0, "level": 1.0},
+                    "force_z": {"value": 0.0, "level": 1.0}, "force_magnitude": {"value": 78453.2, "level": 2.0},
+                    "uplift": {"value": 0.0, "level": 1.0}, "downthrust": {"value": 0.0, "level": 1.0},
+                    "axis_moments": {"trunnion": {"value": 2.0, "level": 2.0}}
+                }
             }],
             "warnings": ["open surface: the liquid is taken on the \"front\" side"],
             "caution": "c"
@@ -1015,6 +1065,10 @@ mod tests {
         // Two charts inline (history with two computations, one sweep).
         assert_eq!(html.matches("<svg").count(), 2);
         assert!(html.contains("Loads against level · case normal"));
+        // The governing values under the sweep chart, each with its level.
+        assert!(html.contains("<th>governing over the sweep</th>"));
+        assert!(html.contains("<tr><td>Fx</td><td>78.453 kN</td><td>2.000</td></tr>"));
+        assert!(html.contains("<tr><td>moment about trunnion</td><td>2.0000 N·m</td><td>2.000</td></tr>"));
         // The mesh that only failed shows its error.
         assert!(html.contains("face index 9 out of range"));
         assert!(html.contains("open surface: the liquid is taken on the &quot;front&quot; side"));

@@ -17,7 +17,7 @@
 
 use std::fmt::Write;
 
-use crate::compute::{CaseResult, Loads, MeshResult};
+use crate::compute::{CaseResult, Extreme, Governing, Loads, MeshResult, SweepStep};
 
 /// How quantities are shown on the terminal.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -238,18 +238,108 @@ fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, u: &Show) {
         }
     }
     if let Some(sw) = &c.sweep {
-        let _ = writeln!(
-            s,
-            "    sweep of {} levels from {} to {} {} (table in the result file)",
-            sw.len(),
-            u.l(sw.first().map_or(0.0, |x| x.level)),
-            u.l(sw.last().map_or(0.0, |x| x.level)),
-            u.length.0
-        );
+        sweep_block(s, sw, c.sweep_governing.as_ref(), u);
     }
     if let Some(f) = &c.flotation {
         let verdict = if f.pass { "PASS" } else { "FAIL" };
         let _ = writeln!(s, "    flotation    {verdict}: {}", f.formula);
+    }
+}
+
+/// Sweeps with at most this many levels are printed step by step; longer ones only in
+/// the result file.
+const SWEEP_ROWS: usize = 30;
+
+fn sweep_block(s: &mut String, sw: &[SweepStep], g: Option<&Governing>, u: &Show) {
+    let (fu, mu, lu) = (u.force.0, u.moment.0, u.length.0);
+    let liquid = g.map_or("the liquid", |g| g.liquid.as_str());
+    let _ = writeln!(
+        s,
+        "    sweep of {liquid}: {} levels from {} to {} {lu}, the other inputs as in this case",
+        sw.len(),
+        u.l(sw.first().map_or(0.0, |x| x.level)),
+        u.l(sw.last().map_or(0.0, |x| x.level)),
+    );
+    let axes: Vec<&String> = sw
+        .first()
+        .map(|x| x.axis_moments.keys().collect())
+        .unwrap_or_default();
+    let volumes = sw.first().is_some_and(|x| x.submerged_volume.is_some());
+    if sw.len() <= SWEEP_ROWS {
+        let mut head = format!(
+            "      {:>9} {:>10} {:>10} {:>10} {:>10} {:>10}",
+            format!("level {lu}"),
+            format!("Fx {fu}"),
+            format!("Fy {fu}"),
+            format!("Fz {fu}"),
+            format!("|F| {fu}"),
+            format!("uplift {fu}")
+        );
+        if volumes {
+            let _ = write!(head, " {:>10}", format!("V {}", u.volume.0));
+        }
+        for a in &axes {
+            let _ = write!(head, " {:>14}", format!("{} {mu}", truncate(a, 8)));
+        }
+        let _ = writeln!(s, "{head}");
+        for x in sw {
+            let f = x.force;
+            let mag = (f[0] * f[0] + f[1] * f[1] + f[2] * f[2]).sqrt();
+            let mut row = format!(
+                "      {:>9} {:>10} {:>10} {:>10} {:>10} {:>10}",
+                u.l(x.level),
+                u.f(f[0]),
+                u.f(f[1]),
+                u.f(f[2]),
+                u.f(mag),
+                u.f(x.uplift)
+            );
+            if let Some(v) = x.submerged_volume {
+                let _ = write!(row, " {:>10}", num(v * u.volume.1, 3));
+            }
+            for a in &axes {
+                let m = x.axis_moments.get(*a).map_or(0.0, |m| m.moment);
+                let _ = write!(row, " {:>14}", u.m(m));
+            }
+            let _ = writeln!(s, "{row}");
+        }
+    } else {
+        let _ = writeln!(
+            s,
+            "      (more than {SWEEP_ROWS} levels: every step is in the result file under \"sweep\")"
+        );
+    }
+    let Some(g) = g else { return };
+    let _ = writeln!(
+        s,
+        "    governing over the sweep (largest magnitude, and the lowest level where it occurs)"
+    );
+    let mut line = |what: &str, e: &Extreme, value: String, unit: &str| {
+        let _ = writeln!(
+            s,
+            "      {:<24} {:>12} {:<7} at {} {lu}",
+            truncate(what, 24),
+            value,
+            unit,
+            u.l(e.level)
+        );
+    };
+    line("Fx", &g.force_x, u.f(g.force_x.value), fu);
+    line("Fy", &g.force_y, u.f(g.force_y.value), fu);
+    line("Fz", &g.force_z, u.f(g.force_z.value), fu);
+    line("|F|", &g.force_magnitude, u.f(g.force_magnitude.value), fu);
+    line("uplift", &g.uplift, u.f(g.uplift.value), fu);
+    line("downthrust", &g.downthrust, u.f(g.downthrust.value), fu);
+    if let Some(v) = &g.submerged_volume {
+        line(
+            "submerged volume",
+            v,
+            num(v.value * u.volume.1, 3),
+            u.volume.0,
+        );
+    }
+    for (name, e) in &g.axis_moments {
+        line(&format!("moment about {name}"), e, u.m(e.value), mu);
     }
 }
 
