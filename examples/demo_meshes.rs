@@ -1,5 +1,5 @@
 //! Writes the demo scenario, the invented "Kestrel Creek" irrigation headworks, into a
-//! folder: four meshes, a sidecar `<stem>.json` beside each, and a README.
+//! folder: five meshes, a sidecar `<stem>.json` beside each, and a README.
 //!
 //! `cargo run --example demo_meshes -- meshes/` regenerates `meshes/` byte for byte: the
 //! shapes come from `wetload::shapes`, which uses no randomness, and the sidecars are
@@ -13,7 +13,7 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
 use wetload::shapes::encode::{obj, stl_ascii, stl_binary};
-use wetload::shapes::{Triangle, box_solid, cylinder_patch, rectangular_tube, scale};
+use wetload::shapes::{Triangle, box_solid, cylinder_patch, rectangle, rectangular_tube, scale};
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
@@ -37,6 +37,7 @@ fn write_all(dir: &Path) -> Result<()> {
         wet_well()?,
         pontoon()?,
         culvert()?,
+        stoplog()?,
         vec![("README.md", README.as_bytes().to_vec())],
     ];
     for (name, bytes) in files.into_iter().flatten() {
@@ -158,7 +159,7 @@ fn wet_well() -> Result<Files> {
   "moment_about": [1.5, 0.0, 1.25],
   "flotation": {
     "resisting": { "structure": 424000, "soil_above": 81000 },
-    "required_factor": 1.3
+    "factor_preset": "usace-em-1110-2-2100-usual"
   }
 }
 "#;
@@ -222,6 +223,48 @@ fn culvert() -> Result<Files> {
     ])
 }
 
+/// The outlet stoplog: a 0.3 m thick panel across the 3.0 m outlet channel, 2.5 m high,
+/// with headwater on its upstream face and tailwater on its downstream face. Only the two
+/// wetted faces are modelled (two open rectangles, one group each), each wound so that
+/// its right-hand normals point out of the panel into its own water: both are "front".
+fn stoplog() -> Result<Files> {
+    let upstream = rectangle([0.0, -1.5, 0.0], [0.0, 0.0, 2.5], [0.0, 3.0, 0.0], 10, 12);
+    let downstream = rectangle([0.3, -1.5, 0.0], [0.0, 3.0, 0.0], [0.0, 0.0, 2.5], 12, 10);
+    if vector_area(&upstream)[0] >= 0.0 || vector_area(&downstream)[0] <= 0.0 {
+        bail!("the stoplog faces' normals do not point out of the panel; the winding changed");
+    }
+    let text = obj(&[
+        ("upstream_face", &upstream),
+        ("downstream_face", &downstream),
+    ]);
+    let json = r#"{
+  "units": "m",
+  "up": "+z",
+  "liquids": {
+    "headwater": { "level": 2.2, "density": 1000 },
+    "tailwater": { "level": 0.8, "density": 1000 }
+  },
+  "parts": {
+    "upstream_face": { "liquid": "headwater", "wet_side": "front" },
+    "downstream_face": { "liquid": "tailwater", "wet_side": "front" }
+  },
+  "moment_about": [0.3, 0.0, 0.0],
+  "axes": {
+    "sill_edge": { "point": [0.3, 0.0, 0.0], "direction": [0.0, 1.0, 0.0] }
+  },
+  "cases": [
+    { "name": "normal" },
+    { "name": "reverse", "liquids": { "headwater": { "level": 0.5 }, "tailwater": { "level": 1.2 } } }
+  ],
+  "sweep": { "liquid": "headwater", "from": 0.0, "to": 2.5, "step": 0.25 }
+}
+"#;
+    Ok(vec![
+        ("stoplog.obj", text.into_bytes()),
+        ("stoplog.json", json.as_bytes().to_vec()),
+    ])
+}
+
 const README: &str = "\
 # Kestrel Creek headworks: demo meshes
 
@@ -239,6 +282,7 @@ default 9.80665 m/s².
 | `wet_well.obj` | buried pump-station wet well (closed box in 3 groups) | OBJ, m, +y |
 | `pontoon.stl` | service pontoon: `hull` and `deckhouse`, two closed shells | ASCII STL, m, +z |
 | `culvert.obj` | access-road box culvert barrel (closed shell with a through-hole) | OBJ, m, +z |
+| `stoplog.obj` | outlet stoplog: `upstream_face` and `downstream_face`, two open faces | OBJ, m, +z |
 
 ## radial_gate
 
@@ -267,7 +311,8 @@ base. Flotation resisting loads, invented:
 - `structure` 424 000 N: 17.664 m³ of concrete (0.3 m walls, 0.4 m base slab, 0.25 m
   roof) at 24 kN/m³ is 423 936 N, rounded.
 - `soil_above` 81 000 N: 0.6 m of cover over the 3.0 × 2.5 m roof at 18 kN/m³.
-- `required_factor` 1.3.
+- `factor_preset` `usace-em-1110-2-2100-usual`: a required factor of 1.3 (from
+  `config/flotation.json`, where its source is given; the value is from memory).
 
 Closed-form check: net uplift ρg · 3.0 · 2.5 · 3.5 = 257 424.6 N (the walls are vertical,
 so it is all on the base), factor 505 000 / 257 424.6 = 1.96, which passes 1.3.
@@ -290,4 +335,24 @@ through it: the water is outside, around the barrel and through its bore. Cases 
 
 Closed-form checks: flood, submerged volume (2.4 · 2.0 − 2.0 · 1.6) · 6 = 9.6 m³,
 buoyancy 94 143.8 N upward; low, (2.4 · 1.0 − 2.0 · 0.8) · 6 = 4.8 m³, 47 071.9 N.
+
+## stoplog
+
+A panel 0.3 m thick (x from 0 to 0.3) across the 3.0 m outlet channel (y from −1.5 to
+1.5), 2.5 m high from the sill (z = 0). Only its two wetted faces are modelled, one group
+each, wound so that their normals point out of the panel: headwater on
+`upstream_face` (x = 0), tailwater on `downstream_face` (x = 0.3), both `front`. The axis
+`sill_edge` runs along y through the downstream bottom edge (x = 0.3, z = 0). Cases
+`normal` (headwater 2.2 m, tailwater 0.8 m) and `reverse` (0.5 m and 1.2 m: the water
+is higher downstream); the sweep steps the headwater from 0 to 2.5 m.
+
+Closed-form checks, width w = 3 m, depths H₁ (headwater) and H₂ (tailwater):
+
+- net F_x = ½ρgw(H₁² − H₂²): 61 781.9 N downstream (normal), −17 504.9 N (reverse);
+  per face ½ρgwH₁² = 71 196.3 N and ½ρgwH₂² = 9 414.4 N (normal).
+- moment about `sill_edge` = ρgw(H₁³ − H₂³)/6: 49 700.1 N·m (normal, tipping the panel
+  downstream), −7 860.0 N·m (reverse); the resultant acts (H₁³ − H₂³)/(3(H₁² − H₂²)) =
+  0.804 m above the sill (normal), and, being horizontal, misses the axis by that much.
+- sweep: the largest net F_x is at the top level, 2.5 m: 82 523.0 N, with 74 104.0 N·m
+  about `sill_edge`.
 ";

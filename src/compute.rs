@@ -13,7 +13,7 @@ use crate::hydro::{
     Topology, Tri, Vec3, WetSide, Wetting,
 };
 use crate::mesh::Mesh;
-use crate::sidecar::{Case, Sidecar, Sweep, UnassignedPart};
+use crate::sidecar::{Case, Flotation, Sidecar, Sweep, UnassignedPart};
 
 /// Version of the result document's layout.
 pub const SCHEMA: u32 = 1;
@@ -212,6 +212,21 @@ pub struct FlotationCheck {
     pub required_factor: f64,
     pub pass: bool,
     pub formula: String,
+    /// The preset the required factor came from, when the sidecar named one.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub factor_preset: Option<PresetEcho>,
+}
+
+/// A flotation preset as echoed in the result.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct PresetEcho {
+    pub name: String,
+    /// The document, edition and clause.
+    pub source: String,
+    /// How far the value was checked against the document.
+    pub checked: String,
+    /// The value was recalled, not read in the document.
+    pub from_memory: bool,
 }
 
 /// Everything about the mesh that does not change between cases.
@@ -255,38 +270,14 @@ pub fn compute(
             None => None,
             Some(sw) => Some(sweep_steps(&prep, mesh, sidecar, case, sw, &accs)?),
         };
-        let sweep_governing = sweep.as_deref().zip(sidecar.sweep.as_ref()).map(|(steps, sw)| {
-            governing(&sidecar.liquids[sw.liquid].name, steps, diagonal(&prep))
-        });
-        let flotation = sidecar.flotation.as_ref().map(|f| {
-            let uplift = loads.vertical_force.max(0.0);
-            let resisting: f64 = f.resisting.iter().map(|(_, v)| v).sum();
-            let factor = (uplift > 0.0).then(|| resisting / uplift);
-            let terms: Vec<String> = f
-                .resisting
-                .iter()
-                .map(|(n, v)| format!("{n} {v:.0} N"))
-                .collect();
-            let formula = match factor {
-                Some(fs) => format!(
-                    "FS = (Σ resisting) / (net uplift) = ({}) / {uplift:.0} N = {resisting:.0} N / {uplift:.0} N = {fs:.3}; required {}",
-                    terms.join(" + "),
-                    f.required_factor
-                ),
-                None => format!(
-                    "net uplift is 0 N (the liquid pushes down or not at all), so flotation cannot occur; resisting {resisting:.0} N"
-                ),
-            };
-            FlotationCheck {
-                uplift,
-                resisting,
-                resisting_terms: f.resisting.iter().cloned().collect(),
-                factor,
-                required_factor: f.required_factor,
-                pass: factor.is_none_or(|fs| fs >= f.required_factor),
-                formula,
-            }
-        });
+        let sweep_governing = sweep
+            .as_deref()
+            .zip(sidecar.sweep.as_ref())
+            .map(|(steps, sw)| governing(&sidecar.liquids[sw.liquid].name, steps, diagonal(&prep)));
+        let flotation = sidecar
+            .flotation
+            .as_ref()
+            .map(|f| flotation_check(f, &loads));
         cases.push(CaseResult {
             name: case.name.clone(),
             liquids: sidecar
@@ -344,6 +335,69 @@ pub fn compute(
     };
     check_finite(&result)?;
     Ok(result)
+}
+
+/// The flotation check of a case: every resisting term over the net uplift of the liquid.
+///
+/// FS = Σ resisting / (uplift − downthrust). When the mesh's top is under the liquid its
+/// downthrust is the weight of the liquid above it (the W_G of the USACE form
+/// FS_f = (W_S + W_C + S) / (U − W_G)), so it is subtracted, not counted as resisting.
+fn flotation_check(f: &Flotation, loads: &Loads) -> FlotationCheck {
+    let uplift = loads.vertical_force.max(0.0);
+    let resisting: f64 = f.resisting.iter().map(|(_, v)| v).sum();
+    let factor = (uplift > 0.0).then(|| resisting / uplift);
+    let terms: Vec<String> = f
+        .resisting
+        .iter()
+        .map(|(n, v)| format!("{n} {v:.0} N"))
+        .collect();
+    let required = match &f.preset {
+        None => format!("{} as stated in the sidecar", f.required_factor),
+        Some(p) => {
+            let value = match p.partial_factors {
+                Some((dst, stb)) => {
+                    format!("γ_dst / γ_stb = {dst} / {stb} = {:.3}", f.required_factor)
+                }
+                None => format!("{}", f.required_factor),
+            };
+            format!(
+                "{value} by preset \"{}\": {} ({}); a preset copies a number, no code compliance is implied",
+                p.name,
+                p.source,
+                if p.from_memory() {
+                    "value from memory"
+                } else {
+                    "value seen in a copy of the document, not checked against the official edition"
+                }
+            )
+        }
+    };
+    let formula = match factor {
+        Some(fs) => format!(
+            "FS = Σ resisting / (uplift − downthrust) = ({}) / ({:.0} N − {:.0} N) = {resisting:.0} N / {uplift:.0} N = {fs:.3}; required {required}",
+            terms.join(" + "),
+            loads.uplift,
+            loads.downthrust,
+        ),
+        None => format!(
+            "net uplift is 0 N (the liquid pushes down or not at all), so flotation cannot occur; resisting {resisting:.0} N; required {required}"
+        ),
+    };
+    FlotationCheck {
+        uplift,
+        resisting,
+        resisting_terms: f.resisting.iter().cloned().collect(),
+        factor,
+        required_factor: f.required_factor,
+        pass: factor.is_none_or(|fs| fs >= f.required_factor),
+        formula,
+        factor_preset: f.preset.as_ref().map(|p| PresetEcho {
+            name: p.name.clone(),
+            source: p.source.clone(),
+            checked: p.checked.clone(),
+            from_memory: p.from_memory(),
+        }),
+    }
 }
 
 fn echo(name: &str, l: &Liquid) -> LiquidEcho {
@@ -913,8 +967,7 @@ pub fn governing(liquid: &str, steps: &[SweepStep], extent_m: f64) -> Governing 
             )
     };
     let pick = |f: &dyn Fn(&SweepStep) -> f64| pick_above(f, 1e-12 * force_scale);
-    let pick_moment =
-        |f: &dyn Fn(&SweepStep) -> f64| pick_above(f, 1e-12 * force_scale * extent_m);
+    let pick_moment = |f: &dyn Fn(&SweepStep) -> f64| pick_above(f, 1e-12 * force_scale * extent_m);
     let axes = steps
         .first()
         .map(|s| s.axis_moments.keys().cloned().collect::<Vec<_>>())

@@ -391,11 +391,7 @@ impl Column {
 
     /// The elevation where `W` equals `w` (W is increasing).
     fn depth_of(&self, w: f64) -> f64 {
-        let layer = self
-            .interfaces
-            .iter()
-            .filter(|&&i| self.w(i) > w)
-            .count();
+        let layer = self.interfaces.iter().filter(|&&i| self.w(i) > w).count();
         let (r, z0, w0) = self.lines[layer];
         z0 + (w - w0) / r
     }
@@ -433,7 +429,9 @@ fn deep_terms(t: &Tri, column: &Column, side: f64, vsign: f64) -> Deep {
             fan(t, 0);
         } else {
             // W has a kink at each interface: integrate it layer by layer.
-            slab_pieces(t, &column.interfaces, |piece, slab| fan(piece.vertices(), slab));
+            slab_pieces(t, &column.interfaces, |piece, slab| {
+                fan(piece.vertices(), slab)
+            });
         }
         d.b = side * b;
         d.bm = side * bm;
@@ -572,10 +570,7 @@ mod tests {
                 })
                 .collect();
             let accs = integrate(tris, &inputs, wetting, vol_sign);
-            want.push(
-                accs.iter()
-                    .fold(PartAccum::default(), |a, b| a.merge(b)),
-            );
+            want.push(accs.iter().fold(PartAccum::default(), |a, b| a.merge(b)));
         }
         let f_scale = want.iter().map(|w| w.abs_force).fold(1e-300, f64::max);
         let p_scale = want
@@ -695,7 +690,15 @@ mod tests {
         }];
         let liquid = layered(0.0, -8000.0, &[(900.0, Some(-0.7)), (1030.0, None)]);
         let levels = steps(-2.5, 2.5, 40);
-        check(&t, &parts, &vec![Wetting::Back; n], &vec![0; n], &liquid, -0.3, &levels);
+        check(
+            &t,
+            &parts,
+            &vec![Wetting::Back; n],
+            &vec![0; n],
+            &liquid,
+            -0.3,
+            &levels,
+        );
     }
 
     #[test]

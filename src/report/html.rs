@@ -476,7 +476,14 @@ fn governing_table(s: &mut String, g: &Value) {
     let Some(g) = g.as_object() else {
         return;
     };
-    let forces = ["force_x", "force_y", "force_z", "force_magnitude", "uplift", "downthrust"];
+    let forces = [
+        "force_x",
+        "force_y",
+        "force_z",
+        "force_magnitude",
+        "uplift",
+        "downthrust",
+    ];
     let scale = Scale::of(forces.iter().filter_map(|k| f(&g.get(*k)?["value"])));
     let axes = g.get("axis_moments").and_then(Value::as_object);
     let moments = Scale::above(
@@ -495,7 +502,10 @@ fn governing_table(s: &mut String, g: &Value) {
         );
     };
     let p = scale.prefix;
-    for (key, label) in forces.iter().zip(["Fx", "Fy", "Fz", "|F|", "uplift", "downthrust"]) {
+    for (key, label) in forces
+        .iter()
+        .zip(["Fx", "Fy", "Fz", "|F|", "uplift", "downthrust"])
+    {
         if let Some(e) = g.get(*key) {
             let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| scale.show(x));
             row(label, e, format!("{v} {p}N"));
@@ -507,7 +517,11 @@ fn governing_table(s: &mut String, g: &Value) {
     }
     for (name, e) in axes.into_iter().flatten() {
         let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| moments.show(x));
-        row(&format!("moment about {name}"), e, format!("{v} {}N·m", moments.prefix));
+        row(
+            &format!("moment about {name}"),
+            e,
+            format!("{v} {}N·m", moments.prefix),
+        );
     }
     s.push_str("</table></div>\n");
 }
@@ -1068,7 +1082,11 @@ mod tests {
         // The governing values under the sweep chart, each with its level.
         assert!(html.contains("<th>governing over the sweep</th>"));
         assert!(html.contains("<tr><td>Fx</td><td>78.453 kN</td><td>2.000</td></tr>"));
-        assert!(html.contains("<tr><td>moment about trunnion</td><td>2.0000 N·m</td><td>2.000</td></tr>"));
+        assert!(
+            html.contains(
+                "<tr><td>moment about trunnion</td><td>2.0000 N·m</td><td>2.000</td></tr>"
+            )
+        );
         // The mesh that only failed shows its error.
         assert!(html.contains("face index 9 out of range"));
         assert!(html.contains("open surface: the liquid is taken on the &quot;front&quot; side"));

@@ -17,7 +17,9 @@
 
 use std::fmt::Write;
 
-use crate::compute::{CaseResult, Extreme, Governing, Loads, MeshResult, SweepStep};
+use crate::compute::{
+    CaseResult, Extreme, FlotationCheck, Governing, Loads, MeshResult, SweepStep,
+};
 
 /// How quantities are shown on the terminal.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -241,8 +243,68 @@ fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, u: &Show) {
         sweep_block(s, sw, c.sweep_governing.as_ref(), u);
     }
     if let Some(f) = &c.flotation {
-        let verdict = if f.pass { "PASS" } else { "FAIL" };
-        let _ = writeln!(s, "    flotation    {verdict}: {}", f.formula);
+        flotation_block(s, f, &c.loads, u);
+    }
+}
+
+/// The flotation check with every term, in the chosen units (the result file keeps the
+/// SI formula).
+fn flotation_block(s: &mut String, f: &FlotationCheck, l: &Loads, u: &Show) {
+    let fu = u.force.0;
+    let verdict = if f.pass { "PASS" } else { "FAIL" };
+    let fs = f
+        .factor
+        .map_or_else(|| "—".to_owned(), |x| format!("{x:.3}"));
+    let _ = writeln!(
+        s,
+        "    flotation    {verdict}: FS {fs}, required {}",
+        num(f.required_factor, 3)
+    );
+    let terms: Vec<String> = f
+        .resisting_terms
+        .iter()
+        .map(|(n, v)| format!("{n} {}", u.f(*v)))
+        .collect();
+    match f.factor {
+        Some(_) => {
+            let _ = writeln!(
+                s,
+                "                 FS = Σ resisting / (uplift − downthrust) = ({}) / ({} − {}) {fu} = {} / {} {fu}",
+                terms.join(" + "),
+                u.f(l.uplift),
+                u.f(l.downthrust),
+                u.f(f.resisting),
+                u.f(f.uplift)
+            );
+        }
+        None => {
+            let _ = writeln!(
+                s,
+                "                 the net uplift is 0 (the liquid pushes down or not at all), so it cannot float; resisting {} {fu}",
+                u.f(f.resisting)
+            );
+        }
+    }
+    match &f.factor_preset {
+        Some(p) => {
+            let _ = writeln!(
+                s,
+                "                 required factor from preset \"{}\": {}{}; no code compliance is implied",
+                p.name,
+                p.source,
+                if p.from_memory {
+                    " (value from memory)"
+                } else {
+                    ""
+                }
+            );
+        }
+        None => {
+            let _ = writeln!(
+                s,
+                "                 required factor as stated in the sidecar"
+            );
+        }
     }
 }
 
@@ -279,7 +341,7 @@ fn sweep_block(s: &mut String, sw: &[SweepStep], g: Option<&Governing>, u: &Show
             let _ = write!(head, " {:>10}", format!("V {}", u.volume.0));
         }
         for a in &axes {
-            let _ = write!(head, " {:>14}", format!("{} {mu}", truncate(a, 8)));
+            let _ = write!(head, " {:>16}", format!("{} {mu}", truncate(a, 10)));
         }
         let _ = writeln!(s, "{head}");
         for x in sw {
@@ -299,7 +361,7 @@ fn sweep_block(s: &mut String, sw: &[SweepStep], g: Option<&Governing>, u: &Show
             }
             for a in &axes {
                 let m = x.axis_moments.get(*a).map_or(0.0, |m| m.moment);
-                let _ = write!(row, " {:>14}", u.m(m));
+                let _ = write!(row, " {:>16}", u.m(m));
             }
             let _ = writeln!(s, "{row}");
         }

@@ -4,16 +4,19 @@
 //! mirrors the JSON permissively, and [`parse_sidecar`] converts it in one function, where every rule of
 //! CONTRACT.md ("Sidecar keys", "Pinned definitions", "Pinned extensions") is checked and
 //! every default applied. A problem is reported once, with the file, the key path and the
-//! line. Also owns the liquid presets (`config/liquids.json`) and the water density formula.
+//! line. Also owns the liquid presets (`config/liquids.json`), the water density formula
+//! and the flotation factor presets (`config/flotation.json`).
 //!
 //! It does not read files (the caller passes the text), does not know the mesh (whether it
 //! is closed, its part names), and computes nothing: liquids are validated by building the
 //! core's [`Profile`], so the liquid rules live in one place.
 //! Lengths are metres in the mesh's own axes (after unit scaling), as CONTRACT.md says.
 
+mod flotation;
 mod raw;
 mod water;
 
+pub use flotation::{FactorPreset, factor_presets};
 pub use water::{LiquidPreset, liquid_presets, water_density_cipm};
 
 use std::fmt;
@@ -249,8 +252,10 @@ fn sweep_steps(from: f64, to: f64, step: f64) -> Option<usize> {
 pub struct Flotation {
     /// Resisting downward loads, N, each ≥ 0, named by the user, in file order.
     pub resisting: Vec<(String, f64)>,
-    /// The factor of safety the user's code requires, > 0.
+    /// The factor of safety the user's code requires, > 0: as stated, or the preset's.
     pub required_factor: f64,
+    /// The preset named by `factor_preset`, when the factor came from one.
+    pub preset: Option<FactorPreset>,
 }
 
 /// A sidecar that cannot be used: the file, where in it, and what is wrong.
@@ -385,6 +390,14 @@ pub enum SidecarErrorKind {
     ResistingLoad { name: String, value: f64 },
     #[error("required_factor must be a number > 0, got {0}")]
     RequiredFactor(f64),
+    #[error(
+        "\"required_factor\" and \"factor_preset\" are both given, which is ambiguous: give the number or the preset, not both"
+    )]
+    FactorAndPreset,
+    #[error(
+        "unknown factor_preset \"{name}\": the flotation presets are {known} (see config/flotation.json), or give \"required_factor\": <number>"
+    )]
+    UnknownFactorPreset { name: String, known: String },
 }
 
 /// Reads and validates the sidecar `text` of the file `path`.
@@ -916,15 +929,47 @@ fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
                     ));
                 }
             }
-            if !(f.required_factor.is_finite() && f.required_factor > 0.0) {
-                return Err(problem(
-                    key.key("required_factor"),
-                    K::RequiredFactor(f.required_factor),
-                ));
-            }
+            let (required_factor, preset) = match (f.required_factor, &f.factor_preset) {
+                (Some(_), Some(_)) => {
+                    return Err(problem(key.key("factor_preset"), K::FactorAndPreset));
+                }
+                (None, None) => {
+                    return Err(problem(
+                        key.key("required_factor"),
+                        K::Missing {
+                            what: "required_factor",
+                            hint: format!(
+                                "give the factor of safety your code requires, e.g. \"required_factor\": 1.3, or name a preset with \"factor_preset\" (one of {})",
+                                quoted_list(factor_presets().iter().map(|p| p.name.as_str()))
+                            ),
+                        },
+                    ));
+                }
+                (Some(r), None) => {
+                    if !(r.is_finite() && r > 0.0) {
+                        return Err(problem(key.key("required_factor"), K::RequiredFactor(r)));
+                    }
+                    (r, None)
+                }
+                (None, Some(name)) => {
+                    let p = flotation::find_factor_preset(name).ok_or_else(|| {
+                        problem(
+                            key.key("factor_preset"),
+                            K::UnknownFactorPreset {
+                                name: name.clone(),
+                                known: quoted_list(
+                                    factor_presets().iter().map(|p| p.name.as_str()),
+                                ),
+                            },
+                        )
+                    })?;
+                    (p.required_factor, Some(p.clone()))
+                }
+            };
             Some(Flotation {
                 resisting: f.resisting.0.clone(),
-                required_factor: f.required_factor,
+                required_factor,
+                preset,
             })
         }
     };
@@ -1923,6 +1968,7 @@ mod tests {
             Some(Flotation {
                 resisting: vec![("structure".into(), 1.2e6), ("soil_above".into(), 3.0e5)],
                 required_factor: 1.3,
+                preset: None,
             })
         );
         for (body, key) in [
@@ -1938,7 +1984,7 @@ mod tests {
                 r#""resisting": {"w": 1}, "required_factor": 0"#,
                 "flotation.required_factor",
             ),
-            (r#""resisting": {"w": 1}"#, "flotation"),
+            (r#""resisting": {"w": 1}"#, "flotation.required_factor"),
         ] {
             let e = err(&with(&format!(r#""flotation": {{{body}}}"#)));
             assert_eq!(e.key, key, "{e}");
@@ -1968,5 +2014,45 @@ mod tests {
             let e = err(&text);
             assert_eq!(e.line, Some(1), "{e}");
         }
+    }
+
+    #[test]
+    fn a_flotation_factor_comes_from_a_number_or_a_named_preset_never_both() {
+        let s = ok(&with(
+            r#""flotation": {"resisting": {"w": 1e6}, "factor_preset": "ufc-3-320-05a"}"#,
+        ));
+        let f = s.flotation.expect("flotation");
+        assert_eq!(f.required_factor, 2.0);
+        assert_eq!(f.preset.map(|p| p.name), Some("ufc-3-320-05a".to_owned()));
+        let s = ok(&with(
+            r#""flotation": {"resisting": {"w": 1e6}, "required_factor": 1.5}"#,
+        ));
+        assert_eq!(s.flotation.expect("flotation").preset, None);
+
+        // An unknown name: the file, the line of the key, and every known name.
+        let text = "{\"units\": \"m\", \"liquid\": {\"level\": 5.0, \"density\": 1000},\n  \"flotation\": {\"resisting\": {\"w\": 1},\n    \"factor_preset\": \"usace-normal\"}}";
+        let e = err(text);
+        assert_eq!(
+            (e.line, e.key.as_str()),
+            (Some(3), "flotation.factor_preset")
+        );
+        let message = e.to_string();
+        assert!(
+            message.starts_with("sidecar gate.json, line 3"),
+            "{message}"
+        );
+        for p in factor_presets() {
+            assert!(message.contains(&format!("\"{}\"", p.name)), "{message}");
+        }
+        let e = err(&with(
+            r#""flotation": {"resisting": {"w": 1}, "required_factor": 1.3, "factor_preset": "ufc-3-320-05a"}"#,
+        ));
+        assert_eq!(*e.kind, SidecarErrorKind::FactorAndPreset);
+        let e = err(&with(r#""flotation": {"resisting": {"w": 1}}"#));
+        assert!(e.to_string().contains("factor_preset"), "{e}");
+        let e = err(&with(
+            r#""flotation": {"resisting": {"w": 1}, "factor_preset": 1.3}"#,
+        ));
+        assert_eq!(e.key, "flotation.factor_preset");
     }
 }

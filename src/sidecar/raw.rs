@@ -128,7 +128,10 @@ pub(super) struct RawSweep {
 #[serde(remote = "Self", deny_unknown_fields)]
 pub(super) struct RawFlotation {
     pub resisting: Named<f64>,
-    pub required_factor: f64,
+    #[serde(default, deserialize_with = "some")]
+    pub required_factor: Option<f64>,
+    #[serde(default, deserialize_with = "some")]
+    pub factor_preset: Option<String>,
 }
 
 // serde's derived structs also accept a JSON array, matched to the fields by position, so

@@ -443,16 +443,17 @@ fn the_demo_folder() {
         }
     }
     meshes.sort();
-    assert_eq!(meshes.len(), 4, "the demo has four meshes: {meshes:?}");
+    assert_eq!(meshes.len(), 5, "the demo has five meshes: {meshes:?}");
     let args: Vec<&str> = meshes.iter().map(String::as_str).collect();
     let run = f.calc(&args);
     run.expect_code(0);
     assert!(!run.stderr.contains("panicked"));
     let listing = f.results_listing();
-    for stem in ["culvert", "pontoon", "radial_gate", "wet_well"] {
+    let stems = ["culvert", "pontoon", "radial_gate", "stoplog", "wet_well"];
+    for stem in stems {
         assert!(listing.contains(&format!("{stem}.json")), "{listing:?}");
     }
-    for stem in ["culvert", "pontoon", "radial_gate", "wet_well"] {
+    for stem in stems {
         let doc = f.result(stem);
         assert_eq!(doc["schema"], 1, "{stem}");
         assert!(
@@ -472,5 +473,35 @@ fn the_demo_folder() {
         fz,
         1025.0 * G * 8.0 * 3.0 * 0.45,
         1e-9 * fz,
+    );
+    // Closed form (meshes/README.md): headwater 2.2 m and tailwater 0.8 m on a 3 m wide
+    // stoplog, net F_x = ½ρgw(H₁² − H₂²); the sweep's largest F_x at its top level, 2.5 m.
+    let stoplog = f.result("stoplog");
+    let fx = num(&stoplog["cases"][0]["force"][0], "stoplog force x");
+    close(
+        "stoplog net F_x",
+        fx,
+        0.5 * 1000.0 * G * 3.0 * (2.2f64.powi(2) - 0.64),
+        1e-9 * fx,
+    );
+    let gov = &stoplog["cases"][0]["sweep_governing"]["force_x"];
+    let gx = num(&gov["value"], "governing F_x");
+    close(
+        "stoplog governing F_x",
+        gx,
+        0.5 * 1000.0 * G * 3.0 * (6.25 - 0.64),
+        1e-9 * gx,
+    );
+    assert_eq!(gov["level"], 2.5);
+    // The wet well's required factor comes from the preset it names, and says so.
+    let fl = &f.result("wet_well")["cases"][0]["flotation"];
+    assert_eq!(fl["required_factor"], 1.3);
+    assert_eq!(fl["factor_preset"]["name"], "usace-em-1110-2-2100-usual");
+    assert_eq!(fl["factor_preset"]["from_memory"], true);
+    assert!(
+        fl["formula"]
+            .as_str()
+            .is_some_and(|t| t.contains("EM 1110-2-2100") && t.contains("no code compliance")),
+        "{fl}"
     );
 }

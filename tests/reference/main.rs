@@ -4,12 +4,14 @@
 //! closed forms and the exact derived checks of the trade notes (`closed_form`), published
 //! worked examples rebuilt as meshes (`textbook`), the mass properties and plane splits of
 //! parry3d-f64 (`parry`), physical invariances (`invariance`), real CAD exports
-//! (`real_exports`), and level sweeps against single calculations (`sweep`). Helpers live in `support`.
+//! (`real_exports`), flotation checks of buried tanks against a published worked example
+//! and closed forms (`flotation`), and level sweeps against single calculations (`sweep`). Helpers live in `support`.
 //!
 //! `cargo test --test reference -- --nocapture` prints one `REF` line per comparison with
 //! the error observed and the tolerance allowed.
 
 mod closed_form;
+mod flotation;
 mod invariance;
 mod parry;
 mod real_exports;

@@ -131,7 +131,13 @@ fn sweep_of_headwater_on_a_two_sided_wall_equals_single_calcs() {
     // Headwater on the upstream face (swept), tailwater fixed on the downstream face, in
     // millimetres with +y up, so units and the frame are exercised too.
     // Wound towards −x (upstream), as in D2 of closed_form.
-    let up = shapes::rectangle([0.0, 0.0, 0.0], [0.0, 0.0, 1000.0], [0.0, 8000.0, 0.0], 2, 16);
+    let up = shapes::rectangle(
+        [0.0, 0.0, 0.0],
+        [0.0, 0.0, 1000.0],
+        [0.0, 8000.0, 0.0],
+        2,
+        16,
+    );
     let up = shapes::perturb(&up, 20.0, 4);
     let down = shapes::translate(&up, [400.0, 0.0, 0.0]);
     let json = r#"{"units": "mm", "up": "+y",
@@ -184,5 +190,10 @@ fn sweep_of_a_box_follows_archimedes_and_governs_at_the_deepest_level() {
     abs("governing F_z level", g.force_z.level, 2.0, 0.0);
     rel("governing uplift", g.uplift.value, 1025.0 * G * 18.0, 1e-13);
     abs("governing uplift level", g.uplift.level, 3.0, 0.0);
-    rel("governing volume", g.submerged_volume.expect("closed").value, 12.0, 1e-13);
+    rel(
+        "governing volume",
+        g.submerged_volume.expect("closed").value,
+        12.0,
+        1e-13,
+    );
 }
