@@ -529,4 +529,46 @@ mod tests {
         assert_eq!(num(-0.0001, 2), "0.00");
         assert_eq!(num(-0.01, 2), "-0.01");
     }
+
+    #[test]
+    fn a_sweep_prints_its_steps_and_governing_values_in_si_and_us() {
+        use crate::mesh::{Format, Mesh};
+        use std::path::Path;
+        // A vertical plate 2 m wide, sill at 0, top at 3 m; the level swept 0 → 3 m.
+        // Closed form at the top level: F = ½ρgH²w = ½·1000·9.80665·9·2 = 88.25985 kN,
+        // moment about the sill line ρgwH³/6 = 88.25985 kN·m.
+        let plate =
+            crate::shapes::rectangle([0.0, 0.0, 0.0], [0.0, 0.0, 3.0], [0.0, 2.0, 0.0], 3, 2);
+        let mesh = Mesh::from_parts(vec![("plate", plate)], Format::Obj);
+        let side = crate::sidecar::parse_sidecar(
+            Path::new("p.json"),
+            r#"{"units": "m", "wet_side": "front", "liquid": {"level": 1.0, "density": 1000},
+                "axes": {"sill": {"point": [0, 0, 0], "direction": [0, 1, 0]}},
+                "sweep": {"from": 0.0, "to": 3.0, "step": 0.5}}"#,
+        )
+        .expect("valid");
+        let r = crate::compute::compute("p.obj", &mesh, &side).expect("computes");
+        let si = render(&r, SummaryOptions::default());
+        assert!(
+            si.contains("sweep of liquid: 7 levels from 0.000 to 3.000 m"),
+            "{si}"
+        );
+        assert!(
+            si.contains("Fx                              88.26 kN      at 3.000 m"),
+            "{si}"
+        );
+        assert!(si.contains("moment about sill"), "{si}");
+        let us = render(
+            &r,
+            SummaryOptions {
+                units: UnitSystem::Us,
+                ..SummaryOptions::default()
+            },
+        );
+        // 88 259.85 N / 4448.2216 N per kip = 19.84 kip at 3 m = 9.843 ft.
+        assert!(
+            us.contains("Fx                              19.84 kip     at 9.843 ft"),
+            "{us}"
+        );
+    }
 }
