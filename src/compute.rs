@@ -13,7 +13,7 @@ use crate::hydro::{
     Topology, Tri, Vec3, WetSide, Wetting,
 };
 use crate::mesh::Mesh;
-use crate::sidecar::{Sidecar, UnassignedPart};
+use crate::sidecar::{AUTO_FIELD_EXPORT_FACETS, FieldExports, Sidecar, UnassignedPart};
 
 /// Version of the result document's layout.
 pub const SCHEMA: u32 = 1;
@@ -242,6 +242,12 @@ pub fn compute(
     }
     let mut warnings = Vec::new();
     let prep = prepare(mesh, sidecar, &mut warnings)?;
+    let facets = mesh.facets.len();
+    if sidecar.field_exports == FieldExports::Auto && !sidecar.field_exports.writes(facets) {
+        warnings.push(format!(
+            "per-facet exports (.vtp, .csv) not written: the mesh has {facets} facets, over the {AUTO_FIELD_EXPORT_FACETS} for which \"field_exports\": \"auto\" writes them; set \"field_exports\": \"always\" in the sidecar to write them (about 550 bytes of text a facet)"
+        ));
+    }
 
     let mut cases = Vec::with_capacity(sidecar.cases.len());
     for case in &sidecar.cases {
