@@ -5,6 +5,7 @@
 //! every case (and sweep step), and maps the sums back to mesh axes as the result fields
 //! pinned by CONTRACT.md. The document's layout is specified on [`MeshResult`].
 
+use rayon::prelude::*;
 use serde::Serialize;
 use thiserror::Error;
 
@@ -217,6 +218,8 @@ struct Prepared {
     /// Local origin (bounding-box centre), internal frame.
     centre: Vec3,
     tris: Vec<Tri>,
+    /// Bounding box of `tris`.
+    local_box: (Vec3, Vec3),
     topology: Topology,
     /// Per part: liquid index (None = dry) and resolved wet side.
     part_setup: Vec<(Option<usize>, WetSide)>,
@@ -328,7 +331,7 @@ pub fn compute(
         });
     }
 
-    let (lo, hi) = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+    let (lo, hi) = prep.local_box;
     let (lo, hi) = (lo + prep.centre, hi + prep.centre);
     let a = prep.frame.vector_out(lo);
     let b = prep.frame.vector_out(hi);
@@ -425,16 +428,31 @@ fn prepare(
         scale_m: sidecar.units.metres(),
         up: sidecar.up,
     };
-    let mut lo = [f64::INFINITY; 3];
-    let mut hi = [f64::NEG_INFINITY; 3];
-    for t in &mesh.facets {
-        for p in t {
-            for k in 0..3 {
-                lo[k] = lo[k].min(p[k]);
-                hi[k] = hi[k].max(p[k]);
-            }
-        }
-    }
+    // Min and max are exact, so these parallel passes give the same bits on any thread count.
+    let (lo, hi) = mesh
+        .facets
+        .par_iter()
+        .fold(
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(mut lo, mut hi), t| {
+                for p in t {
+                    for k in 0..3 {
+                        lo[k] = lo[k].min(p[k]);
+                        hi[k] = hi[k].max(p[k]);
+                    }
+                }
+                (lo, hi)
+            },
+        )
+        .reduce(
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(a, b), (c, d)| {
+                (
+                    [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
+                    [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
+                )
+            },
+        );
     let mid = [
         (lo[0] + hi[0]) / 2.0,
         (lo[1] + hi[1]) / 2.0,
@@ -443,10 +461,11 @@ fn prepare(
     let centre = frame.point_in(mid);
     let tris: Vec<Tri> = mesh
         .facets
-        .iter()
+        .par_iter()
         .map(|t| t.map(|p| frame.point_in(p) - centre))
         .collect();
-    let topology = Topology::build(&tris);
+    let local_box = hydro::par_bounding_box(&tris);
+    let topology = Topology::build_in_box(&tris, local_box);
     let closed = topology.closed();
 
     // Wet side and liquid of every part.
@@ -530,12 +549,15 @@ fn prepare(
         .iter()
         .map(|p| closed && topology.closed_within(p.facets.clone()))
         .collect();
-    let part_plane = mesh
+    let part_plane: Vec<Option<hydro::Plane>> = mesh
         .parts
         .iter()
         .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
         .collect();
-    let mesh_plane = hydro::plane_of(tris.iter());
+    let mesh_plane = match &part_plane[..] {
+        [one] if mesh.parts.len() == 1 => *one,
+        _ => hydro::plane_of(tris.iter()),
+    };
 
     describe_topology(&topology, &part_setup, closed, warnings);
     units_hint(sidecar, &lo, &hi, warnings);
@@ -555,6 +577,7 @@ fn prepare(
         frame,
         centre,
         tris,
+        local_box,
         moment_about: frame.vector_in(sidecar.moment_about_m),
         topology,
         part_setup,

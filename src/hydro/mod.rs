@@ -30,7 +30,9 @@ pub use clip::{Piece, clip_polygon, slab_pieces};
 pub use integrate::{CHUNK, FacetLoads, PartAccum, PartInput, facet_loads, integrate, part_planes};
 pub use loads::{LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of};
 pub use pressure::{Layer, Liquid, LiquidError, Profile};
-pub use topology::{Defect, NO_SHELL, ShellInfo, Topology, WELD_TOLERANCE_REL, bounding_box};
+pub use topology::{
+    Defect, NO_SHELL, ShellInfo, Topology, WELD_TOLERANCE_REL, bounding_box, par_bounding_box,
+};
 
 use nalgebra::Vector3;
 
