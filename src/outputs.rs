@@ -5,7 +5,7 @@
 //! Owns the file names and which writer runs for which file; the writers themselves live
 //! in [`crate::report`] and render bytes, and every file is written through
 //! [`pipeline::write_atomic`]. It computes nothing of its own beyond asking
-//! [`compute::field`] for the pressure field.
+//! [`Model::field`] for the pressure field.
 //!
 //! # File names (all under `results/` beside the mesh)
 //!
@@ -32,8 +32,7 @@ use std::path::{Path, PathBuf};
 
 use serde_json::Value;
 
-use crate::compute::{self, MeshResult};
-use crate::mesh::Mesh;
+use crate::compute::{self, MeshResult, Model};
 use crate::pipeline::{self, RunError};
 use crate::report::{csv, html, svg, vtk};
 use crate::sidecar::Sidecar;
@@ -91,10 +90,10 @@ fn case_parts(result: &MeshResult) -> Vec<Option<String>> {
 /// Writes the pressure field, the facet loads and the sweep charts of every case of a
 /// computed mesh under `results/` beside it; returns the paths written.
 ///
-/// `mesh` and `sidecar` must be the ones `result` was computed from.
+/// `model` and `sidecar` must be the ones `result` was computed from.
 pub fn write_outputs(
     mesh_path: &Path,
-    mesh: &Mesh,
+    model: &Model,
     sidecar: &Sidecar,
     result: &MeshResult,
 ) -> Result<Vec<PathBuf>, RunError> {
@@ -108,12 +107,14 @@ pub fn write_outputs(
         };
         let vtp = dir.join(format!("{base}.vtp"));
         let csv_path = dir.join(format!("{base}.csv"));
-        if sidecar.field_exports.writes(mesh.facets.len()) {
-            let field = compute::field(mesh, sidecar, i).map_err(|source| RunError::Compute {
-                mesh: mesh_path.to_owned(),
-                sidecar: pipeline::sidecar_path(mesh_path),
-                source: Box::new(source),
-            })?;
+        if sidecar.field_exports.writes(model.facets()) {
+            let field = model
+                .field(sidecar, i)
+                .map_err(|source| RunError::Compute {
+                    mesh: mesh_path.to_owned(),
+                    sidecar: pipeline::sidecar_path(mesh_path),
+                    source: Box::new(source),
+                })?;
             pipeline::write_atomic(&vtp, &vtk::render(&field, &result.mesh, &case.name))?;
             written.push(vtp);
             pipeline::write_atomic(&csv_path, &csv::render(&field))?;
