@@ -505,7 +505,22 @@ fn prepare(
     });
     let tris: Vec<Tri> = bytemuck::cast_vec(facets);
     let local_box = hydro::par_bounding_box(&tris);
-    let topology = Topology::build_in_box(&tris, local_box);
+    // The topology is one thread's work; the planes of the parts need only the facets, so
+    // the other thread finds them meanwhile.
+    let (topology, (part_plane, mesh_plane)) = rayon::join(
+        || Topology::build_in_box(&tris, local_box),
+        || {
+            let part_plane: Vec<Option<hydro::Plane>> = parts
+                .iter()
+                .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
+                .collect();
+            let mesh_plane = match &part_plane[..] {
+                [one] if parts.len() == 1 => *one,
+                _ => hydro::plane_of(tris.iter()),
+            };
+            (part_plane, mesh_plane)
+        },
+    );
     let closed = topology.closed();
 
     // Wet side and liquid of every part.
@@ -588,15 +603,6 @@ fn prepare(
         .iter()
         .map(|p| closed && topology.closed_within(p.facets.clone()))
         .collect();
-    let part_plane: Vec<Option<hydro::Plane>> = parts
-        .iter()
-        .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
-        .collect();
-    let mesh_plane = match &part_plane[..] {
-        [one] if parts.len() == 1 => *one,
-        _ => hydro::plane_of(tris.iter()),
-    };
-
     describe_topology(&topology, &part_setup, closed, warnings);
     units_hint(sidecar, &lo, &hi, warnings);
 

@@ -42,8 +42,6 @@ pub struct ShellInfo {
     pub depth: u32,
     /// Number of closed shells directly inside this one.
     pub children: u32,
-    /// Bounding box (min, max).
-    pub bbox: (Vec3, Vec3),
 }
 
 /// The topology of a whole mesh (across parts).
@@ -230,7 +228,6 @@ impl Topology {
                     flipped_facets: 0,
                     depth: 0,
                     children: 0,
-                    bbox: (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY)),
                 });
             }
             let s = root_shell[r];
@@ -238,10 +235,6 @@ impl Topology {
             let sh = &mut shells[s as usize];
             sh.facets += 1;
             sh.facet_span.1 = f;
-            for p in &tris[f] {
-                sh.bbox.0 = sh.bbox.0.inf(p);
-                sh.bbox.1 = sh.bbox.1.sup(p);
-            }
             if bad_facet[f] {
                 sh.closed = false;
             }
@@ -586,15 +579,27 @@ fn nest(tris: &[Tri], facet_shell: &[u32], flip: &[bool], shells: &mut [ShellInf
             probe[s as usize] = Some((t[0] + t[1] + t[2]) / 3.0);
         }
     }
-    let inside_box = |a: &ShellInfo, b: &ShellInfo| {
-        (0..3).all(|k| a.bbox.0[k] >= b.bbox.0[k] && a.bbox.1[k] <= b.bbox.1[k])
+    let mut bbox =
+        vec![(Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY)); shells.len()];
+    for (f, &s) in facet_shell.iter().enumerate() {
+        if s != NO_SHELL {
+            let b = &mut bbox[s as usize];
+            for p in &tris[f] {
+                b.0 = b.0.inf(p);
+                b.1 = b.1.sup(p);
+            }
+        }
+    }
+    let inside_box = |a: usize, b: usize| {
+        let (a, b) = (&bbox[a], &bbox[b]);
+        (0..3).all(|k| a.0[k] >= b.0[k] && a.1[k] <= b.1[k])
     };
     let mut encloses: Vec<(usize, usize)> = Vec::new(); // (outer, inner)
     for &b in &closed {
         let candidates: Vec<usize> = closed
             .iter()
             .copied()
-            .filter(|&a| a != b && inside_box(&shells[a], &shells[b]))
+            .filter(|&a| a != b && inside_box(a, b))
             .collect();
         if candidates.is_empty() {
             continue;
