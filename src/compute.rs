@@ -5,6 +5,7 @@
 //! every case (and sweep step), and maps the sums back to mesh axes as the result fields
 //! pinned by CONTRACT.md. The document's layout is specified on [`MeshResult`].
 
+use rayon::prelude::*;
 use serde::Serialize;
 use thiserror::Error;
 
@@ -12,8 +13,10 @@ use crate::hydro::{
     self, Frame, LineOfAction, Liquid, LiquidError, NO_SHELL, PartAccum, PartInput, Profile,
     Topology, Tri, Vec3, WetSide, Wetting,
 };
-use crate::mesh::Mesh;
-use crate::sidecar::{Case, Flotation, Sidecar, Sweep, UnassignedPart};
+use crate::mesh::{Format, Mesh, Part};
+use crate::sidecar::{
+    AUTO_FIELD_EXPORT_FACETS, Case, FieldExports, Flotation, Sidecar, Sweep, UnassignedPart,
+};
 
 /// Version of the result document's layout.
 pub const SCHEMA: u32 = 1;
@@ -231,10 +234,15 @@ pub struct PresetEcho {
 
 /// Everything about the mesh that does not change between cases.
 struct Prepared {
+    /// The mesh's parts (facet ranges into `tris`) and format.
+    parts: Vec<Part>,
+    format: Format,
     frame: Frame,
     /// Local origin (bounding-box centre), internal frame.
     centre: Vec3,
     tris: Vec<Tri>,
+    /// Bounding box of `tris`.
+    local_box: (Vec3, Vec3),
     topology: Topology,
     /// Per part: liquid index (None = dry) and resolved wet side.
     part_setup: Vec<(Option<usize>, WetSide)>,
@@ -250,25 +258,58 @@ struct Prepared {
 }
 
 /// Computes every case of `sidecar` on `mesh`; `mesh_name` is the file name to report.
+///
+/// Works on a copy of the facets; [`compute_model`] takes the mesh and keeps what the
+/// exports need.
 pub fn compute(
     mesh_name: &str,
     mesh: &Mesh,
     sidecar: &Sidecar,
 ) -> Result<MeshResult, ComputeError> {
+    compute_model(mesh_name, mesh.clone(), sidecar).map(|(result, _)| result)
+}
+
+/// A mesh taken into the computation: its facets moved into the internal frame in place
+/// (the mesh's own copy is not kept), its topology, and which side of every facet is wet.
+/// Everything that does not change between cases; [`Model::field`] reads it again.
+pub struct Model {
+    prep: Prepared,
+}
+
+impl Model {
+    /// Number of facets.
+    pub fn facets(&self) -> usize {
+        self.prep.tris.len()
+    }
+}
+
+/// [`compute`] on a mesh given up to it, returning the [`Model`] beside the result. The
+/// mesh's facet storage is reused for the internal frame, so no second copy is made.
+pub fn compute_model(
+    mesh_name: &str,
+    mesh: Mesh,
+    sidecar: &Sidecar,
+) -> Result<(MeshResult, Model), ComputeError> {
     if mesh.facets.is_empty() {
         return Err(ComputeError::Empty);
     }
     let mut warnings = Vec::new();
     let prep = prepare(mesh, sidecar, &mut warnings)?;
+    let facets = prep.tris.len();
+    if sidecar.field_exports == FieldExports::Auto && !sidecar.field_exports.writes(facets) {
+        warnings.push(format!(
+            "per-facet exports (.vtp, .csv) not written: the mesh has {facets} facets, over the {AUTO_FIELD_EXPORT_FACETS} for which \"field_exports\": \"auto\" writes them; set \"field_exports\": \"always\" in the sidecar to write them (about 550 bytes of text a facet)"
+        ));
+    }
 
     let mut cases = Vec::with_capacity(sidecar.cases.len());
     for case in &sidecar.cases {
         let profiles = profiles(sidecar, &case.name, &case.liquids, prep.centre.z)?;
-        let accs = run(&prep, mesh, &profiles);
-        let (loads, parts) = assemble(&prep, mesh, &accs);
+        let accs = run(&prep, &profiles);
+        let (loads, parts) = assemble(&prep, &accs);
         let sweep = match &sidecar.sweep {
             None => None,
-            Some(sw) => Some(sweep_steps(&prep, mesh, sidecar, case, sw, &accs)?),
+            Some(sw) => Some(sweep_steps(&prep, sidecar, case, sw, &accs)?),
         };
         let sweep_governing = sweep
             .as_deref()
@@ -294,7 +335,7 @@ pub fn compute(
         });
     }
 
-    let (lo, hi) = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+    let (lo, hi) = prep.local_box;
     let (lo, hi) = (lo + prep.centre, hi + prep.centre);
     let a = prep.frame.vector_out(lo);
     let b = prep.frame.vector_out(hi);
@@ -306,15 +347,15 @@ pub fn compute(
         schema: SCHEMA,
         mesh: mesh_name.to_owned(),
         inputs: Inputs {
-            format: mesh.format.as_str(),
+            format: prep.format.as_str(),
             units: sidecar.units.as_str(),
             up: sidecar.up.as_str(),
             gravity: sidecar.gravity_m_s2,
             wet_side: sidecar.wet_side.map(WetSide::as_str),
             closed: prep.topology.closed(),
-            facets: mesh.facets.len(),
+            facets: prep.tris.len(),
             shells: prep.topology.shells.len(),
-            parts: mesh
+            parts: prep
                 .parts
                 .iter()
                 .zip(&prep.part_setup)
@@ -334,7 +375,7 @@ pub fn compute(
         caution: CAUTION,
     };
     check_finite(&result)?;
-    Ok(result)
+    Ok((result, Model { prep }))
 }
 
 /// The flotation check of a case: every resisting term over the net uplift of the liquid.
@@ -446,7 +487,7 @@ fn profiles_of(
 }
 
 fn prepare(
-    mesh: &Mesh,
+    mesh: Mesh,
     sidecar: &Sidecar,
     warnings: &mut Vec<String>,
 ) -> Result<Prepared, ComputeError> {
@@ -454,33 +495,74 @@ fn prepare(
         scale_m: sidecar.units.metres(),
         up: sidecar.up,
     };
-    let mut lo = [f64::INFINITY; 3];
-    let mut hi = [f64::NEG_INFINITY; 3];
-    for t in &mesh.facets {
-        for p in t {
-            for k in 0..3 {
-                lo[k] = lo[k].min(p[k]);
-                hi[k] = hi[k].max(p[k]);
-            }
-        }
-    }
+    // Min and max are exact, so these parallel passes give the same bits on any thread count.
+    // Stored normals play no part in the loads.
+    let Mesh {
+        mut facets,
+        parts,
+        format,
+        ..
+    } = mesh;
+    let (lo, hi) = facets
+        .par_iter()
+        .fold(
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(mut lo, mut hi), t| {
+                for p in t {
+                    for k in 0..3 {
+                        lo[k] = lo[k].min(p[k]);
+                        hi[k] = hi[k].max(p[k]);
+                    }
+                }
+                (lo, hi)
+            },
+        )
+        .reduce(
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(a, b), (c, d)| {
+                (
+                    [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
+                    [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
+                )
+            },
+        );
     let mid = [
         (lo[0] + hi[0]) / 2.0,
         (lo[1] + hi[1]) / 2.0,
         (lo[2] + hi[2]) / 2.0,
     ];
     let centre = frame.point_in(mid);
-    let tris: Vec<Tri> = mesh
-        .facets
-        .iter()
-        .map(|t| t.map(|p| frame.point_in(p) - centre))
-        .collect();
-    let topology = Topology::build(&tris);
+    // Into the internal frame about the local origin, in place; then the same storage is
+    // read as `Tri`s (three f64 a vertex either way, so the cast cannot fail).
+    facets.par_iter_mut().for_each(|t| {
+        for p in t.iter_mut() {
+            let q = frame.point_in(*p) - centre;
+            *p = [q.x, q.y, q.z];
+        }
+    });
+    let tris: Vec<Tri> = bytemuck::cast_vec(facets);
+    let local_box = hydro::par_bounding_box(&tris);
+    // The topology is one thread's work; the planes of the parts need only the facets, so
+    // the other thread finds them meanwhile.
+    let (topology, (part_plane, mesh_plane)) = rayon::join(
+        || Topology::build_in_box(&tris, local_box),
+        || {
+            let part_plane: Vec<Option<hydro::Plane>> = parts
+                .iter()
+                .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
+                .collect();
+            let mesh_plane = match &part_plane[..] {
+                [one] if parts.len() == 1 => *one,
+                _ => hydro::plane_of(tris.iter()),
+            };
+            (part_plane, mesh_plane)
+        },
+    );
     let closed = topology.closed();
 
     // Wet side and liquid of every part.
-    let mut part_setup = Vec::with_capacity(mesh.parts.len());
-    for part in &mesh.parts {
+    let mut part_setup = Vec::with_capacity(parts.len());
+    for part in &parts {
         let liquid = sidecar.part_liquid(&part.name)?;
         let stated = sidecar.part_wet_side(&part.name);
         let side = match (stated, closed) {
@@ -522,7 +604,7 @@ fn prepare(
             Wetting::Back
         }
     };
-    for (part, (liquid, side)) in mesh.parts.iter().zip(&part_setup) {
+    for (part, (liquid, side)) in parts.iter().zip(&part_setup) {
         for f in part.facets.clone() {
             let s = topology.facet_shell[f];
             let shell = (s != NO_SHELL).then(|| &topology.shells[s as usize]);
@@ -554,18 +636,10 @@ fn prepare(
         }
     }
 
-    let part_closed: Vec<bool> = mesh
-        .parts
+    let part_closed: Vec<bool> = parts
         .iter()
         .map(|p| closed && topology.closed_within(p.facets.clone()))
         .collect();
-    let part_plane = mesh
-        .parts
-        .iter()
-        .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
-        .collect();
-    let mesh_plane = hydro::plane_of(tris.iter());
-
     describe_topology(&topology, &part_setup, closed, warnings);
     units_hint(sidecar, &lo, &hi, warnings);
 
@@ -581,9 +655,12 @@ fn prepare(
         })
         .collect();
     Ok(Prepared {
+        parts,
+        format,
         frame,
         centre,
         tris,
+        local_box,
         moment_about: frame.vector_in(sidecar.moment_about_m),
         topology,
         part_setup,
@@ -731,95 +808,100 @@ pub struct FacetRow {
 
 /// The pressure field of case `case` (an index into the sidecar's cases).
 pub fn field(mesh: &Mesh, sidecar: &Sidecar, case: usize) -> Result<Field, ComputeError> {
-    if mesh.facets.is_empty() {
-        return Err(ComputeError::Empty);
-    }
-    let mut warnings = Vec::new();
-    let prep = prepare(mesh, sidecar, &mut warnings)?;
-    let Some(case) = sidecar.cases.get(case) else {
-        return Ok(Field {
-            pieces: Vec::new(),
-            facets: Vec::new(),
-            parts: Vec::new(),
-        });
-    };
-    let profiles = profiles_of(sidecar, &case.name, &case.liquids, prep.centre.z)?;
-    let out = |v: Vec3| prep.frame.vector_out(v);
-    let mut pieces = Vec::new();
-    let mut facets = Vec::with_capacity(mesh.facets.len());
-    for (pi, (part, (liquid, _))) in mesh.parts.iter().zip(&prep.part_setup).enumerate() {
-        let profile = liquid.map(|i| &profiles[i]);
-        let planes = hydro::part_planes(profile, None);
-        for f in part.facets.clone() {
-            let t = &prep.tris[f];
-            let wet = prep.wetting[f];
-            let side = match wet {
-                Wetting::Front => 1.0,
-                Wetting::Back => -1.0,
-                Wetting::Dry => 0.0,
-            };
-            let prof = if side == 0.0 { None } else { profile };
-            let a = 0.5 * (t[1] - t[0]).cross(&(t[2] - t[0]));
-            let area = a.norm();
-            let normal = if side == 0.0 { a } else { side * a };
-            let loads = hydro::facet_loads(t, &planes, prof, wet, None, 0);
-            let level = prof.map_or(f64::NEG_INFINITY, Profile::level);
-            hydro::slab_pieces(t, &planes, |piece, _| {
-                let v = piece.vertices();
-                let pressure: Vec<f64> = v
-                    .iter()
-                    .map(|p| prof.map_or(0.0, |pr| pr.pressure(p.z)))
-                    .collect();
-                let mut av = Vec3::zeros();
-                for k in 1..v.len() - 1 {
-                    av += 0.5 * (v[k] - v[0]).cross(&(v[k + 1] - v[0]));
-                }
-                let pa = av.norm();
-                // The mean of a linear field over a convex polygon, by its fan triangles.
-                let mut mean = 0.0;
-                for k in 1..v.len() - 1 {
-                    let ak = 0.5 * (v[k] - v[0]).cross(&(v[k + 1] - v[0])).norm();
-                    mean += ak * (pressure[0] + pressure[k] + pressure[k + 1]) / 3.0;
-                }
-                let mean = if pa > 0.0 { mean / pa } else { 0.0 };
-                let n = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
-                let zc = v.iter().map(|p| p.z).sum::<f64>() / v.len() as f64;
-                pieces.push(FieldPiece {
-                    facet: f,
-                    part: pi,
-                    wetted: prof.is_some() && zc <= level,
-                    vertices: v.iter().map(|p| out(p + prep.centre)).collect(),
-                    pressure,
-                    traction: out(-mean * n),
-                    area: pa,
-                });
-            });
-            let n = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
-            facets.push(FacetRow {
-                part: pi,
-                index: f - part.facets.start,
-                centroid: out((t[0] + t[1] + t[2]) / 3.0 + prep.centre),
-                normal: out(n),
-                area,
-                mean_pressure: if area > 0.0 {
-                    loads.force.norm() / area
-                } else {
-                    0.0
-                },
-                force: out(loads.force),
-            });
-        }
-    }
-    Ok(Field {
-        pieces,
-        facets,
-        parts: mesh.parts.iter().map(|p| p.name.clone()).collect(),
-    })
+    let (_, model) = compute_model("", mesh.clone(), sidecar)?;
+    model.field(sidecar, case)
 }
 
-fn run(prep: &Prepared, mesh: &Mesh, profiles: &[Profile]) -> Vec<PartAccum> {
+impl Model {
+    /// The pressure field of case `case` (an index into the sidecar's cases); `sidecar`
+    /// must be the one the model was computed with.
+    pub fn field(&self, sidecar: &Sidecar, case: usize) -> Result<Field, ComputeError> {
+        let prep = &self.prep;
+        let Some(case) = sidecar.cases.get(case) else {
+            return Ok(Field {
+                pieces: Vec::new(),
+                facets: Vec::new(),
+                parts: Vec::new(),
+            });
+        };
+        let profiles = profiles_of(sidecar, &case.name, &case.liquids, prep.centre.z)?;
+        let out = |v: Vec3| prep.frame.vector_out(v);
+        let mut pieces = Vec::new();
+        let mut facets = Vec::with_capacity(prep.tris.len());
+        for (pi, (part, (liquid, _))) in prep.parts.iter().zip(&prep.part_setup).enumerate() {
+            let profile = liquid.map(|i| &profiles[i]);
+            let planes = hydro::part_planes(profile, None);
+            for f in part.facets.clone() {
+                let t = &prep.tris[f];
+                let wet = prep.wetting[f];
+                let side = match wet {
+                    Wetting::Front => 1.0,
+                    Wetting::Back => -1.0,
+                    Wetting::Dry => 0.0,
+                };
+                let prof = if side == 0.0 { None } else { profile };
+                let a = 0.5 * (t[1] - t[0]).cross(&(t[2] - t[0]));
+                let area = a.norm();
+                let normal = if side == 0.0 { a } else { side * a };
+                let loads = hydro::facet_loads(t, &planes, prof, wet, None, 0);
+                let level = prof.map_or(f64::NEG_INFINITY, Profile::level);
+                hydro::slab_pieces(t, &planes, |piece, _| {
+                    let v = piece.vertices();
+                    let pressure: Vec<f64> = v
+                        .iter()
+                        .map(|p| prof.map_or(0.0, |pr| pr.pressure(p.z)))
+                        .collect();
+                    let mut av = Vec3::zeros();
+                    for k in 1..v.len() - 1 {
+                        av += 0.5 * (v[k] - v[0]).cross(&(v[k + 1] - v[0]));
+                    }
+                    let pa = av.norm();
+                    // The mean of a linear field over a convex polygon, by its fan triangles.
+                    let mut mean = 0.0;
+                    for k in 1..v.len() - 1 {
+                        let ak = 0.5 * (v[k] - v[0]).cross(&(v[k + 1] - v[0])).norm();
+                        mean += ak * (pressure[0] + pressure[k] + pressure[k + 1]) / 3.0;
+                    }
+                    let mean = if pa > 0.0 { mean / pa } else { 0.0 };
+                    let n = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
+                    let zc = v.iter().map(|p| p.z).sum::<f64>() / v.len() as f64;
+                    pieces.push(FieldPiece {
+                        facet: f,
+                        part: pi,
+                        wetted: prof.is_some() && zc <= level,
+                        vertices: v.iter().map(|p| out(p + prep.centre)).collect(),
+                        pressure,
+                        traction: out(-mean * n),
+                        area: pa,
+                    });
+                });
+                let n = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
+                facets.push(FacetRow {
+                    part: pi,
+                    index: f - part.facets.start,
+                    centroid: out((t[0] + t[1] + t[2]) / 3.0 + prep.centre),
+                    normal: out(n),
+                    area,
+                    mean_pressure: if area > 0.0 {
+                        loads.force.norm() / area
+                    } else {
+                        0.0
+                    },
+                    force: out(loads.force),
+                });
+            }
+        }
+        Ok(Field {
+            pieces,
+            facets,
+            parts: prep.parts.iter().map(|p| p.name.clone()).collect(),
+        })
+    }
+}
+
+fn run(prep: &Prepared, profiles: &[Profile]) -> Vec<PartAccum> {
     let closed = prep.topology.closed();
-    let inputs: Vec<PartInput<'_>> = mesh
+    let inputs: Vec<PartInput<'_>> = prep
         .parts
         .iter()
         .zip(&prep.part_setup)
@@ -841,7 +923,6 @@ fn run(prep: &Prepared, mesh: &Mesh, profiles: &[Profile]) -> Vec<PartAccum> {
 /// keep the case's sums (`accs`), the others go through [`hydro::sweep`] in one pass.
 fn sweep_steps(
     prep: &Prepared,
-    mesh: &Mesh,
     sidecar: &Sidecar,
     case: &Case,
     sw: &Sweep,
@@ -850,7 +931,7 @@ fn sweep_steps(
     let closed = prep.topology.closed();
     let mut fixed = PartAccum::default();
     let mut parts = Vec::new();
-    for (i, (p, (liquid, _))) in mesh.parts.iter().zip(&prep.part_setup).enumerate() {
+    for (i, (p, (liquid, _))) in prep.parts.iter().zip(&prep.part_setup).enumerate() {
         let wet = *liquid == Some(sw.liquid);
         // Volumes are measured below the part's own liquid, or the first one (see `run`).
         let volume = closed && liquid.unwrap_or(0) == sw.liquid;
@@ -996,7 +1077,7 @@ pub fn governing(liquid: &str, steps: &[SweepStep], extent_m: f64) -> Governing 
 
 /// The diagonal of the mesh's bounding box, m.
 fn diagonal(prep: &Prepared) -> f64 {
-    let (lo, hi) = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+    let (lo, hi) = prep.local_box;
     (hi - lo).norm()
 }
 
@@ -1004,7 +1085,7 @@ fn total_of(accs: &[PartAccum]) -> PartAccum {
     accs.iter().fold(PartAccum::default(), |a, b| a.merge(b))
 }
 
-fn assemble(prep: &Prepared, mesh: &Mesh, accs: &[PartAccum]) -> (Loads, Vec<PartResult>) {
+fn assemble(prep: &Prepared, accs: &[PartAccum]) -> (Loads, Vec<PartResult>) {
     let total = total_of(accs);
     let loads = loads_of(
         prep,
@@ -1012,7 +1093,7 @@ fn assemble(prep: &Prepared, mesh: &Mesh, accs: &[PartAccum]) -> (Loads, Vec<Par
         prep.topology.closed(),
         prep.mesh_plane.as_ref(),
     );
-    let parts = mesh
+    let parts = prep
         .parts
         .iter()
         .enumerate()

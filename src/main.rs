@@ -4,6 +4,9 @@ use std::process::ExitCode;
 
 use clap::Parser;
 
+#[global_allocator]
+static ALLOC: wetload::alloc::HugePageAlloc = wetload::alloc::HugePageAlloc;
+
 fn main() -> ExitCode {
     let cli = wetload::cli::Cli::parse();
     wetload::run(cli)

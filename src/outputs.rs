@@ -5,7 +5,7 @@
 //! Owns the file names and which writer runs for which file; the writers themselves live
 //! in [`crate::report`] and render bytes, and every file is written through
 //! [`pipeline::write_atomic`]. It computes nothing of its own beyond asking
-//! [`compute::field`] for the pressure field.
+//! [`Model::field`] for the pressure field.
 //!
 //! # File names (all under `results/` beside the mesh)
 //!
@@ -17,6 +17,11 @@
 //! | `<stem>.history.svg` | headline loads at every computation in the change log |
 //! | `report.html` | the folder's page ([`crate::report::html`]) |
 //!
+//! The `.vtp` and `.csv` are written for meshes of at most
+//! [`crate::sidecar::AUTO_FIELD_EXPORT_FACETS`] facets unless the sidecar's
+//! `field_exports` says `always` or `never`; when they are not written, those of an earlier
+//! iteration are removed so that no export disagrees with the result beside it.
+//!
 //! When the sidecar has several cases, the per-case files carry the case name before the
 //! extension: `radial_gate.flood.vtp`, `radial_gate.flood.sweep.svg`. Names from files and
 //! sidecars pass through [`file_part`] before they become part of a path, so no name can
@@ -27,8 +32,7 @@ use std::path::{Path, PathBuf};
 
 use serde_json::Value;
 
-use crate::compute::{self, MeshResult};
-use crate::mesh::Mesh;
+use crate::compute::{self, MeshResult, Model};
 use crate::pipeline::{self, RunError};
 use crate::report::{csv, html, svg, vtk};
 use crate::sidecar::Sidecar;
@@ -86,10 +90,10 @@ fn case_parts(result: &MeshResult) -> Vec<Option<String>> {
 /// Writes the pressure field, the facet loads and the sweep charts of every case of a
 /// computed mesh under `results/` beside it; returns the paths written.
 ///
-/// `mesh` and `sidecar` must be the ones `result` was computed from.
+/// `model` and `sidecar` must be the ones `result` was computed from.
 pub fn write_outputs(
     mesh_path: &Path,
-    mesh: &Mesh,
+    model: &Model,
     sidecar: &Sidecar,
     result: &MeshResult,
 ) -> Result<Vec<PathBuf>, RunError> {
@@ -101,17 +105,35 @@ pub fn write_outputs(
             Some(p) => format!("{stem}.{p}"),
             None => stem.clone(),
         };
-        let field = compute::field(mesh, sidecar, i).map_err(|source| RunError::Compute {
-            mesh: mesh_path.to_owned(),
-            sidecar: pipeline::sidecar_path(mesh_path),
-            source: Box::new(source),
-        })?;
-        let path = dir.join(format!("{base}.vtp"));
-        pipeline::write_atomic(&path, &vtk::render(&field, &result.mesh, &case.name))?;
-        written.push(path);
-        let path = dir.join(format!("{base}.csv"));
-        pipeline::write_atomic(&path, &csv::render(&field))?;
-        written.push(path);
+        let vtp = dir.join(format!("{base}.vtp"));
+        let csv_path = dir.join(format!("{base}.csv"));
+        if sidecar.field_exports.writes(model.facets()) {
+            let field = model
+                .field(sidecar, i)
+                .map_err(|source| RunError::Compute {
+                    mesh: mesh_path.to_owned(),
+                    sidecar: pipeline::sidecar_path(mesh_path),
+                    source: Box::new(source),
+                })?;
+            pipeline::write_atomic(&vtp, &vtk::render(&field, &result.mesh, &case.name))?;
+            written.push(vtp);
+            pipeline::write_atomic(&csv_path, &csv::render(&field))?;
+            written.push(csv_path);
+        } else {
+            // Exports of an earlier iteration would no longer match the result: remove them.
+            for stale in [vtp, csv_path] {
+                match fs::remove_file(&stale) {
+                    Ok(()) => {}
+                    Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
+                    Err(source) => {
+                        return Err(RunError::Write {
+                            path: stale,
+                            source,
+                        });
+                    }
+                }
+            }
+        }
         if let Some(steps) = &case.sweep {
             let points: Vec<svg::SweepPoint> =
                 steps.iter().map(svg::SweepPoint::from_step).collect();

@@ -9,8 +9,8 @@ use std::path::{Path, PathBuf};
 
 use thiserror::Error;
 
-use crate::compute::{self, ComputeError, MeshResult};
-use crate::mesh::{self, Mesh, MeshError};
+use crate::compute::{self, ComputeError, MeshResult, Model};
+use crate::mesh::{self, MeshError};
 use crate::outputs;
 use crate::report;
 use crate::sidecar::{self, Sidecar, SidecarError};
@@ -97,33 +97,38 @@ pub fn read_inputs(mesh_path: &Path) -> Result<Inputs, RunError> {
 }
 
 /// Parses and computes inputs already read (no file system access).
-pub fn compute_inputs(mesh_path: &Path, inputs: &Inputs) -> Result<MeshResult, RunError> {
+pub fn compute_inputs(mesh_path: &Path, inputs: Inputs) -> Result<MeshResult, RunError> {
     compute_parsed(mesh_path, inputs).map(|c| c.result)
 }
 
-/// A computed mesh with the parsed inputs it was computed from (the exports need them).
+/// A computed mesh with what the exports need: the model it was computed on and the
+/// parsed sidecar.
 pub struct Computed {
-    pub mesh: Mesh,
+    pub model: Model,
     pub sidecar: Sidecar,
     pub result: MeshResult,
 }
 
-/// Like [`compute_inputs`], keeping the parsed mesh and sidecar.
-pub fn compute_parsed(mesh_path: &Path, inputs: &Inputs) -> Result<Computed, RunError> {
+/// Like [`compute_inputs`], keeping the model and the sidecar. The file's bytes are
+/// dropped as soon as the mesh is read, and the mesh is given up to the computation, so
+/// no two copies of a large mesh are held at once.
+pub fn compute_parsed(mesh_path: &Path, inputs: Inputs) -> Result<Computed, RunError> {
     let side = sidecar_path(mesh_path);
     let sidecar = sidecar::parse_sidecar(&side, &inputs.sidecar_text)?;
     let mesh = mesh::read_mesh(mesh_path, &inputs.mesh_bytes)?;
+    drop(inputs);
     let name = mesh_path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
-    let result = compute::compute(&name, &mesh, &sidecar).map_err(|source| RunError::Compute {
-        mesh: mesh_path.to_owned(),
-        sidecar: side,
-        source: Box::new(source),
-    })?;
+    let (result, model) =
+        compute::compute_model(&name, mesh, &sidecar).map_err(|source| RunError::Compute {
+            mesh: mesh_path.to_owned(),
+            sidecar: side,
+            source: Box::new(source),
+        })?;
     Ok(Computed {
-        mesh,
+        model,
         sidecar,
         result,
     })
@@ -133,13 +138,13 @@ pub fn compute_parsed(mesh_path: &Path, inputs: &Inputs) -> Result<Computed, Run
 /// returns the result.
 pub fn calc_file(mesh_path: &Path) -> Result<MeshResult, RunError> {
     let inputs = read_inputs(mesh_path)?;
-    let computed = compute_parsed(mesh_path, &inputs)?;
+    let computed = compute_parsed(mesh_path, inputs)?;
     let dir = results_dir(mesh_path);
     let out = dir.join(format!("{}.json", stem(mesh_path)));
     write_atomic(&out, &report::json::render(&computed.result))?;
     outputs::write_outputs(
         mesh_path,
-        &computed.mesh,
+        &computed.model,
         &computed.sidecar,
         &computed.result,
     )?;

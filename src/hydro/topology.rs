@@ -11,8 +11,6 @@
 //! It does not decide what the liquid does with any of this; the caller maps shells and
 //! wet sides to per-facet wetting.
 
-use std::collections::VecDeque;
-
 use rustc_hash::FxHashMap;
 
 use super::{Tri, Vec3};
@@ -44,8 +42,6 @@ pub struct ShellInfo {
     pub depth: u32,
     /// Number of closed shells directly inside this one.
     pub children: u32,
-    /// Bounding box (min, max).
-    pub bbox: (Vec3, Vec3),
 }
 
 /// The topology of a whole mesh (across parts).
@@ -117,8 +113,13 @@ impl Topology {
 
     /// Builds the topology of `tris`.
     pub fn build(tris: &[Tri]) -> Topology {
-        let n = tris.len();
         let (lo, hi) = bounding_box(tris.iter().flat_map(|t| t.iter()));
+        Topology::build_in_box(tris, (lo, hi))
+    }
+
+    /// [`Topology::build`] for a caller that already has the bounding box of `tris`.
+    pub fn build_in_box(tris: &[Tri], (lo, hi): (Vec3, Vec3)) -> Topology {
+        let n = tris.len();
         let diag = if n == 0 { 0.0 } else { (hi - lo).norm() };
         let tolerance = WELD_TOLERANCE_REL * diag;
         let centre = (lo + hi) / 2.0;
@@ -135,77 +136,79 @@ impl Topology {
             }
         }
         let degenerate_facets = defects.len();
-        let duplicates = duplicate_facet_list(&ids, &degenerate);
-        let duplicate_facets = duplicates.len();
-        defects.extend(duplicates.into_iter().map(|f| (Defect::Duplicate, f)));
 
-        // Directed edges, grouped by their undirected key.
-        let mut edges: Vec<(u64, u32, bool)> = Vec::with_capacity(3 * n);
-        for (f, [a, b, c]) in ids.iter().enumerate() {
-            if degenerate[f] {
-                continue;
-            }
-            for (u, v) in [(*a, *b), (*b, *c), (*c, *a)] {
-                let key = (u64::from(u.min(v)) << 32) | u64::from(u.max(v));
-                edges.push((key, f as u32, u < v));
-            }
-        }
-        edges.sort_unstable_by_key(|e| (e.0, e.1));
+        // Directed edges bucketed by their lower vertex (a counting sort, stable in facet
+        // order), then grouped by the higher vertex within each bucket.
+        let edges = EdgeBuckets::new(&ids, &degenerate, vertices);
 
         let mut uf = UnionFind::new(n);
-        // Manifold neighbours: (other facet, same direction as stored?).
-        let mut adj: Vec<[(u32, bool); 3]> = vec![[(u32::MAX, false); 3]; n];
+        // Manifold neighbours: other facet << 1 | (same direction as stored).
+        let mut adj: Vec<[u32; 3]> = vec![[u32::MAX; 3]; n];
         let mut adj_len = vec![0u8; n];
         let mut bad_facet = vec![false; n]; // touches an open or non-manifold edge
         let (mut open_edges, mut non_manifold_edges, mut inconsistent_edges) = (0, 0, 0);
-        let mut i = 0;
-        while i < edges.len() {
-            let mut j = i + 1;
-            while j < edges.len() && edges[j].0 == edges[i].0 {
-                j += 1;
+        let mut groups: Vec<(Defect, u32)> = Vec::new();
+        edges.for_each_group(|group| match group.len() {
+            1 => {
+                open_edges += 1;
+                let f = group[0].facet();
+                bad_facet[f as usize] = true;
+                groups.push((Defect::OpenEdge, f));
             }
-            let group = &edges[i..j];
-            match group.len() {
-                1 => {
-                    open_edges += 1;
-                    bad_facet[group[0].1 as usize] = true;
-                    defects.push((Defect::OpenEdge, group[0].1));
+            2 => {
+                let (f, g) = (group[0].facet(), group[1].facet());
+                let same = group[0].forward() == group[1].forward();
+                if same {
+                    inconsistent_edges += 1;
+                    groups.push((Defect::InconsistentEdge, f));
                 }
-                2 => {
-                    let (f, g) = (group[0].1, group[1].1);
-                    let same = group[0].2 == group[1].2;
-                    if same {
-                        inconsistent_edges += 1;
-                        defects.push((Defect::InconsistentEdge, group[0].1));
-                    }
-                    uf.union(f as usize, g as usize);
-                    if f == g {
-                        // A facet meeting itself (a folded sliver) cannot be manifold.
-                        bad_facet[f as usize] = true;
-                    } else {
-                        for (a, b) in [(f, g), (g, f)] {
-                            let k = adj_len[a as usize] as usize;
-                            if k < 3 {
-                                adj[a as usize][k] = (b, same);
-                                adj_len[a as usize] += 1;
-                            }
+                uf.union(f as usize, g as usize);
+                if f == g {
+                    // A facet meeting itself (a folded sliver) cannot be manifold.
+                    bad_facet[f as usize] = true;
+                } else {
+                    for (a, b) in [(f, g), (g, f)] {
+                        let k = adj_len[a as usize] as usize;
+                        if k < 3 {
+                            adj[a as usize][k] = (b << 1) | u32::from(same);
+                            adj_len[a as usize] += 1;
                         }
                     }
                 }
-                _ => {
-                    non_manifold_edges += 1;
-                    defects.push((Defect::NonManifoldEdge, group[0].1));
-                    for e in group {
-                        bad_facet[e.1 as usize] = true;
-                        uf.union(group[0].1 as usize, e.1 as usize);
-                    }
+            }
+            _ => {
+                non_manifold_edges += 1;
+                let f0 = group[0].facet();
+                groups.push((Defect::NonManifoldEdge, f0));
+                for e in group {
+                    bad_facet[e.facet() as usize] = true;
+                    uf.union(f0 as usize, e.facet() as usize);
                 }
             }
-            i = j;
-        }
+        });
+
+        // Duplicate facets. Two facets with the same three vertices share all three edges:
+        // when every edge is manifold, they are each other's only neighbours; otherwise
+        // compare the sorted vertex triples of all facets.
+        let duplicates = if non_manifold_edges == 0 {
+            (0..n)
+                .filter(|&f| {
+                    let g = adj[f][0] >> 1;
+                    adj_len[f] == 3 && (g as usize) < f && adj[f].iter().all(|&a| a >> 1 == g)
+                })
+                .map(|f| f as u32)
+                .collect()
+        } else {
+            duplicate_facet_list(&ids, &degenerate)
+        };
+        drop(ids);
+        let duplicate_facets = duplicates.len();
+        defects.extend(duplicates.into_iter().map(|f| (Defect::Duplicate, f)));
+        // Edge findings follow, ordered by edge as found (lower vertex, then higher).
+        defects.append(&mut groups);
 
         // Shell numbering in order of first facet.
-        let mut root_shell: FxHashMap<usize, u32> = FxHashMap::default();
+        let mut root_shell: Vec<u32> = vec![NO_SHELL; n];
         let mut facet_shell = vec![NO_SHELL; n];
         let mut shells: Vec<ShellInfo> = Vec::new();
         for f in 0..n {
@@ -213,7 +216,8 @@ impl Topology {
                 continue;
             }
             let r = uf.find(f);
-            let s = *root_shell.entry(r).or_insert_with(|| {
+            if root_shell[r] == NO_SHELL {
+                root_shell[r] = shells.len() as u32;
                 shells.push(ShellInfo {
                     facets: 0,
                     facet_span: (f, f),
@@ -224,18 +228,13 @@ impl Topology {
                     flipped_facets: 0,
                     depth: 0,
                     children: 0,
-                    bbox: (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY)),
                 });
-                (shells.len() - 1) as u32
-            });
+            }
+            let s = root_shell[r];
             facet_shell[f] = s;
             let sh = &mut shells[s as usize];
             sh.facets += 1;
             sh.facet_span.1 = f;
-            for p in &tris[f] {
-                sh.bbox.0 = sh.bbox.0.inf(p);
-                sh.bbox.1 = sh.bbox.1.sup(p);
-            }
             if bad_facet[f] {
                 sh.closed = false;
             }
@@ -245,21 +244,25 @@ impl Topology {
         // must be read reversed relative to this facet.
         let mut flip = vec![false; n];
         let mut seen = vec![false; n];
-        let mut queue = VecDeque::new();
+        let mut queue: Vec<u32> = Vec::new();
         for f in 0..n {
             if degenerate[f] || seen[f] {
                 continue;
             }
             seen[f] = true;
-            queue.push_back(f);
-            while let Some(c) = queue.pop_front() {
-                for &(g, same) in &adj[c][..adj_len[c] as usize] {
-                    let g = g as usize;
+            queue.clear();
+            queue.push(f as u32);
+            let mut head = 0;
+            while head < queue.len() {
+                let c = queue[head] as usize;
+                head += 1;
+                for &a in &adj[c][..adj_len[c] as usize] {
+                    let (g, same) = ((a >> 1) as usize, a & 1 == 1);
                     let want = flip[c] ^ same;
                     if !seen[g] {
                         seen[g] = true;
                         flip[g] = want;
-                        queue.push_back(g);
+                        queue.push(g as u32);
                     } else if flip[g] != want {
                         let sh = &mut shells[facet_shell[c] as usize];
                         sh.orientable = false;
@@ -337,31 +340,61 @@ pub fn bounding_box<'a>(points: impl Iterator<Item = &'a Vec3>) -> (Vec3, Vec3) 
     (lo, hi)
 }
 
+/// [`bounding_box`] of the corners of `tris`, over all threads (min and max are exact,
+/// so the result is the same bits for any thread count).
+pub fn par_bounding_box(tris: &[Tri]) -> (Vec3, Vec3) {
+    use rayon::prelude::*;
+    let empty = || (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY));
+    tris.par_chunks(super::CHUNK)
+        .map(|c| bounding_box(c.iter().flat_map(|t| t.iter())))
+        .reduce(empty, |(a, b), (c, d)| (a.inf(&c), b.sup(&d)))
+}
+
+/// Cells per axis of the weld grid fit in this many bits of a packed key.
+const CELL_BITS: u32 = 21;
+
+/// Slots of the weld's cache of exact corner positions (a power of two).
+const EXACT_SLOTS: usize = 1 << 14;
+
 /// Gives every corner a vertex id; corners within `tol` of a representative share it.
 ///
-/// A grid of cells 8 × `tol` wide; a corner is compared with the representatives of its
+/// A grid of cells 64 × `tol` wide (so that nine in ten corners lie more than `tol` from
+/// every cell face, and one cell answers); a corner is compared with the representatives of its
 /// own cell and of the neighbour cells it lies within `tol` of, so almost every lookup
 /// touches one cell. The first corner of a cluster becomes its representative.
+///
+/// In a triangle soup every vertex is stored once per facet that uses it, bit for bit the
+/// same, usually a few facets apart. A small direct-mapped cache of exact positions answers
+/// those repeats before the grid is consulted; it holds only corners whose id the grid gave,
+/// so it never changes an answer, and identical positions always get the same id.
 fn weld(tris: &[Tri], tol: f64, origin: Vec3) -> (Vec<[u32; 3]>, usize) {
-    let cell = if tol > 0.0 { 8.0 * tol } else { 1.0 };
+    // With tol = 1e-7 × the diagonal every axis spans at most 1.6e5 cells (< 2^21).
+    let cell = if tol > 0.0 { 64.0 * tol } else { 1.0 };
     let tol2 = tol * tol;
-    let mut heads: FxHashMap<[i64; 3], u32> = FxHashMap::default();
+    let mut heads: FxHashMap<u64, u32> = FxHashMap::default();
     heads.reserve(tris.len() / 2 + 16);
     let mut reps: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
     let mut next: Vec<u32> = Vec::with_capacity(tris.len() / 2 + 16);
     let mut ids = Vec::with_capacity(tris.len());
-    let key_of = |q: &Vec3| -> [i64; 3] {
-        [
-            (q.x / cell).floor() as i64,
-            (q.y / cell).floor() as i64,
-            (q.z / cell).floor() as i64,
-        ]
+    let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
+    let cell_of = |x: f64| -> i64 { (x / cell).floor() as i64 };
+    let pack = |k: [i64; 3]| -> u64 {
+        let m = (1u64 << CELL_BITS) - 1;
+        (k[0] as u64 & m)
+            | ((k[1] as u64 & m) << CELL_BITS)
+            | ((k[2] as u64 & m) << (2 * CELL_BITS))
     };
     for t in tris {
         let mut tri_ids = [0u32; 3];
         for (k, p) in t.iter().enumerate() {
+            let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+            let slot = exact_slot(&bits);
+            if exact[slot].0 == bits {
+                tri_ids[k] = exact[slot].1;
+                continue;
+            }
             let q = p - origin;
-            let key = key_of(&q);
+            let key = [cell_of(q.x), cell_of(q.y), cell_of(q.z)];
             let mut found = None;
             // Neighbour offsets worth visiting along each axis.
             let mut offs: [[i64; 2]; 3] = [[0, 0]; 3];
@@ -379,11 +412,11 @@ fn weld(tris: &[Tri], tol: f64, origin: Vec3) -> (Vec<[u32; 3]>, usize) {
             'search: for ia in 0..counts[0] {
                 for ib in 0..counts[1] {
                     for ic in 0..counts[2] {
-                        let kk = [
+                        let kk = pack([
                             key[0] + offs[0][ia],
                             key[1] + offs[1][ib],
                             key[2] + offs[2][ic],
-                        ];
+                        ]);
                         let mut r = heads.get(&kk).copied().unwrap_or(u32::MAX);
                         while r != u32::MAX {
                             if (reps[r as usize] - q).norm_squared() <= tol2 {
@@ -400,17 +433,113 @@ fn weld(tris: &[Tri], tol: f64, origin: Vec3) -> (Vec<[u32; 3]>, usize) {
                 None => {
                     let id = reps.len() as u32;
                     reps.push(q);
-                    let head = heads.entry(key).or_insert(u32::MAX);
+                    let head = heads.entry(pack(key)).or_insert(u32::MAX);
                     next.push(*head);
                     *head = id;
                     id
                 }
             };
+            exact[slot] = (bits, id);
             tri_ids[k] = id;
         }
         ids.push(tri_ids);
     }
     (ids, reps.len())
+}
+
+/// The cache slot of an exact position: a multiplicative hash of its bit patterns.
+fn exact_slot(bits: &[u64; 3]) -> usize {
+    const K: u64 = 0x9E37_79B9_7F4A_7C15;
+    let h = (bits[0].wrapping_mul(K) ^ bits[1]).wrapping_mul(K) ^ bits[2];
+    (h.wrapping_mul(K) >> (64 - EXACT_SLOTS.trailing_zeros())) as usize
+}
+
+/// One directed edge in its lower vertex's bucket: the higher vertex, and the facet with
+/// the direction bit (set when the facet runs from the lower vertex to the higher).
+#[derive(Clone, Copy)]
+struct EdgeEntry {
+    hi: u32,
+    facet_dir: u32,
+}
+
+impl EdgeEntry {
+    fn facet(self) -> u32 {
+        self.facet_dir >> 1
+    }
+    fn forward(self) -> bool {
+        self.facet_dir & 1 == 1
+    }
+}
+
+/// Every directed edge of the non-degenerate facets, bucketed by lower vertex.
+struct EdgeBuckets {
+    /// `start[v]..start[v + 1]` is vertex v's bucket in `entries`.
+    start: Vec<u32>,
+    entries: Vec<EdgeEntry>,
+}
+
+impl EdgeBuckets {
+    fn new(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize) -> EdgeBuckets {
+        let mut start = vec![0u32; vertices + 1];
+        for (t, _) in ids.iter().zip(degenerate).filter(|(_, d)| !**d) {
+            for (u, v) in [(t[0], t[1]), (t[1], t[2]), (t[2], t[0])] {
+                start[u.min(v) as usize + 1] += 1;
+            }
+        }
+        for v in 0..vertices {
+            start[v + 1] += start[v];
+        }
+        let mut fill = start.clone();
+        let mut entries = vec![
+            EdgeEntry {
+                hi: 0,
+                facet_dir: 0
+            };
+            start[vertices] as usize
+        ];
+        for (f, (t, _)) in ids
+            .iter()
+            .zip(degenerate)
+            .enumerate()
+            .filter(|(_, (_, d))| !**d)
+        {
+            for (u, v) in [(t[0], t[1]), (t[1], t[2]), (t[2], t[0])] {
+                let lo = u.min(v) as usize;
+                entries[fill[lo] as usize] = EdgeEntry {
+                    hi: u.max(v),
+                    facet_dir: ((f as u32) << 1) | u32::from(u < v),
+                };
+                fill[lo] += 1;
+            }
+        }
+        EdgeBuckets { start, entries }
+    }
+
+    /// Calls `visit` with each undirected edge's uses, in order of (lower, higher) vertex,
+    /// the uses in facet order.
+    fn for_each_group(mut self, mut visit: impl FnMut(&[EdgeEntry])) {
+        for v in 0..self.start.len() - 1 {
+            let bucket = &mut self.entries[self.start[v] as usize..self.start[v + 1] as usize];
+            // Buckets are small (about six uses): a stable insertion sort by higher vertex
+            // keeps the facet order within each edge.
+            for i in 1..bucket.len() {
+                let mut j = i;
+                while j > 0 && bucket[j - 1].hi > bucket[j].hi {
+                    bucket.swap(j - 1, j);
+                    j -= 1;
+                }
+            }
+            let mut i = 0;
+            while i < bucket.len() {
+                let mut j = i + 1;
+                while j < bucket.len() && bucket[j].hi == bucket[i].hi {
+                    j += 1;
+                }
+                visit(&bucket[i..j]);
+                i = j;
+            }
+        }
+    }
 }
 
 /// Facets whose three welded vertices repeat an earlier facet's (any order or winding).
@@ -450,15 +579,27 @@ fn nest(tris: &[Tri], facet_shell: &[u32], flip: &[bool], shells: &mut [ShellInf
             probe[s as usize] = Some((t[0] + t[1] + t[2]) / 3.0);
         }
     }
-    let inside_box = |a: &ShellInfo, b: &ShellInfo| {
-        (0..3).all(|k| a.bbox.0[k] >= b.bbox.0[k] && a.bbox.1[k] <= b.bbox.1[k])
+    let mut bbox =
+        vec![(Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY)); shells.len()];
+    for (f, &s) in facet_shell.iter().enumerate() {
+        if s != NO_SHELL {
+            let b = &mut bbox[s as usize];
+            for p in &tris[f] {
+                b.0 = b.0.inf(p);
+                b.1 = b.1.sup(p);
+            }
+        }
+    }
+    let inside_box = |a: usize, b: usize| {
+        let (a, b) = (&bbox[a], &bbox[b]);
+        (0..3).all(|k| a.0[k] >= b.0[k] && a.1[k] <= b.1[k])
     };
     let mut encloses: Vec<(usize, usize)> = Vec::new(); // (outer, inner)
     for &b in &closed {
         let candidates: Vec<usize> = closed
             .iter()
             .copied()
-            .filter(|&a| a != b && inside_box(&shells[a], &shells[b]))
+            .filter(|&a| a != b && inside_box(a, b))
             .collect();
         if candidates.is_empty() {
             continue;
@@ -598,6 +739,28 @@ mod tests {
         assert_eq!(t.non_manifold_edges, 3);
         assert!(!t.closed());
 
+        // A lone facet stored twice: every edge is used by exactly the two copies.
+        let a = [
+            Vec3::zeros(),
+            Vec3::new(1.0, 0.0, 0.0),
+            Vec3::new(0.0, 1.0, 0.0),
+        ];
+        let t = Topology::build(&[a, a]);
+        assert_eq!(
+            (
+                t.duplicate_facets,
+                t.inconsistent_edges,
+                t.non_manifold_edges
+            ),
+            (1, 3, 0)
+        );
+        assert_eq!(t.defects[0], (Defect::Duplicate, 1));
+        let t = Topology::build(&[a, [a[0], a[2], a[1]]]);
+        assert_eq!(
+            (t.duplicate_facets, t.inconsistent_edges, t.open_edges),
+            (1, 0, 0)
+        );
+
         // A sliver whose vertices collapse within the weld tolerance.
         let mut m = unit_box();
         let p = m[0][0];
@@ -615,6 +778,84 @@ mod tests {
             .map(|(i, f)| f.map(|p| p + Vec3::repeat(if i % 2 == 0 { 1e-13 } else { 0.0 })))
             .collect();
         assert!(Topology::build(&m).closed());
+    }
+
+    /// Edge findings counted the plain way: a map from undirected edge to its uses.
+    fn naive_edge_counts(ids: &[[u32; 3]]) -> (usize, usize, usize) {
+        let mut uses: std::collections::BTreeMap<(u32, u32), Vec<bool>> = Default::default();
+        for [a, b, c] in ids {
+            if a == b || b == c || a == c {
+                continue;
+            }
+            for (u, v) in [(*a, *b), (*b, *c), (*c, *a)] {
+                uses.entry((u.min(v), u.max(v))).or_default().push(u < v);
+            }
+        }
+        let open = uses.values().filter(|u| u.len() == 1).count();
+        let non_manifold = uses.values().filter(|u| u.len() > 2).count();
+        let inconsistent = uses
+            .values()
+            .filter(|u| u.len() == 2 && u[0] == u[1])
+            .count();
+        (open, non_manifold, inconsistent)
+    }
+
+    proptest::proptest! {
+        /// Soups drawn from a few well-separated points, each corner jittered by well under
+        /// the weld tolerance: the weld must give every corner the id of its point (checked
+        /// as a partition), and the edge findings must match a plain count.
+        #[test]
+        fn weld_and_edges_match_a_plain_count(
+            faces in proptest::collection::vec((0u32..12, 0u32..12, 0u32..12, 0u8..4), 1..60),
+            jitter in proptest::collection::vec(-1.0f64..1.0, 540),
+        ) {
+            let pool: Vec<Vec3> = (0..12)
+                .map(|i| {
+                    let i = f64::from(i);
+                    Vec3::new(i.sin() * 3.0, (1.7 * i).cos() * 2.0, 0.37 * i)
+                })
+                .collect();
+            let mut tris = Vec::new();
+            let mut point_ids = Vec::new();
+            for (f, &(a, b, c, j)) in faces.iter().enumerate() {
+                let corner = |k: usize, id: u32| {
+                    // A twentieth of the tolerance at most (the box diagonal is over 4).
+                    let e = if j == 0 { 0.0 } else { 2e-8 };
+                    pool[id as usize] + Vec3::new(
+                        e * jitter[(9 * f + 3 * k) % 540],
+                        e * jitter[(9 * f + 3 * k + 1) % 540],
+                        e * jitter[(9 * f + 3 * k + 2) % 540],
+                    )
+                };
+                tris.push([corner(0, a), corner(1, b), corner(2, c)]);
+                point_ids.push([a, b, c]);
+            }
+            let (lo, hi) = bounding_box(tris.iter().flat_map(|t| t.iter()));
+            let tol = WELD_TOLERANCE_REL * (hi - lo).norm();
+            let (ids, vertices) = weld(&tris, tol, lo);
+            let mut seen: std::collections::BTreeMap<u32, u32> = Default::default();
+            for (got, want) in ids.iter().flatten().zip(point_ids.iter().flatten()) {
+                proptest::prop_assert_eq!(*seen.entry(*want).or_insert(*got), *got);
+            }
+            let distinct: std::collections::BTreeSet<u32> = ids.iter().flatten().copied().collect();
+            proptest::prop_assert_eq!(distinct.len(), seen.len());
+            proptest::prop_assert_eq!(vertices, seen.len());
+
+            let t = Topology::build(&tris);
+            let (open, non_manifold, inconsistent) = naive_edge_counts(&point_ids);
+            proptest::prop_assert_eq!(t.open_edges, open);
+            proptest::prop_assert_eq!(t.non_manifold_edges, non_manifold);
+            proptest::prop_assert_eq!(t.inconsistent_edges, inconsistent);
+            let mut sorted: Vec<[u32; 3]> = point_ids
+                .iter()
+                .filter(|[a, b, c]| a != b && b != c && a != c)
+                .map(|t| { let mut k = *t; k.sort_unstable(); k })
+                .collect();
+            let all = sorted.len();
+            sorted.sort_unstable();
+            sorted.dedup();
+            proptest::prop_assert_eq!(t.duplicate_facets, all - sorted.len());
+        }
     }
 
     #[test]

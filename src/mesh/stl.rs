@@ -24,6 +24,8 @@
 
 use std::path::Path;
 
+use rayon::prelude::*;
+
 use super::polygon::Triangulator;
 use super::{
     Facet, Format, LineError, Mesh, MeshError, Part, PartsBuilder, Problem, parse_coordinate,
@@ -106,26 +108,41 @@ fn read_binary(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
             format: Format::StlBinary,
         });
     }
-    let mut facets: Vec<Facet> = Vec::with_capacity(count);
-    let mut normals: Vec<[f32; 3]> = Vec::with_capacity(count);
-    for (i, r) in records.iter().enumerate() {
-        let mut facet = [[0.0f64; 3]; 3];
-        for (k, vertex) in facet.iter_mut().enumerate() {
-            for (j, c) in vertex.iter_mut().enumerate() {
-                let value = f32_at(r, 12 + 12 * k + 4 * j);
-                if !value.is_finite() {
-                    return Err(MeshError::NonFiniteBinary {
-                        path: path.to_path_buf(),
-                        facet: i + 1,
-                        count,
-                        value,
-                    });
+    // Fixed-size chunks over both threads; each facet is converted on its own, so the
+    // result does not depend on the thread count. The first non-finite value is reported.
+    const CHUNK: usize = 8192;
+    let mut facets: Vec<Facet> = vec![[[0.0; 3]; 3]; count];
+    let mut normals: Vec<[f32; 3]> = vec![[0.0; 3]; count];
+    let first_bad = facets
+        .par_chunks_mut(CHUNK)
+        .zip(normals.par_chunks_mut(CHUNK))
+        .zip(records.par_chunks(CHUNK))
+        .enumerate()
+        .filter_map(|(c, ((facets, normals), records))| {
+            let mut bad = None;
+            for (i, ((facet, normal), r)) in facets.iter_mut().zip(normals).zip(records).enumerate()
+            {
+                for (k, vertex) in facet.iter_mut().enumerate() {
+                    for (j, v) in vertex.iter_mut().enumerate() {
+                        let value = f32_at(r, 12 + 12 * k + 4 * j);
+                        if !value.is_finite() && bad.is_none() {
+                            bad = Some((c * CHUNK + i, value));
+                        }
+                        *v = f64::from(value);
+                    }
                 }
-                *c = f64::from(value);
+                *normal = [f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)];
             }
-        }
-        facets.push(facet);
-        normals.push([f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)]);
+            bad
+        })
+        .min_by_key(|(i, _)| *i);
+    if let Some((i, value)) = first_bad {
+        return Err(MeshError::NonFiniteBinary {
+            path: path.to_path_buf(),
+            facet: i + 1,
+            count,
+            value,
+        });
     }
     Ok(Mesh {
         facets,

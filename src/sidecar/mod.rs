@@ -101,6 +101,43 @@ pub struct Sidecar {
     pub sweep: Option<Sweep>,
     /// A flotation check, if asked for.
     pub flotation: Option<Flotation>,
+    /// Whether the per-facet field exports (`.vtp`, `.csv`) are written; default `auto`.
+    pub field_exports: FieldExports,
+}
+
+/// Most facets for which `"field_exports": "auto"` writes the per-facet exports. Above it
+/// they would cost more than the computation (about 550 bytes of text a facet), so they are
+/// written only when asked for with `"always"`.
+pub const AUTO_FIELD_EXPORT_FACETS: usize = 250_000;
+
+/// The sidecar key `field_exports`: when the per-facet exports are written.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum FieldExports {
+    /// For meshes of at most [`AUTO_FIELD_EXPORT_FACETS`] facets.
+    #[default]
+    Auto,
+    Always,
+    Never,
+}
+
+impl FieldExports {
+    /// The keyword used in sidecars.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            FieldExports::Auto => "auto",
+            FieldExports::Always => "always",
+            FieldExports::Never => "never",
+        }
+    }
+
+    /// Whether a mesh of `facets` facets gets its field exports.
+    pub fn writes(self, facets: usize) -> bool {
+        match self {
+            FieldExports::Auto => facets <= AUTO_FIELD_EXPORT_FACETS,
+            FieldExports::Always => true,
+            FieldExports::Never => false,
+        }
+    }
 }
 
 /// A base liquid's name, and the preset it was given by, if any (for reports).
@@ -986,6 +1023,7 @@ fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
         cases,
         sweep,
         flotation,
+        field_exports: raw.field_exports.unwrap_or_default(),
     })
 }
 
@@ -1155,6 +1193,20 @@ mod tests {
         );
         let e = err(&with(r#""parts": {"p": {"wet_side": "Front"}}"#));
         assert_eq!(e.key, "parts.p.wet_side");
+    }
+
+    #[test]
+    fn field_exports_default_to_auto_with_a_size_limit() {
+        let s = ok(&liquid(r#"{"level": 5.0, "density": 1000}"#));
+        assert_eq!(s.field_exports, FieldExports::Auto);
+        assert!(s.field_exports.writes(AUTO_FIELD_EXPORT_FACETS));
+        assert!(!s.field_exports.writes(AUTO_FIELD_EXPORT_FACETS + 1));
+        let s = ok(&with(r#""field_exports": "always""#));
+        assert!(s.field_exports.writes(usize::MAX));
+        let s = ok(&with(r#""field_exports": "never""#));
+        assert!(!s.field_exports.writes(1));
+        let e = err(&with(r#""field_exports": true"#));
+        assert_eq!(e.key, "field_exports");
     }
 
     #[test]

@@ -15,7 +15,7 @@ use serde::de::value::MapAccessDeserializer;
 use serde::de::{self, Deserializer, MapAccess, SeqAccess, Visitor};
 use serde_path_to_error::Segment as PathSegment;
 
-use super::LengthUnit;
+use super::{FieldExports, LengthUnit};
 use crate::hydro::{UpAxis, WetSide};
 
 /// The whole sidecar document.
@@ -46,6 +46,8 @@ pub(super) struct RawSidecar {
     pub sweep: Option<RawSweep>,
     #[serde(default, deserialize_with = "some")]
     pub flotation: Option<RawFlotation>,
+    #[serde(default, deserialize_with = "keyword")]
+    pub field_exports: Option<FieldExports>,
 }
 
 /// A liquid as written under `liquid`, `liquids.<name>` or `cases[].liquids.<name>`.
@@ -270,6 +272,7 @@ macro_rules! keyword {
 keyword!(LengthUnit, "unit", [M, Cm, Mm, In, Ft]);
 keyword!(UpAxis, "up axis", [PosX, NegX, PosY, NegY, PosZ, NegZ]);
 keyword!(WetSide, "wet side", [Outside, Inside, Front, Back]);
+keyword!(FieldExports, "field export setting", [Auto, Always, Never]);
 
 /// `"a", "b", "c"`: the keywords of `T` quoted, for messages.
 pub(super) fn keyword_list<T: Keyword>() -> String {

@@ -399,10 +399,10 @@ impl Watch<'_> {
             return Ok(true);
         }
         let pipeline::Computed {
-            mesh: parsed,
+            model,
             sidecar,
             result,
-        } = match pipeline::compute_parsed(mesh, &inputs) {
+        } = match pipeline::compute_parsed(mesh, inputs) {
             Ok(c) => c,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
         };
@@ -413,7 +413,7 @@ impl Watch<'_> {
             return Ok(false);
         }
         // Pictures and exports: the result is written, so a failure here is only reported.
-        if let Err(e) = crate::outputs::write_outputs(mesh, &parsed, &sidecar, &result) {
+        if let Err(e) = crate::outputs::write_outputs(mesh, &model, &sidecar, &result) {
             self.say(&format!("{} {name} · note: {e}\n", clock()));
         }
         let st = self.meshes.entry(mesh.to_owned()).or_default();

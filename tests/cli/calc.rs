@@ -505,3 +505,38 @@ fn the_demo_folder() {
         "{fl}"
     );
 }
+
+#[test]
+fn field_exports_can_be_turned_off_and_old_ones_are_removed() {
+    let f = Folder::new();
+    write_box(&f, "tank");
+    f.calc(&["tank.stl"]).expect_code(0);
+    let listing = f.results_listing();
+    assert!(listing.contains(&"tank.vtp".to_owned()), "{listing:?}");
+    assert!(listing.contains(&"tank.csv".to_owned()), "{listing:?}");
+
+    f.write(
+        "tank.json",
+        r#"{"units": "m", "liquid": {"level": -0.5, "density": 1000}, "field_exports": "never"}"#,
+    );
+    f.calc(&["tank.stl"]).expect_code(0);
+    let listing = f.results_listing();
+    assert!(!listing.contains(&"tank.vtp".to_owned()), "{listing:?}");
+    assert!(!listing.contains(&"tank.csv".to_owned()), "{listing:?}");
+    // Turned off on purpose: no warning about it, and the loads are unchanged.
+    let result = f.result("tank");
+    assert_eq!(result["warnings"], serde_json::json!([]));
+    check_box_loads(&result["cases"][0], "without exports");
+
+    f.write(
+        "tank.json",
+        r#"{"units": "m", "liquid": {"level": -0.5, "density": 1000}, "field_exports": "sometimes"}"#,
+    );
+    let run = f.calc(&["tank.stl"]);
+    run.expect_code(1);
+    assert!(
+        run.stderr.contains("field_exports") && run.stderr.contains("\"always\""),
+        "{}",
+        run.stderr
+    );
+}
