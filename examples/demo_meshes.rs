@@ -160,7 +160,8 @@ fn wet_well() -> Result<Files> {
   "flotation": {
     "resisting": { "structure": 424000, "soil_above": 81000 },
     "factor_preset": "usace-em-1110-2-2100-usual"
-  }
+  },
+  "sweep": { "liquid": "liquid", "from": 0.5, "to": 5.0, "step": 0.5 }
 }
 "#;
     Ok(vec![
@@ -315,7 +316,9 @@ base. Flotation resisting loads, invented:
   `config/flotation.json`, where its source is given; the value is from memory).
 
 Closed-form check: net uplift ρg · 3.0 · 2.5 · 3.5 = 257 424.6 N (the walls are vertical,
-so it is all on the base), factor 505 000 / 257 424.6 = 1.96, which passes 1.3.
+so it is all on the base), factor 505 000 / 257 424.6 = 1.96, which passes 1.3. The sweep
+raises the groundwater from 0.5 m to the top of the well, 5.0 m: the factor
+505 000 / (ρg · 7.5 · H) falls to its lowest, 1.373, with the water at the top.
 
 ## pontoon
 

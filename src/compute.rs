@@ -199,6 +199,10 @@ pub struct SweepStep {
     pub wetted_area: f64,
     pub submerged_volume: Option<f64>,
     pub axis_moments: std::collections::BTreeMap<String, AxisMoment>,
+    /// With a flotation check: Σ resisting / net uplift at this level, null when the net
+    /// uplift is 0 (not written without a flotation check).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub flotation_factor: Option<Option<f64>>,
 }
 
 /// Safety against flotation: resisting loads over the net uplift.
@@ -318,7 +322,7 @@ pub fn compute_model(
         let flotation = sidecar
             .flotation
             .as_ref()
-            .map(|f| flotation_check(f, &loads));
+            .map(|f| flotation_check(f, &loads, 1e-12 * (loads.uplift + loads.downthrust)));
         cases.push(CaseResult {
             name: case.name.clone(),
             liquids: sidecar
@@ -383,8 +387,11 @@ pub fn compute_model(
 /// FS = Σ resisting / (uplift − downthrust). When the mesh's top is under the liquid its
 /// downthrust is the weight of the liquid above it (the W_G of the USACE form
 /// FS_f = (W_S + W_C + S) / (U − W_G)), so it is subtracted, not counted as resisting.
-fn flotation_check(f: &Flotation, loads: &Loads) -> FlotationCheck {
+///
+/// A net uplift at most `noise` (N) is round-off and counts as none.
+fn flotation_check(f: &Flotation, loads: &Loads, noise: f64) -> FlotationCheck {
     let uplift = loads.vertical_force.max(0.0);
+    let uplift = if uplift <= noise { 0.0 } else { uplift };
     let resisting: f64 = f.resisting.iter().map(|(_, v)| v).sum();
     let factor = (uplift > 0.0).then(|| resisting / uplift);
     let terms: Vec<String> = f
@@ -964,21 +971,33 @@ fn sweep_steps(
         liquid: sidecar.liquids[sw.liquid].name.clone(),
         source,
     })?;
+    let loads: Vec<Loads> = sums
+        .iter()
+        .map(|acc| loads_of(prep, &fixed.merge(acc), closed, prep.mesh_plane.as_ref()))
+        .collect();
+    // A net uplift within round-off of the sweep's largest loads counts as none (at a level
+    // through a body's base the sums cancel to a few ulps, which would give FS ≈ 1e16).
+    let noise = 1e-12
+        * loads
+            .iter()
+            .map(|l| l.uplift + l.downthrust)
+            .fold(0.0, f64::max);
     Ok(levels
         .iter()
-        .zip(&sums)
-        .map(|(&level, acc)| {
-            let l = loads_of(prep, &fixed.merge(acc), closed, prep.mesh_plane.as_ref());
-            SweepStep {
-                level,
-                force: l.force,
-                moment: l.moment,
-                uplift: l.uplift,
-                downthrust: l.downthrust,
-                wetted_area: l.wetted_area,
-                submerged_volume: l.submerged_volume,
-                axis_moments: l.axis_moments,
-            }
+        .zip(loads)
+        .map(|(&level, l)| SweepStep {
+            level,
+            force: l.force,
+            moment: l.moment,
+            uplift: l.uplift,
+            downthrust: l.downthrust,
+            wetted_area: l.wetted_area,
+            submerged_volume: l.submerged_volume,
+            flotation_factor: sidecar
+                .flotation
+                .as_ref()
+                .map(|f| flotation_check(f, &l, noise).factor),
+            axis_moments: l.axis_moments,
         })
         .collect())
 }
@@ -1009,6 +1028,10 @@ pub struct Governing {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub submerged_volume: Option<Extreme>,
     pub axis_moments: std::collections::BTreeMap<String, Extreme>,
+    /// With a flotation check: the *lowest* factor of safety over the levels with a net
+    /// uplift, and its level (null when no level has one; absent without a check).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub flotation_factor: Option<Option<Extreme>>,
 }
 
 /// The governing values of a sweep's steps; `extent_m` (the mesh's size) scales the
@@ -1072,6 +1095,18 @@ pub fn governing(liquid: &str, steps: &[SweepStep], extent_m: f64) -> Governing 
                 (name, e)
             })
             .collect(),
+        flotation_factor: steps.first().and_then(|s| s.flotation_factor).map(|_| {
+            let factors = || {
+                steps
+                    .iter()
+                    .filter_map(|s| Some((s.flotation_factor??, s.level)))
+            };
+            let lowest = factors().map(|(fs, _)| fs).reduce(f64::min)?;
+            // As above: the first level within round-off of the lowest governs.
+            factors()
+                .find(|&(fs, _)| fs <= lowest * (1.0 + 1e-9))
+                .map(|(value, level)| Extreme { value, level })
+        }),
     }
 }
 
@@ -1407,6 +1442,7 @@ mod tests {
             downthrust: (-fz).max(0.0),
             wetted_area: 0.0,
             submerged_volume: Some(fz / 1e4),
+            flotation_factor: None,
             axis_moments: [(
                 "hinge".to_owned(),
                 AxisMoment {

@@ -523,6 +523,11 @@ fn governing_table(s: &mut String, g: &Value) {
             format!("{v} {}N·m", moments.prefix),
         );
     }
+    // The flotation factor governs at its lowest, not its largest.
+    if let Some(e) = g.get("flotation_factor").filter(|e| e.is_object()) {
+        let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| num(x, 3));
+        row("flotation factor (lowest)", e, v);
+    }
     s.push_str("</table></div>\n");
 }
 
@@ -975,7 +980,8 @@ mod tests {
                     "force_x": {"value": 78453.2, "level": 2.0}, "force_y": {"value": 0.0, "level": 1.0},
                     "force_z": {"value": 0.0, "level": 1.0}, "force_magnitude": {"value": 78453.2, "level": 2.0},
                     "uplift": {"value": 0.0, "level": 1.0}, "downthrust": {"value": 0.0, "level": 1.0},
-                    "axis_moments": {"trunnion": {"value": 2.0, "level": 2.0}}
+                    "axis_moments": {"trunnion": {"value": 2.0, "level": 2.0}},
+                    "flotation_factor": {"value": 1.4567, "level": 2.0}
                 }
             }],
             "warnings": ["open surface: the liquid is taken on the \"front\" side"],
@@ -1085,6 +1091,11 @@ mod tests {
         assert!(
             html.contains(
                 "<tr><td>moment about trunnion</td><td>2.0000 N·m</td><td>2.000</td></tr>"
+            )
+        );
+        assert!(
+            html.contains(
+                "<tr><td>flotation factor (lowest)</td><td>1.457</td><td>2.000</td></tr>"
             )
         );
         // The mesh that only failed shows its error.

@@ -343,6 +343,10 @@ fn sweep_block(s: &mut String, sw: &[SweepStep], g: Option<&Governing>, u: &Show
         for a in &axes {
             let _ = write!(head, " {:>16}", format!("{} {mu}", truncate(a, 10)));
         }
+        let factors = sw.first().is_some_and(|x| x.flotation_factor.is_some());
+        if factors {
+            let _ = write!(head, " {:>8}", "FS");
+        }
         let _ = writeln!(s, "{head}");
         for x in sw {
             let f = x.force;
@@ -362,6 +366,10 @@ fn sweep_block(s: &mut String, sw: &[SweepStep], g: Option<&Governing>, u: &Show
             for a in &axes {
                 let m = x.axis_moments.get(*a).map_or(0.0, |m| m.moment);
                 let _ = write!(row, " {:>16}", u.m(m));
+            }
+            if let Some(fs) = x.flotation_factor {
+                let fs = fs.map_or_else(|| "—".to_owned(), |f| format!("{f:.3}"));
+                let _ = write!(row, " {fs:>8}");
             }
             let _ = writeln!(s, "{row}");
         }
@@ -402,6 +410,16 @@ fn sweep_block(s: &mut String, sw: &[SweepStep], g: Option<&Governing>, u: &Show
     }
     for (name, e) in &g.axis_moments {
         line(&format!("moment about {name}"), e, u.m(e.value), mu);
+    }
+    match &g.flotation_factor {
+        Some(Some(e)) => line("flotation FS (lowest)", e, format!("{:.3}", e.value), ""),
+        Some(None) => {
+            let _ = writeln!(
+                s,
+                "      flotation FS (lowest)    no level gives a net uplift: it cannot float"
+            );
+        }
+        None => {}
     }
 }
 

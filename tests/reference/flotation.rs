@@ -148,3 +148,45 @@ fn a_tank_above_the_water_table_cannot_float() {
     assert!(f.pass);
     assert!(f.factor_preset.is_none());
 }
+
+/// Closed form over a sweep: an empty box tank of plan A = 3 × 2 m, base at z = −4 m and
+/// roof at 0 (buried), groundwater rising from below the base to above the roof. Below the
+/// roof the net uplift is ρ g A (L + 4); above it ρ g A · 4 (the water above the roof
+/// pushes down as much as the extra head pushes up). FS(L) = R / net uplift is lowest
+/// once the roof is under, first reached at L = 0.
+#[test]
+fn groundwater_sweep_of_a_buried_tank() {
+    let (a, r) = (3.0 * 2.0, 400_000.0);
+    let tank = shapes::box_solid([0.0, 0.0, -4.0], [3.0, 2.0, 0.0], 2);
+    let json = format!(
+        r#"{{"units": "m", "liquid": {{"level": -1.0, "density": 1000}},
+            "flotation": {{"resisting": {{"structure": {r}}}, "required_factor": 1.5}},
+            "sweep": {{"from": -4.5, "to": 1.0, "step": 0.25}}}}"#
+    );
+    let res = run(&single(tank), &json);
+    let c = &res.cases[0];
+    for s in c.sweep.as_deref().expect("sweep") {
+        let head = (s.level + 4.0).clamp(0.0, 4.0);
+        let fs = s.flotation_factor.expect("a flotation check");
+        if head == 0.0 {
+            assert_eq!(fs, None, "no uplift at {}", s.level);
+        } else {
+            let want = r / (1000.0 * G * a * head);
+            rel(
+                &format!("tank sweep L={}: FS", s.level),
+                fs.expect("uplift"),
+                want,
+                1e-12,
+            );
+        }
+    }
+    let g = c.sweep_governing.as_ref().expect("governing");
+    let low = g.flotation_factor.expect("a check").expect("some uplift");
+    rel(
+        "tank sweep: lowest FS",
+        low.value,
+        r / (1000.0 * G * a * 4.0),
+        1e-12,
+    );
+    abs("tank sweep: level of the lowest FS", low.level, 0.0, 1e-12);
+}
