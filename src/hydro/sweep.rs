@@ -35,7 +35,9 @@
 //! being high) and records it in the cut lists of the levels in between; running sums over
 //! the buckets then give every level's deep and high totals, and only the cut facets are
 //! integrated level by level, with exactly the code a single calculation uses. The cost is
-//! one pass over the mesh plus the cut facets, instead of one pass per level.
+//! one pass over the mesh plus the cut facets, instead of one pass per level. The lists of
+//! cut facets are built for a batch of levels at a time, so memory stays bounded even when
+//! tall facets cross thousands of levels.
 //!
 //! `b_k` is the level itself when `p_s ≥ 0`. With a negative gas pressure, facets just
 //! below the surface can carry a negative mean pressure, which would change which of
@@ -81,6 +83,10 @@ pub struct SweptLiquid<'a> {
 /// longer chunks (a function of the sizes only, never of the thread count).
 const BUCKET_BUDGET: usize = 64 << 20;
 
+/// Most (level, facet) pairs listed at once for the cut facets (8 bytes each); a sweep
+/// with more is integrated in batches of levels.
+const CUT_BUDGET: usize = 8 << 20;
+
 /// The loads of `parts` at every level of `levels_m` (absolute elevations, m), one
 /// accumulator per level in the order given: the sum over the parts, as merging the
 /// accumulators of [`crate::hydro::integrate`] with each part's `profile` set to the swept
@@ -95,6 +101,20 @@ pub fn sweep(
     vol_sign: &[i8],
     swept: &SweptLiquid<'_>,
     levels_m: &[f64],
+) -> Result<Vec<PartAccum>, LiquidError> {
+    sweep_in_batches(tris, parts, wetting, vol_sign, swept, levels_m, CUT_BUDGET)
+}
+
+/// [`sweep`] listing at most `cut_budget` (level, facet) pairs at once (but always at
+/// least one level).
+fn sweep_in_batches(
+    tris: &[Tri],
+    parts: &[SweepPart],
+    wetting: &[Wetting],
+    vol_sign: &[i8],
+    swept: &SweptLiquid<'_>,
+    levels_m: &[f64],
+    cut_budget: usize,
 ) -> Result<Vec<PartAccum>, LiquidError> {
     // Every level's profile, exactly as a single calculation builds it.
     let mut order: Vec<usize> = (0..levels_m.len()).collect();
@@ -165,8 +185,13 @@ pub fn sweep(
                     if kh > 0 && side != 0.0 {
                         out.high[kh].add(&high_terms(t, side));
                     }
-                    for k in kh..kd {
-                        out.cut.push((k as u32, f as u32, pi as u32));
+                    if kh < kd {
+                        out.cut.push(Cut {
+                            facet: f as u32,
+                            part: pi as u32,
+                            from: kh as u32,
+                            to: kd as u32,
+                        });
                     }
                 }
                 out
@@ -178,16 +203,12 @@ pub fn sweep(
     // Running sums over the buckets: deep totals upward, high totals downward.
     let mut deep = vec![Deep::default(); n];
     let mut high = vec![High::default(); n + 1];
-    let mut cut: Vec<Vec<(u32, u32)>> = vec![Vec::new(); n];
     for o in &outs {
         for k in 0..n {
             deep[k].add(&o.deep[k]);
             high[k].add(&o.high[k]);
         }
         high[n].add(&o.high[n]);
-        for &(k, f, p) in &o.cut {
-            cut[k as usize].push((f, p));
-        }
     }
     for k in 1..n {
         let prev = deep[k - 1];
@@ -201,37 +222,72 @@ pub fn sweep(
         high_at[k] = above;
     }
 
-    let sorted: Vec<PartAccum> = (0..n)
-        .into_par_iter()
-        .map(|k| {
-            let prof = &profiles[k];
-            let l = levels[k];
-            let mut acc = combine(&deep[k], &high_at[k], column.w(l) + p_s, p_s, l, &column);
-            let planes = [
-                part_planes(Some(prof), Some(l)),
-                part_planes(Some(prof), None),
-                part_planes(None, Some(l)),
-            ];
-            for &(f, p) in &cut[k] {
-                let (f, part) = (f as usize, &parts[p as usize]);
-                let planes = match (part.wet, part.volume) {
-                    (true, true) => &planes[0],
-                    (true, false) => &planes[1],
-                    _ => &planes[2],
-                };
-                let loads = facet_loads(
-                    &tris[f],
-                    planes,
-                    part.wet.then_some(prof),
-                    wetting[f],
-                    part.volume.then_some(l),
-                    vol_sign[f],
-                );
-                acc.add_facet(&loads);
+    // The cut facets of each level, built for a batch of levels at a time so that tall
+    // facets crossing thousands of levels cannot exhaust memory.
+    let cuts: Vec<&Cut> = outs.iter().flat_map(|o| &o.cut).collect();
+    // How many facets each level cuts: +1 where a facet's range starts, −1 past its end.
+    let mut starts = vec![0usize; n + 1];
+    let mut ends = vec![0usize; n + 1];
+    for c in &cuts {
+        starts[c.from as usize] += 1;
+        ends[c.to as usize] += 1;
+    }
+    let mut per_level = vec![0usize; n];
+    let mut running = 0usize;
+    for k in 0..n {
+        running = running + starts[k] - ends[k];
+        per_level[k] = running;
+    }
+    let mut sorted: Vec<PartAccum> = Vec::with_capacity(n);
+    let mut k0 = 0;
+    while k0 < n {
+        let mut k1 = k0 + 1;
+        let mut pairs = per_level[k0];
+        while k1 < n && pairs + per_level[k1] <= cut_budget {
+            pairs += per_level[k1];
+            k1 += 1;
+        }
+        let mut lists: Vec<Vec<(u32, u32)>> = vec![Vec::new(); k1 - k0];
+        for c in &cuts {
+            let (from, to) = (c.from as usize, c.to as usize);
+            for k in from.max(k0)..to.min(k1) {
+                lists[k - k0].push((c.facet, c.part));
             }
-            acc
-        })
-        .collect();
+        }
+        let batch: Vec<PartAccum> = (k0..k1)
+            .into_par_iter()
+            .map(|k| {
+                let prof = &profiles[k];
+                let l = levels[k];
+                let mut acc = combine(&deep[k], &high_at[k], column.w(l) + p_s, p_s, l, &column);
+                let planes = [
+                    part_planes(Some(prof), Some(l)),
+                    part_planes(Some(prof), None),
+                    part_planes(None, Some(l)),
+                ];
+                for &(f, p) in &lists[k - k0] {
+                    let (f, part) = (f as usize, &parts[p as usize]);
+                    let planes = match (part.wet, part.volume) {
+                        (true, true) => &planes[0],
+                        (true, false) => &planes[1],
+                        _ => &planes[2],
+                    };
+                    let loads = facet_loads(
+                        &tris[f],
+                        planes,
+                        part.wet.then_some(prof),
+                        wetting[f],
+                        part.volume.then_some(l),
+                        vol_sign[f],
+                    );
+                    acc.add_facet(&loads);
+                }
+                acc
+            })
+            .collect();
+        sorted.extend(batch);
+        k0 = k1;
+    }
     let mut out = vec![PartAccum::default(); n];
     for (k, &i) in order.iter().enumerate() {
         out[i] = sorted[k];
@@ -245,12 +301,20 @@ fn z_range(t: &Tri) -> (f64, f64) {
     (lo, hi)
 }
 
-/// One chunk's share: buckets indexed by level (plus one past the last) and the cut list
-/// `(level, facet, part)`.
+/// One chunk's share: buckets indexed by level (plus one past the last) and its facets
+/// that the surface cuts at some level.
 struct ChunkOut {
     deep: Vec<Deep>,
     high: Vec<High>,
-    cut: Vec<(u32, u32, u32)>,
+    cut: Vec<Cut>,
+}
+
+/// A facet the free surface cuts at the levels `from..to` (sorted indices).
+struct Cut {
+    facet: u32,
+    part: u32,
+    from: u32,
+    to: u32,
 }
 
 impl ChunkOut {
@@ -776,6 +840,9 @@ mod tests {
         let a = run(1, &up);
         let b = run(2, &up);
         assert_eq!(a, b);
+        // One level per batch of cut facets: the same sums in the same order.
+        let one_by_one = sweep_in_batches(&t, &parts, &w, &v, &swept, &up, 1).expect("valid");
+        assert_eq!(a, one_by_one);
         let mut c = run(2, &down);
         c.reverse();
         assert_eq!(a, c);
