@@ -300,6 +300,17 @@ fn a_bad_mesh_does_not_stop_the_others() {
     assert_eq!(docs.len(), 1, "only the good one has a result");
     assert_eq!(docs[0], f.result("good"));
     assert!(!f.result_path("bad").exists());
+
+    // One mesh asked and it failed: nothing on stdout, the reason on stderr.
+    let run = f.calc(&["bad.stl", "--json"]);
+    run.expect_code(1);
+    assert_eq!(run.stdout, "");
+    assert!(
+        run.stderr.contains("bad.stl"),
+        "stderr:
+{}",
+        run.stderr
+    );
 }
 
 const TWO_CASES: &str = r#"{
