@@ -12,10 +12,7 @@ use serde::Serialize;
 
 use crate::hydro::{Defect, NO_SHELL, Topology, Tri, Vec3};
 use crate::mesh::Mesh;
-
-/// A stored STL normal counts as stale when it is more than this many degrees from the
-/// normal given by the facet's winding.
-pub const STALE_NORMAL_DEG: f64 = 45.0;
+pub use crate::mesh::STALE_NORMAL_DEG;
 
 /// The health report of one mesh (`check --json`).
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -64,7 +61,6 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
         .collect();
     let topo = Topology::build(&tris);
     let mut parts = Vec::with_capacity(mesh.parts.len());
-    let cos_limit = STALE_NORMAL_DEG.to_radians().cos();
     for part in &mesh.parts {
         let range = part.facets.clone();
         let count = |d: Defect| {
@@ -99,7 +95,7 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
         let mut lo = [f64::INFINITY; 3];
         let mut hi = [f64::NEG_INFINITY; 3];
         let mut area = 0.0;
-        let mut stale = 0;
+        let stale = mesh.stale_normals(range.clone());
         for f in range.clone() {
             let t = &tris[f];
             for p in t {
@@ -110,15 +106,6 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
             }
             let a = (t[1] - t[0]).cross(&(t[2] - t[0]));
             area += 0.5 * a.norm();
-            if let Some(normals) = &mesh.stored_normals {
-                let n = normals[f];
-                let n = Vec3::new(f64::from(n[0]), f64::from(n[1]), f64::from(n[2]));
-                let (ln, la) = (n.norm(), a.norm());
-                // A zero normal means "not given", a common export choice: not stale.
-                if ln > 0.0 && la > 0.0 && n.dot(&a) < cos_limit * ln * la {
-                    stale += 1;
-                }
-            }
         }
         parts.push(PartHealth {
             name: part.name.clone(),

@@ -13,7 +13,7 @@ use crate::hydro::{
     self, Frame, LineOfAction, Liquid, LiquidError, NO_SHELL, PartAccum, PartInput, Profile,
     Topology, Tri, Vec3, WetSide, Wetting,
 };
-use crate::mesh::{Format, Mesh, Part};
+use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG};
 use crate::sidecar::{
     AUTO_FIELD_EXPORT_FACETS, Case, FieldExports, Flotation, Sidecar, Sweep, UnassignedPart,
 };
@@ -503,7 +503,13 @@ fn prepare(
         up: sidecar.up,
     };
     // Min and max are exact, so these parallel passes give the same bits on any thread count.
-    // Stored normals play no part in the loads.
+    // Stored normals play no part in the loads; the file's health is still reported.
+    let stale = mesh.stale_normals(0..mesh.facets.len());
+    if stale > 0 {
+        warnings.push(format!(
+            "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals and uses the vertex order, but other tools may not"
+        ));
+    }
     let Mesh {
         mut facets,
         parts,

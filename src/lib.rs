@@ -148,8 +148,11 @@ fn calc(args: &CalcArgs) -> ExitCode {
         }
     }
     if args.json {
+        // One mesh: its document, or nothing when it failed (the error is on stderr).
+        // Several: an array of the documents that were computed.
         let bytes = match results.as_slice() {
             [one] if args.meshes.len() == 1 => report::json::render(one),
+            [] if args.meshes.len() == 1 => Vec::new(),
             many => report::json::render_many(many),
         };
         let _ = out.write_all(&bytes);

@@ -124,7 +124,7 @@ impl Topology {
         let tolerance = WELD_TOLERANCE_REL * diag;
         let centre = (lo + hi) / 2.0;
 
-        let (ids, vertices) = weld(tris, tolerance, lo);
+        let (ids, vertices) = weld(tris, tolerance, (lo, hi));
         let degenerate: Vec<bool> = ids
             .iter()
             .map(|[a, b, c]| a == b || b == c || a == c)
@@ -356,95 +356,226 @@ const CELL_BITS: u32 = 21;
 /// Slots of the weld's cache of exact corner positions (a power of two).
 const EXACT_SLOTS: usize = 1 << 14;
 
+/// Meshes of at least this many facets are welded in two halves side by side.
+const PARALLEL_WELD_FACETS: usize = 65_536;
+
 /// Gives every corner a vertex id; corners within `tol` of a representative share it.
 ///
-/// A grid of cells 64 × `tol` wide (so that nine in ten corners lie more than `tol` from
-/// every cell face, and one cell answers); a corner is compared with the representatives of its
-/// own cell and of the neighbour cells it lies within `tol` of, so almost every lookup
-/// touches one cell. The first corner of a cluster becomes its representative.
+/// The first corner of a cluster becomes its representative ([`WeldGrid`]). Large meshes
+/// are cut by a plane across the middle of the longest side of the box: the corners on
+/// either side, farther than 2 × `tol` from the plane, are welded by the two threads at
+/// once; the corners in the band around the plane are welded last and join a
+/// representative of either side within `tol`. No corner of one side is within `tol` of
+/// one of the other side, so the clusters are those of a single pass whenever
+/// representatives lie more than `tol` apart (as they do in any mesh that is not
+/// degenerate at the scale of the tolerance). The cut depends on the geometry only, so the
+/// ids are the same for any number of threads.
+fn weld(tris: &[Tri], tol: f64, bbox: (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
+    weld_split_from(tris, tol, bbox, PARALLEL_WELD_FACETS)
+}
+
+/// [`weld`], splitting meshes of `split_from` facets or more.
+fn weld_split_from(
+    tris: &[Tri],
+    tol: f64,
+    (lo, hi): (Vec3, Vec3),
+    split_from: usize,
+) -> (Vec<[u32; 3]>, usize) {
+    let n = tris.len();
+    if n < split_from {
+        let mut grid = WeldGrid::new(n, tol, lo);
+        let ids = tris.iter().map(|t| t.map(|p| grid.weld(&p))).collect();
+        return (ids, grid.reps.len());
+    }
+    let size = hi - lo;
+    let axis = size.imax();
+    let cut = lo[axis] + size[axis] / 2.0;
+    let band = 2.0 * tol;
+    // 0 and 1: the two sides; 2: the band.
+    let side = |p: &Vec3| -> u8 {
+        if p[axis] < cut - band {
+            0
+        } else if p[axis] > cut + band {
+            1
+        } else {
+            2
+        }
+    };
+    let half = |which: u8| {
+        let mut grid = WeldGrid::new(n / 2, tol, lo);
+        let ids: Vec<[u32; 3]> = tris
+            .iter()
+            .map(|t| {
+                t.map(|p| {
+                    if side(&p) == which {
+                        grid.weld(&p)
+                    } else {
+                        u32::MAX
+                    }
+                })
+            })
+            .collect();
+        (ids, grid)
+    };
+    let ((mut ids, low), (high_ids, high)) = rayon::join(|| half(0), || half(1));
+    let offset = low.reps.len() as u32;
+    let mut banded = WeldGrid::new(0, tol, lo);
+    let base = offset + high.reps.len() as u32;
+    for (t, (own, other)) in tris.iter().zip(ids.iter_mut().zip(&high_ids)) {
+        for k in 0..3 {
+            if own[k] != u32::MAX {
+                continue;
+            }
+            own[k] = if other[k] != u32::MAX {
+                other[k] + offset
+            } else {
+                // The band's own cache holds final ids; its grid, band-local ones.
+                let p = &t[k];
+                match banded.exact_hit(p) {
+                    Some(id) => id,
+                    None => {
+                        let q = p - lo;
+                        let id = banded
+                            .find(&q)
+                            .map(|id| id + base)
+                            .or_else(|| low.find(&q))
+                            .or_else(|| high.find(&q).map(|id| id + offset))
+                            .unwrap_or_else(|| banded.insert(q) + base);
+                        banded.remember(p, id);
+                        id
+                    }
+                }
+            };
+        }
+    }
+    (ids, base as usize + banded.reps.len())
+}
+
+/// Welds corners one at a time: a grid of cells 64 × `tol` wide (so that nine in ten
+/// corners lie more than `tol` from every cell face and one cell answers); a corner is
+/// compared with the representatives of its own cell and of the neighbour cells it lies
+/// within `tol` of. The first corner of a cluster becomes its representative.
 ///
 /// In a triangle soup every vertex is stored once per facet that uses it, bit for bit the
 /// same, usually a few facets apart. A small direct-mapped cache of exact positions answers
 /// those repeats before the grid is consulted; it holds only corners whose id the grid gave,
 /// so it never changes an answer, and identical positions always get the same id.
-fn weld(tris: &[Tri], tol: f64, origin: Vec3) -> (Vec<[u32; 3]>, usize) {
-    // With tol = 1e-7 × the diagonal every axis spans at most 1.6e5 cells (< 2^21).
-    let cell = if tol > 0.0 { 64.0 * tol } else { 1.0 };
-    let tol2 = tol * tol;
-    let mut heads: FxHashMap<u64, u32> = FxHashMap::default();
-    heads.reserve(tris.len() / 2 + 16);
-    let mut reps: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
-    let mut next: Vec<u32> = Vec::with_capacity(tris.len() / 2 + 16);
-    let mut ids = Vec::with_capacity(tris.len());
-    let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
-    let cell_of = |x: f64| -> i64 { (x / cell).floor() as i64 };
-    let pack = |k: [i64; 3]| -> u64 {
-        let m = (1u64 << CELL_BITS) - 1;
-        (k[0] as u64 & m)
-            | ((k[1] as u64 & m) << CELL_BITS)
-            | ((k[2] as u64 & m) << (2 * CELL_BITS))
-    };
-    for t in tris {
-        let mut tri_ids = [0u32; 3];
-        for (k, p) in t.iter().enumerate() {
-            let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
-            let slot = exact_slot(&bits);
-            if exact[slot].0 == bits {
-                tri_ids[k] = exact[slot].1;
-                continue;
+struct WeldGrid {
+    cell: f64,
+    tol: f64,
+    origin: Vec3,
+    /// First representative of each cell; `next` chains the others.
+    heads: FxHashMap<u64, u32>,
+    /// Representatives, relative to `origin`.
+    reps: Vec<Vec3>,
+    next: Vec<u32>,
+    exact: Vec<([u64; 3], u32)>,
+}
+
+impl WeldGrid {
+    fn new(expected_facets: usize, tol: f64, origin: Vec3) -> WeldGrid {
+        // With tol = 1e-7 × the diagonal every axis spans at most 1.6e5 cells (< 2^21).
+        let vertices = expected_facets / 2 + 16;
+        let mut heads = FxHashMap::default();
+        heads.reserve(vertices);
+        WeldGrid {
+            cell: if tol > 0.0 { 64.0 * tol } else { 1.0 },
+            tol,
+            origin,
+            heads,
+            reps: Vec::with_capacity(vertices),
+            next: Vec::with_capacity(vertices),
+            exact: vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS],
+        }
+    }
+
+    /// The id of corner `p`, making it a representative when none is within `tol`.
+    fn weld(&mut self, p: &Vec3) -> u32 {
+        if let Some(id) = self.exact_hit(p) {
+            return id;
+        }
+        let q = p - self.origin;
+        let id = match self.find(&q) {
+            Some(id) => id,
+            None => self.insert(q),
+        };
+        self.remember(p, id);
+        id
+    }
+
+    fn exact_hit(&self, p: &Vec3) -> Option<u32> {
+        let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+        let (b, id) = self.exact[exact_slot(&bits)];
+        (b == bits).then_some(id)
+    }
+
+    fn remember(&mut self, p: &Vec3, id: u32) {
+        let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+        self.exact[exact_slot(&bits)] = (bits, id);
+    }
+
+    fn key(&self, q: &Vec3) -> [i64; 3] {
+        [
+            (q.x / self.cell).floor() as i64,
+            (q.y / self.cell).floor() as i64,
+            (q.z / self.cell).floor() as i64,
+        ]
+    }
+
+    /// A representative within `tol` of `q` (relative to the origin), if any.
+    fn find(&self, q: &Vec3) -> Option<u32> {
+        let key = self.key(q);
+        // Neighbour offsets worth visiting along each axis.
+        let mut offs: [[i64; 2]; 3] = [[0, 0]; 3];
+        let mut counts = [1usize; 3];
+        for a in 0..3 {
+            let f = q[a] / self.cell - key[a] as f64; // position inside the cell, [0, 1)
+            if f * self.cell < self.tol {
+                offs[a][1] = -1;
+                counts[a] = 2;
+            } else if (1.0 - f) * self.cell <= self.tol {
+                offs[a][1] = 1;
+                counts[a] = 2;
             }
-            let q = p - origin;
-            let key = [cell_of(q.x), cell_of(q.y), cell_of(q.z)];
-            let mut found = None;
-            // Neighbour offsets worth visiting along each axis.
-            let mut offs: [[i64; 2]; 3] = [[0, 0]; 3];
-            let mut counts = [1usize; 3];
-            for a in 0..3 {
-                let f = q[a] / cell - key[a] as f64; // position inside the cell, [0, 1)
-                if f * cell < tol {
-                    offs[a][1] = -1;
-                    counts[a] = 2;
-                } else if (1.0 - f) * cell <= tol {
-                    offs[a][1] = 1;
-                    counts[a] = 2;
-                }
-            }
-            'search: for ia in 0..counts[0] {
-                for ib in 0..counts[1] {
-                    for ic in 0..counts[2] {
-                        let kk = pack([
-                            key[0] + offs[0][ia],
-                            key[1] + offs[1][ib],
-                            key[2] + offs[2][ic],
-                        ]);
-                        let mut r = heads.get(&kk).copied().unwrap_or(u32::MAX);
-                        while r != u32::MAX {
-                            if (reps[r as usize] - q).norm_squared() <= tol2 {
-                                found = Some(r);
-                                break 'search;
-                            }
-                            r = next[r as usize];
+        }
+        let tol2 = self.tol * self.tol;
+        for ia in 0..counts[0] {
+            for ib in 0..counts[1] {
+                for ic in 0..counts[2] {
+                    let kk = pack([
+                        key[0] + offs[0][ia],
+                        key[1] + offs[1][ib],
+                        key[2] + offs[2][ic],
+                    ]);
+                    let mut r = self.heads.get(&kk).copied().unwrap_or(u32::MAX);
+                    while r != u32::MAX {
+                        if (self.reps[r as usize] - q).norm_squared() <= tol2 {
+                            return Some(r);
                         }
+                        r = self.next[r as usize];
                     }
                 }
             }
-            let id = match found {
-                Some(r) => r,
-                None => {
-                    let id = reps.len() as u32;
-                    reps.push(q);
-                    let head = heads.entry(pack(key)).or_insert(u32::MAX);
-                    next.push(*head);
-                    *head = id;
-                    id
-                }
-            };
-            exact[slot] = (bits, id);
-            tri_ids[k] = id;
         }
-        ids.push(tri_ids);
+        None
     }
-    (ids, reps.len())
+
+    /// Makes `q` (relative to the origin) a new representative; returns its id.
+    fn insert(&mut self, q: Vec3) -> u32 {
+        let id = self.reps.len() as u32;
+        let key = pack(self.key(&q));
+        self.reps.push(q);
+        let head = self.heads.entry(key).or_insert(u32::MAX);
+        self.next.push(*head);
+        *head = id;
+        id
+    }
+}
+
+/// A cell's three indices packed into one key, [`CELL_BITS`] bits each.
+fn pack(k: [i64; 3]) -> u64 {
+    let m = (1u64 << CELL_BITS) - 1;
+    (k[0] as u64 & m) | ((k[1] as u64 & m) << CELL_BITS) | ((k[2] as u64 & m) << (2 * CELL_BITS))
 }
 
 /// The cache slot of an exact position: a multiplicative hash of its bit patterns.
@@ -832,7 +963,7 @@ mod tests {
             }
             let (lo, hi) = bounding_box(tris.iter().flat_map(|t| t.iter()));
             let tol = WELD_TOLERANCE_REL * (hi - lo).norm();
-            let (ids, vertices) = weld(&tris, tol, lo);
+            let (ids, vertices) = weld(&tris, tol, (lo, hi));
             let mut seen: std::collections::BTreeMap<u32, u32> = Default::default();
             for (got, want) in ids.iter().flatten().zip(point_ids.iter().flatten()) {
                 proptest::prop_assert_eq!(*seen.entry(*want).or_insert(*got), *got);
@@ -840,6 +971,10 @@ mod tests {
             let distinct: std::collections::BTreeSet<u32> = ids.iter().flatten().copied().collect();
             proptest::prop_assert_eq!(distinct.len(), seen.len());
             proptest::prop_assert_eq!(vertices, seen.len());
+            // Split in two halves and a band, the clusters are the same.
+            let (split, split_vertices) = weld_split_from(&tris, tol, (lo, hi), 0);
+            proptest::prop_assert!(same_partition(&ids, &split));
+            proptest::prop_assert_eq!(split_vertices, vertices);
 
             let t = Topology::build(&tris);
             let (open, non_manifold, inconsistent) = naive_edge_counts(&point_ids);
@@ -855,6 +990,47 @@ mod tests {
             sorted.sort_unstable();
             sorted.dedup();
             proptest::prop_assert_eq!(t.duplicate_facets, all - sorted.len());
+        }
+    }
+
+    /// Whether two id lists describe the same clusters (equal up to renumbering).
+    fn same_partition(a: &[[u32; 3]], b: &[[u32; 3]]) -> bool {
+        let mut ab = std::collections::HashMap::new();
+        let mut ba = std::collections::HashMap::new();
+        a.iter()
+            .flatten()
+            .zip(b.iter().flatten())
+            .all(|(x, y)| *ab.entry(*x).or_insert(*y) == *y && *ba.entry(*y).or_insert(*x) == *x)
+    }
+
+    #[test]
+    fn the_split_weld_finds_the_clusters_of_a_single_pass() {
+        // Vertices exactly on the cutting plane (x = 0 for this torus), and the same
+        // torus with every vertex moved a little and some corners nudged by less than the
+        // tolerance, so the band, both sides and the near-miss logic are all exercised.
+        let plain = tris(shapes::torus([0.0; 3], 3.0, 1.0, 64, 24));
+        let noisy = tris(shapes::perturb(
+            &shapes::torus([0.0; 3], 3.0, 1.0, 64, 24),
+            1e-3,
+            7,
+        ));
+        for mesh in [plain, noisy] {
+            let mut mesh: Vec<Tri> = mesh
+                .iter()
+                .enumerate()
+                .map(|(i, t)| {
+                    let e = if i % 5 == 0 { 1e-8 } else { 0.0 };
+                    t.map(|p| p + Vec3::new(e, -e, e))
+                })
+                .collect();
+            mesh.push(mesh[0]);
+            let bbox = bounding_box(mesh.iter().flat_map(|t| t.iter()));
+            let tol = WELD_TOLERANCE_REL * (bbox.1 - bbox.0).norm();
+            let (one, n1) = weld_split_from(&mesh, tol, bbox, usize::MAX);
+            let (two, n2) = weld_split_from(&mesh, tol, bbox, 0);
+            assert_eq!(n1, n2);
+            assert!(same_partition(&one, &two));
+            assert_eq!(n1, 64 * 24, "every torus vertex once");
         }
     }
 

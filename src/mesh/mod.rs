@@ -57,7 +57,39 @@ pub struct Mesh {
     pub format: Format,
 }
 
+/// A stored STL normal more than this far from the normal of its facet's winding is stale.
+pub const STALE_NORMAL_DEG: f64 = 45.0;
+
 impl Mesh {
+    /// How many facets of `range` have a stale stored normal: one more than
+    /// [`STALE_NORMAL_DEG`] from the right-hand-rule normal of the facet's vertex order.
+    /// A zero normal means "not given" (a common export choice) and is not stale; so is
+    /// every facet of a mesh without stored normals.
+    pub fn stale_normals(&self, range: std::ops::Range<usize>) -> usize {
+        use rayon::prelude::*;
+        let Some(normals) = &self.stored_normals else {
+            return 0;
+        };
+        let cos_limit = STALE_NORMAL_DEG.to_radians().cos();
+        self.facets[range.clone()]
+            .par_iter()
+            .zip(&normals[range])
+            .filter(|(t, n)| {
+                let d = |i: usize, k: usize| t[i][k] - t[0][k];
+                let a = [
+                    d(1, 1) * d(2, 2) - d(1, 2) * d(2, 1),
+                    d(1, 2) * d(2, 0) - d(1, 0) * d(2, 2),
+                    d(1, 0) * d(2, 1) - d(1, 1) * d(2, 0),
+                ];
+                let n = n.map(f64::from);
+                let dot = a[0] * n[0] + a[1] * n[1] + a[2] * n[2];
+                let la = (a[0] * a[0] + a[1] * a[1] + a[2] * a[2]).sqrt();
+                let ln = (n[0] * n[0] + n[1] * n[1] + n[2] * n[2]).sqrt();
+                ln > 0.0 && la > 0.0 && dot < cos_limit * ln * la
+            })
+            .count()
+    }
+
     /// A mesh built from named groups of facets, in order (each group one part), with no
     /// stored normals: for generated geometry in tests, benchmarks and examples.
     pub fn from_parts<S: Into<String>>(groups: Vec<(S, Vec<Facet>)>, format: Format) -> Mesh {

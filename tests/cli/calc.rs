@@ -209,6 +209,35 @@ fn stored_stl_normals_are_ignored() {
 }
 
 #[test]
+fn stale_stl_normals_are_reported_and_change_nothing() {
+    // Five facets store the opposite of their winding's normal.
+    let tris = box_tris();
+    let mut bytes = binary_stl(&tris);
+    for (facet, t) in tris.iter().enumerate().take(5) {
+        let (a, b, c) = (t[0], t[1], t[2]);
+        let u = [b[0] - a[0], b[1] - a[1], b[2] - a[2]];
+        let v = [c[0] - a[0], c[1] - a[1], c[2] - a[2]];
+        let n = [
+            u[1] * v[2] - u[2] * v[1],
+            u[2] * v[0] - u[0] * v[2],
+            u[0] * v[1] - u[1] * v[0],
+        ];
+        let at = 84 + 50 * facet;
+        for k in 0..3 {
+            bytes[at + 4 * k..at + 4 * k + 4].copy_from_slice(&(-n[k] as f32).to_le_bytes());
+        }
+    }
+    let f = Folder::new();
+    f.write("tank.stl", &bytes);
+    f.write("tank.json", BOX_SIDECAR);
+    f.calc(&["tank.stl"]).expect_code(0);
+    let result = f.result("tank");
+    check_box_loads(&result["cases"][0], "tank");
+    let warnings = result["warnings"].to_string();
+    assert!(warnings.contains("5 stored STL normal(s)"), "{warnings}");
+}
+
+#[test]
 fn json_flag_prints_exactly_the_result_document() {
     let f = Folder::new();
     write_box(&f, "tank");
@@ -271,6 +300,17 @@ fn a_bad_mesh_does_not_stop_the_others() {
     assert_eq!(docs.len(), 1, "only the good one has a result");
     assert_eq!(docs[0], f.result("good"));
     assert!(!f.result_path("bad").exists());
+
+    // One mesh asked and it failed: nothing on stdout, the reason on stderr.
+    let run = f.calc(&["bad.stl", "--json"]);
+    run.expect_code(1);
+    assert_eq!(run.stdout, "");
+    assert!(
+        run.stderr.contains("bad.stl"),
+        "stderr:
+{}",
+        run.stderr
+    );
 }
 
 const TWO_CASES: &str = r#"{
