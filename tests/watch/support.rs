@@ -411,10 +411,28 @@ pub fn stale(doc: &Value) -> Option<(String, String)> {
 }
 
 /// Waits until `results/<stem>.json` matches `e` and is not marked stale; returns it.
+///
+/// The watcher writes the result before it appends the change-log line, so this also waits
+/// until the mesh's last line in the log is the `computed` line of that result (same
+/// forces): callers may read the log right after.
 pub fn wait_result(w: &Watcher, dir: &Path, stem: &str, e: Expected) -> Value {
-    w.wait_for(&format!("results/{stem}.json to match {e:?}"), || {
-        result(dir, stem).filter(|d| doc_matches(d, &e) && stale(d).is_none())
-    })
+    w.wait_for(
+        &format!("results/{stem}.json to match {e:?}, and its log line"),
+        || {
+            result(dir, stem).filter(|d| {
+                doc_matches(d, &e)
+                    && stale(d).is_none()
+                    && log(dir)
+                        .iter()
+                        .rev()
+                        .find(|l| l["mesh"] == d["mesh"])
+                        .is_some_and(|l| {
+                            l["event"] == "computed"
+                                && l["cases"][0]["force"] == d["cases"][0]["force"]
+                        })
+            })
+        },
+    )
 }
 
 /// Waits until the change log has a line about `mesh` with `event` after the first
