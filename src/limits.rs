@@ -159,7 +159,18 @@ pub enum ReadError {
 
 /// Reads a whole file, refusing one larger than `limit` bytes before reading it, and
 /// never holding more than `limit + 1` bytes of one that grows while it is read.
+///
+/// Only regular files are opened: a FIFO or a device named like a mesh would block or never
+/// end, so it is refused from its metadata first.
 pub fn read_capped(path: &Path, limit: u64) -> Result<Vec<u8>, ReadError> {
+    let meta = fs::metadata(path).map_err(ReadError::Io)?;
+    if !meta.is_file() {
+        return Err(ReadError::Io(io::Error::other(if meta.is_dir() {
+            "it is a folder, not a file"
+        } else {
+            "it is not a regular file (a pipe, socket or device); wetload reads regular files only"
+        })));
+    }
     let file = fs::File::open(path).map_err(ReadError::Io)?;
     let len = file.metadata().map_err(ReadError::Io)?.len();
     if len > limit {
@@ -243,6 +254,12 @@ mod tests {
         assert!(matches!(
             read_capped(&dir.path().join("none.stl"), 10),
             Err(ReadError::Io(e)) if e.kind() == io::ErrorKind::NotFound
+        ));
+        let folder = dir.path().join("folder.stl");
+        fs::create_dir(&folder).expect("mkdir");
+        assert!(matches!(
+            read_capped(&folder, 10),
+            Err(ReadError::Io(e)) if e.to_string().contains("folder")
         ));
     }
 }

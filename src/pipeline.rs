@@ -195,6 +195,12 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), RunError> {
         source,
     };
     let dir = path.parent().unwrap_or(Path::new("."));
+    // Never write through a link: results stay inside the folder they belong to.
+    if fs::symlink_metadata(dir).is_ok_and(|m| m.file_type().is_symlink()) {
+        return Err(err(io::Error::other(
+            "the folder is a symbolic link, and wetload writes results only into a real folder; replace the link with a folder",
+        )));
+    }
     fs::create_dir_all(dir).map_err(err)?;
     let mut tmp = tempfile::Builder::new()
         .prefix(".wetload-")
