@@ -273,6 +273,7 @@ pub fn compute_model(
     if mesh.facets.is_empty() {
         return Err(ComputeError::Empty);
     }
+    check_extent(&mesh, sidecar.units.metres())?;
     let mut warnings = Vec::new();
     let prep = prepare(mesh, sidecar, &mut warnings)?;
     let facets = prep.tris.len();
@@ -991,6 +992,30 @@ fn line_distance(l: &LineOfAction, p: Vec3, d: Vec3) -> f64 {
         w.cross(&l.direction).norm()
     } else {
         (w.dot(&n) / nn).abs()
+    }
+}
+
+/// Refuses coordinates whose squares overflow f64 (beyond about 1e153 m): lengths, areas
+/// and the weld tolerance would be infinite, and topology would report nonsense before
+/// [`check_finite`] could see the loads. Smaller coordinates whose loads overflow are
+/// caught by `check_finite`.
+fn check_extent(mesh: &Mesh, metres: f64) -> Result<(), ComputeError> {
+    let largest = mesh
+        .facets
+        .iter()
+        .flatten()
+        .flatten()
+        .fold(0.0f64, |m, c| m.max(c.abs()))
+        * metres;
+    // 16: the squared diagonal of a box whose corners reach ±largest on three axes is 12·largest².
+    if (16.0 * largest * largest).is_finite() {
+        Ok(())
+    } else {
+        Err(ComputeError::NonFinite {
+            what: format!(
+                "the mesh's size: a coordinate of {largest:e} m makes lengths and areas overflow f64"
+            ),
+        })
     }
 }
 
