@@ -621,16 +621,16 @@ mod tests {
     fn parts_builder_regroups_repeated_names_in_order() {
         let f = |k: f64| [[k, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]];
         let mut b = PartsBuilder::new("stem".into(), true);
-        b.push(f(0.0), [0.0; 3]);
+        b.push(f(0.0), [0.0; 3]).expect("within the limits");
         b.select("a").expect("within the limits");
-        b.push(f(1.0), [1.0; 3]);
+        b.push(f(1.0), [1.0; 3]).expect("within the limits");
         b.select("unused").expect("within the limits");
         b.select("b").expect("within the limits");
-        b.push(f(2.0), [2.0; 3]);
+        b.push(f(2.0), [2.0; 3]).expect("within the limits");
         b.select("a").expect("within the limits");
-        b.push(f(3.0), [3.0; 3]);
+        b.push(f(3.0), [3.0; 3]).expect("within the limits");
         b.select("").expect("within the limits");
-        b.push(f(4.0), [4.0; 3]);
+        b.push(f(4.0), [4.0; 3]).expect("within the limits");
         let m = b.finish(Format::Obj).expect("facets were added");
         let names: Vec<_> = m.parts.iter().map(|p| p.name.as_str()).collect();
         assert_eq!(names, ["stem", "a", "b"]);
