@@ -410,10 +410,21 @@ pub fn stale(doc: &Value) -> Option<(String, String)> {
     ))
 }
 
-/// Waits until `results/<stem>.json` matches `e` and is not marked stale; returns it.
+/// Waits until `results/<stem>.json` matches `e` and is not marked stale, and the change
+/// log's last `computed` line for the mesh matches too (the watcher appends it after the
+/// result and the exports are written, so on a loaded machine it can lag); returns the
+/// result.
 pub fn wait_result(w: &Watcher, dir: &Path, stem: &str, e: Expected) -> Value {
     w.wait_for(&format!("results/{stem}.json to match {e:?}"), || {
-        result(dir, stem).filter(|d| doc_matches(d, &e) && stale(d).is_none())
+        let doc = result(dir, stem).filter(|d| doc_matches(d, &e) && stale(d).is_none())?;
+        let lines = log(dir);
+        let logged = lines.iter().rev().find(|l| {
+            l["event"] == "computed"
+                && l["mesh"]
+                    .as_str()
+                    .is_some_and(|m| Path::new(m).file_stem().is_some_and(|s| s == stem))
+        })?;
+        doc_matches(logged, &e).then_some(doc)
     })
 }
 
