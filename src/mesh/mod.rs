@@ -42,6 +42,10 @@ use crate::limits::Limits;
 /// absurd length is refused rather than multiplied.
 pub const MAX_NAME_BYTES: usize = 1024;
 
+/// The most parts (distinct names) a mesh may have. Every name selected is kept while the
+/// file is read, so this bounds the memory of a file made of nothing but names.
+pub const MAX_PARTS: usize = 100_000;
+
 /// One triangle: three vertices, each `[x, y, z]` in file units and the mesh's own axes.
 pub type Facet = [[f64; 3]; 3];
 
@@ -274,6 +278,16 @@ pub enum Problem {
     NameTooLong { len: usize, limit: usize },
 
     #[error(
+        "more than {limit} vertices (3 for each facet the facet limit allows); if the mesh is genuine, raise the limit with the environment variable WETLOAD_MAX_FACETS"
+    )]
+    TooManyVertices { limit: usize },
+
+    #[error(
+        "more than {limit} parts (distinct solid, group or object names); merge parts in the exporter"
+    )]
+    TooManyParts { limit: usize },
+
+    #[error(
         "a polygon with {vertices} vertices, {non_convex} of them not convex, is too large to triangulate here (vertices × non-convex must stay ≤ {limit}); triangulate it in the exporter"
     )]
     PolygonTooComplex {
@@ -469,6 +483,9 @@ impl PartsBuilder {
         } else {
             name.to_string()
         };
+        if self.names.len() >= MAX_PARTS && !self.index.contains_key(&name) {
+            return Err(Problem::TooManyParts { limit: MAX_PARTS });
+        }
         self.current = Some(self.part_index(name));
         Ok(())
     }
@@ -889,8 +906,9 @@ mod tests {
         );
         let err =
             read_mesh_with(Path::new("a.stl"), text.as_bytes(), &limits(2)).expect_err("refused");
-        // The third facet's `endloop` is on line 1 + 2·7 + 6.
-        assert_eq!(err.line(), Some(21), "{err}");
+        // Refused at the third facet's third vertex (line 1 + 2·7 + 5), the line whose
+        // triangle would pass the limit.
+        assert_eq!(err.line(), Some(20), "{err}");
         assert_eq!(
             problem_of(&err),
             Some(&Problem::TooManyFacets { limit: 2 }),
@@ -944,6 +962,47 @@ mod tests {
                 len: 1025,
                 limit: MAX_NAME_BYTES
             })
+        );
+    }
+
+    #[test]
+    fn names_vertices_and_loops_are_bounded_too() {
+        // A file of nothing but distinct group names.
+        let mut groups = String::new();
+        for i in 0..=MAX_PARTS {
+            groups += &format!("g p{i}\n");
+        }
+        let err = read_mesh(Path::new("g.obj"), groups.as_bytes()).expect_err("refused");
+        assert_eq!(err.line(), Some(MAX_PARTS + 1), "{err}");
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyParts { limit: MAX_PARTS })
+        );
+        // Repeating names is fine.
+        let repeated = "g a\ng b\n".repeat(MAX_PARTS);
+        let err = read_mesh(Path::new("g.obj"), repeated.as_bytes()).expect_err("no faces");
+        assert!(matches!(err, MeshError::Empty { .. }), "{err}");
+        // Vertices: at most 3 per allowed facet.
+        let obj = "v 0 0 0\n".repeat(7);
+        let err =
+            read_mesh_with(Path::new("v.obj"), obj.as_bytes(), &limits(2)).expect_err("refused");
+        assert_eq!(err.line(), Some(7));
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyVertices { limit: 6 })
+        );
+        // An ASCII facet loop of absurd length stops at the facet limit.
+        let mut stl = String::from("solid s\nfacet normal 0 0 1\nouter loop\n");
+        for i in 0..1000 {
+            stl += &format!("vertex {i} {} 0\n", i % 3);
+        }
+        stl += "endloop\nendfacet\nendsolid\n";
+        let err =
+            read_mesh_with(Path::new("l.stl"), stl.as_bytes(), &limits(10)).expect_err("refused");
+        assert_eq!(err.line(), Some(3 + 13), "{err}");
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyFacets { limit: 10 })
         );
     }
 

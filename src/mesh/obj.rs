@@ -96,6 +96,11 @@ impl Reader {
                         .ok_or(Problem::TooFewCoordinates { found: k })?;
                     *c = parse_coordinate(token)?;
                 }
+                // No face can use more than 3 vertices per facet of the limit.
+                let most = self.parts.max_facets().saturating_mul(3);
+                if self.vertices.len() >= most {
+                    return Err(Problem::TooManyVertices { limit: most });
+                }
                 self.vertices.push(xyz);
             }
             b"f" => {

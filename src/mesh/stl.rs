@@ -332,6 +332,16 @@ fn read_ascii(bytes: &[u8], stem: String, max_facets: usize) -> Result<Option<Me
                 if !token.eq_ignore_ascii_case(b"vertex") {
                     return Err(unexpected(line, "`vertex` or `endloop`", token));
                 }
+                // A loop of n vertices makes n − 2 triangles: stop one of absurd length
+                // before it outgrows the facet limit.
+                if ring.len() >= parts.room().saturating_add(2) {
+                    return Err(LineError::new(
+                        line,
+                        Problem::TooManyFacets {
+                            limit: parts.max_facets(),
+                        },
+                    ));
+                }
                 ring.push([s.coordinate()?, s.coordinate()?, s.coordinate()?]);
             };
             if ring.len() < 3 {
