@@ -1052,6 +1052,24 @@ mod tests {
     use approx::assert_relative_eq;
     use std::path::Path;
 
+    #[test]
+    fn coordinates_whose_squares_overflow_are_refused_by_size() {
+        let tri = |c: f64| vec![[[c, 0.0, 0.0], [0.0, c, 0.0], [0.0, 0.0, c]]];
+        // 16 · (1e153)² = 1.6e307 is finite; 16 · (1e154)² is not.
+        assert!(check_extent(&Mesh::from_parts(vec![("p", tri(1e153))], Format::Obj), 1.0).is_ok());
+        let err = check_extent(&Mesh::from_parts(vec![("p", tri(1e154))], Format::Obj), 1.0)
+            .expect_err("refused");
+        assert!(err.to_string().contains("1e154 m"), "{err}");
+        // In metres after the unit: 1e155 mm is 1e152 m.
+        assert!(
+            check_extent(
+                &Mesh::from_parts(vec![("p", tri(1e155))], Format::Obj),
+                0.001
+            )
+            .is_ok()
+        );
+    }
+
     const G: f64 = 9.80665;
 
     fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>) -> Mesh {
