@@ -117,6 +117,7 @@ const KEYS: &[(Base, &str, Kind)] = &[
     (Base::Shorthand, "flotation.resisting", Kind::Named),
     (Base::Shorthand, "flotation.resisting.weight", Kind::Number),
     (Base::Shorthand, "flotation.required_factor", Kind::Number),
+    (Base::Shorthand, "field_exports", Kind::Text),
     (Base::Named, "liquids", Kind::Named),
     (Base::Named, "liquids.water", Kind::Object),
     (Base::Named, "liquids.water.level", Kind::Number),
@@ -149,7 +150,8 @@ fn shorthand() -> Value {
             {"name": "sea", "preset": "sea_water"}
         ],
         "sweep": {"liquid": "liquid", "from": -2, "to": 0, "step": 0.5},
-        "flotation": {"resisting": {"weight": 1000}, "required_factor": 1.3}
+        "flotation": {"resisting": {"weight": 1000}, "required_factor": 1.3},
+        "field_exports": "auto"
     })
 }
 
