@@ -274,3 +274,52 @@ fn a_polygon_too_costly_to_triangulate() {
         &["too large to triangulate", &format!("line {}", n + 1)],
     );
 }
+
+/// A binary STL of `n` copies of one triangle.
+fn copies(n: usize) -> Vec<u8> {
+    let tri: Triangle = [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0], [0.0, 1.0, 0.0]];
+    binary_stl(&vec![tri; n])
+}
+
+#[test]
+fn two_hundred_thousand_coincident_facets() {
+    // Every facet shares every edge: edge grouping was quadratic in the uses of a vertex
+    // (40 000 copies took 32 s, 200 000 would take over 10 minutes). Refused as an open
+    // (non-manifold) mesh without a wet side, within the run's time limit.
+    mesh_refused("stl", copies(200_000), &["non-manifold"]);
+}
+
+#[test]
+fn a_fan_of_one_hundred_thousand_triangles_around_one_vertex_computes() {
+    // A flat disc cut as a fan: the hub is used by every facet (a cone's tip or a
+    // fan-triangulated cap, at absurd resolution). Legitimate: it computes, within the
+    // run's time limit, to the closed form.
+    let n = 100_000usize;
+    let r = 1.0;
+    let depth = 2.0;
+    let mut tris: Vec<Triangle> = Vec::with_capacity(n);
+    for i in 0..n {
+        let a = std::f64::consts::TAU * i as f64 / n as f64;
+        let b = std::f64::consts::TAU * (i + 1) as f64 / n as f64;
+        tris.push([
+            [0.0, 0.0, -depth],
+            [r * a.cos(), r * a.sin(), -depth],
+            [r * b.cos(), r * b.sin(), -depth],
+        ]);
+    }
+    let f = Folder::new();
+    f.write("disc.stl", binary_stl(&tris));
+    f.write(
+        "disc.json",
+        r#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000}}"#,
+    );
+    let run = f.calc_env(&["--json", "disc.stl"], &[]);
+    assert_eq!(run.code, Some(0), "{}", run.stderr);
+    let doc: serde_json::Value = serde_json::from_str(&run.stdout).expect("JSON");
+    let fz = doc["cases"][0]["force"][2].as_f64().expect("a number");
+    // Closed form: the liquid on the +z side pushes down with ρ g h · area of the
+    // inscribed 100 000-gon, ½ n r² sin(2π/n) (normals point +z, so the force is −z).
+    let area = 0.5 * n as f64 * r * r * (std::f64::consts::TAU / n as f64).sin();
+    let want = -1000.0 * 9.80665 * depth * area;
+    assert!((fz - want).abs() <= 1e-6 * want.abs(), "{fz} vs {want}");
+}
