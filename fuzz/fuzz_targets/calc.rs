@@ -27,15 +27,20 @@ const SIDECARS: [&str; 8] = [
 ];
 
 fn finite_loads(l: &Loads) {
-    let vals = l
-        .force
-        .iter()
-        .chain(&l.moment)
-        .chain([&l.wetted_area, &l.uplift, &l.downthrust, &l.horizontal_force, &l.vertical_force]);
+    let vals = l.force.iter().chain(&l.moment).chain([
+        &l.wetted_area,
+        &l.uplift,
+        &l.downthrust,
+        &l.horizontal_force,
+        &l.vertical_force,
+    ]);
     for v in vals {
         assert!(v.is_finite(), "{l:?}");
     }
-    assert!(l.wetted_area >= 0.0 && l.uplift >= 0.0 && l.downthrust >= 0.0, "{l:?}");
+    assert!(
+        l.wetted_area >= 0.0 && l.uplift >= 0.0 && l.downthrust >= 0.0,
+        "{l:?}"
+    );
     if let Some(v) = l.submerged_volume {
         assert!(v.is_finite(), "{l:?}");
     }
@@ -45,7 +50,11 @@ fuzz_target!(|data: &[u8]| {
     let Some((&pick, mesh_bytes)) = data.split_first() else {
         return;
     };
-    let name = if pick & 1 == 0 { "fuzz.stl" } else { "fuzz.obj" };
+    let name = if pick & 1 == 0 {
+        "fuzz.stl"
+    } else {
+        "fuzz.obj"
+    };
     let sidecar = parse_sidecar(Path::new("fuzz.json"), SIDECARS[usize::from(pick >> 1) % 8])
         .expect("the fixed sidecars are valid");
     let mesh = match read_mesh(Path::new(name), mesh_bytes) {
@@ -67,10 +76,15 @@ fuzz_target!(|data: &[u8]| {
                 }
             }
             for i in 0..sidecar.cases.len() {
-                let field = model.field(&sidecar, i).expect("a computed model gives its field");
+                let field = model
+                    .field(&sidecar, i)
+                    .expect("a computed model gives its field");
                 assert_eq!(field.facets.len(), facets);
                 for row in &field.facets {
-                    assert!(row.area.is_finite() && row.mean_pressure.is_finite(), "{row:?}");
+                    assert!(
+                        row.area.is_finite() && row.mean_pressure.is_finite(),
+                        "{row:?}"
+                    );
                     assert!(row.force.iter().all(|c| c.is_finite()), "{row:?}");
                 }
             }

@@ -126,7 +126,9 @@ fn run(input: Input) -> Option<()> {
             dry += a;
         }
     });
-    let edge = length(&(t[1] - t[0])).max(length(&(t[2] - t[1]))).max(length(&(t[0] - t[2])));
+    let edge = length(&(t[1] - t[0]))
+        .max(length(&(t[2] - t[1])))
+        .max(length(&(t[0] - t[2])));
     let reach = t.iter().map(|v| v.amax()).fold(0.0, f64::max);
     let tol = 64.0 * f64::EPSILON * (edge * edge + edge * reach) + AREA_FLOOR;
     assert!(
@@ -143,7 +145,9 @@ fn run(input: Input) -> Option<()> {
     // facet's vertices or where a plane cuts it.
     let (lo, hi) = t
         .iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| (lo.min(v.z), hi.max(v.z)));
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+            (lo.min(v.z), hi.max(v.z))
+        });
     let p_max = t
         .iter()
         .map(|v| v.z)

@@ -54,5 +54,8 @@ fn check(m: &wetload::mesh::Mesh) {
     }
     assert_eq!(next, m.facets.len());
     assert!(m.facets.iter().flatten().flatten().all(|c| c.is_finite()));
-    assert_eq!(m.stored_normals.as_ref().map(Vec::len), Some(m.facets.len()));
+    assert_eq!(
+        m.stored_normals.as_ref().map(Vec::len),
+        Some(m.facets.len())
+    );
 }
