@@ -297,6 +297,7 @@ pub fn compute_model(
     if mesh.facets.is_empty() {
         return Err(ComputeError::Empty);
     }
+    check_extent(&mesh, sidecar.units.metres())?;
     let mut warnings = Vec::new();
     let prep = prepare(mesh, sidecar, &mut warnings)?;
     let facets = prep.tris.len();
@@ -1234,6 +1235,30 @@ fn line_distance(l: &LineOfAction, p: Vec3, d: Vec3) -> f64 {
     }
 }
 
+/// Refuses coordinates whose squares overflow f64 (beyond about 1e153 m): lengths, areas
+/// and the weld tolerance would be infinite, and topology would report nonsense before
+/// [`check_finite`] could see the loads. Smaller coordinates whose loads overflow are
+/// caught by `check_finite`.
+fn check_extent(mesh: &Mesh, metres: f64) -> Result<(), ComputeError> {
+    let largest = mesh
+        .facets
+        .iter()
+        .flatten()
+        .flatten()
+        .fold(0.0f64, |m, c| m.max(c.abs()))
+        * metres;
+    // 16: the squared diagonal of a box whose corners reach ±largest on three axes is 12·largest².
+    if (16.0 * largest * largest).is_finite() {
+        Ok(())
+    } else {
+        Err(ComputeError::NonFinite {
+            what: format!(
+                "the mesh's size: a coordinate of {largest:e} m makes lengths and areas overflow f64"
+            ),
+        })
+    }
+}
+
 fn check_finite(r: &MeshResult) -> Result<(), ComputeError> {
     // serde_json writes NaN and ±∞ as null, where they would hide among the real nulls.
     let bad = |x: f64| !x.is_finite();
@@ -1266,6 +1291,24 @@ mod tests {
     use crate::sidecar::parse_sidecar;
     use approx::assert_relative_eq;
     use std::path::Path;
+
+    #[test]
+    fn coordinates_whose_squares_overflow_are_refused_by_size() {
+        let tri = |c: f64| vec![[[c, 0.0, 0.0], [0.0, c, 0.0], [0.0, 0.0, c]]];
+        // 16 · (1e153)² = 1.6e307 is finite; 16 · (1e154)² is not.
+        assert!(check_extent(&Mesh::from_parts(vec![("p", tri(1e153))], Format::Obj), 1.0).is_ok());
+        let err = check_extent(&Mesh::from_parts(vec![("p", tri(1e154))], Format::Obj), 1.0)
+            .expect_err("refused");
+        assert!(err.to_string().contains("1e154 m"), "{err}");
+        // In metres after the unit: 1e155 mm is 1e152 m.
+        assert!(
+            check_extent(
+                &Mesh::from_parts(vec![("p", tri(1e155))], Format::Obj),
+                0.001
+            )
+            .is_ok()
+        );
+    }
 
     const G: f64 = 9.80665;
 

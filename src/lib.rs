@@ -9,6 +9,7 @@ pub mod check;
 pub mod cli;
 pub mod compute;
 pub mod hydro;
+pub mod limits;
 pub mod mesh;
 pub mod outputs;
 pub mod pipeline;
@@ -26,6 +27,11 @@ use crate::report::summary::{self, SummaryOptions};
 /// Runs a parsed command line; returns the exit status (0 success, 1 an input could not
 /// be computed). Usage errors (status 2) are handled by the argument parser.
 pub fn run(cli: Cli) -> ExitCode {
+    // A limit that cannot be read is a usage error, reported before any work.
+    if let Err(e) = limits::Limits::from_env() {
+        eprintln!("error: {e}");
+        return ExitCode::from(2);
+    }
     match cli.command {
         Command::Calc(args) => calc(&args),
         Command::Watch(args) => watch(&args),
@@ -37,11 +43,7 @@ fn check_meshes(args: &CheckArgs) -> ExitCode {
     let mut reports = Vec::new();
     let mut ok = true;
     for path in &args.meshes {
-        let inputs = std::fs::read(path).map_err(|source| pipeline::RunError::Read {
-            path: path.clone(),
-            source,
-        });
-        let mesh = inputs.and_then(|b| mesh::read_mesh(path, &b).map_err(pipeline::RunError::from));
+        let mesh = pipeline::read_mesh_file(path);
         let mesh = match mesh {
             Ok(m) => m,
             Err(e) => {
@@ -51,8 +53,9 @@ fn check_meshes(args: &CheckArgs) -> ExitCode {
             }
         };
         let side = pipeline::sidecar_path(path);
-        let scale = std::fs::read_to_string(&side)
+        let scale = limits::read_capped(&side, limits::MAX_SIDECAR_BYTES)
             .ok()
+            .and_then(|b| String::from_utf8(b).ok())
             .and_then(|t| sidecar::parse_sidecar(&side, &t).ok())
             .map(|s| s.units.metres());
         let name = path

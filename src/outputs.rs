@@ -41,13 +41,20 @@ use crate::watch::changelog::LOG_NAME;
 /// File name of the folder's page inside `results/`.
 pub const PAGE_NAME: &str = "report.html";
 
+/// The longest a sanitised name may be in a file name, bytes (file systems allow 255 for
+/// the whole name, which also holds the mesh's stem and the extension).
+pub const MAX_FILE_PART_BYTES: usize = 100;
+
 /// `name` made safe as one component of a file name: path separators, characters that
 /// Windows refuses (`< > : " | ? *`) and control characters become `_`, a leading `.`
-/// becomes `_` (no hidden files, no `..`), and an empty name becomes `_`. Everything else,
-/// spaces and non-ASCII letters included, is kept.
+/// becomes `_` (no hidden files, no `..`), an empty name becomes `_`, and a long name is
+/// cut to [`MAX_FILE_PART_BYTES`] (at a character boundary). Everything else, spaces and
+/// non-ASCII letters included, is kept.
 pub fn file_part(name: &str) -> String {
     let mut out: String = name
-        .chars()
+        .char_indices()
+        .take_while(|(i, c)| i + c.len_utf8() <= MAX_FILE_PART_BYTES)
+        .map(|(_, c)| c)
         .map(|c| match c {
             '/' | '\\' | '<' | '>' | ':' | '"' | '|' | '?' | '*' => '_',
             c if c.is_control() => '_',
@@ -263,6 +270,11 @@ mod tests {
         assert_eq!(file_part("a/b\\c:d*e?"), "a_b_c_d_e_");
         assert_eq!(file_part(""), "_");
         assert_eq!(file_part("crue\u{7}"), "crue_");
+        // Long names are cut at a character boundary (é is 2 bytes).
+        assert_eq!(file_part(&"x".repeat(500)), "x".repeat(MAX_FILE_PART_BYTES));
+        let cut = file_part(&format!("a{}", "é".repeat(300)));
+        assert_eq!(cut.len(), MAX_FILE_PART_BYTES - 1);
+        assert!(cut.ends_with('é'));
         for n in ["..", "../x", "/etc/passwd", ".hidden", "a\\..\\b"] {
             let p = file_part(n);
             assert!(

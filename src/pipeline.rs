@@ -10,7 +10,7 @@ use std::path::{Path, PathBuf};
 use thiserror::Error;
 
 use crate::compute::{self, ComputeError, MeshResult, Model};
-use crate::mesh::{self, MeshError};
+use crate::mesh::{self, Mesh, MeshError};
 use crate::outputs;
 use crate::report;
 use crate::sidecar::{self, Sidecar, SidecarError};
@@ -41,6 +41,35 @@ pub enum RunError {
     },
     #[error("cannot write {}: {source}", path.display())]
     Write { path: PathBuf, source: io::Error },
+    #[error(
+        "{}: the file is {}, more than the {} wetload reads{}",
+        path.display(),
+        crate::limits::human_bytes(*len),
+        crate::limits::human_bytes(*limit),
+        if *sidecar { "; a sidecar holds settings only" } else { "; if the mesh is genuine, raise the limit with the environment variable WETLOAD_MAX_FILE_SIZE (e.g. 8G)" }
+    )]
+    TooLarge {
+        path: PathBuf,
+        len: u64,
+        limit: u64,
+        sidecar: bool,
+    },
+}
+
+/// Reads a file of at most `limit` bytes (see [`crate::limits::read_capped`]).
+fn read_file(path: &Path, limit: u64, sidecar: bool) -> Result<Vec<u8>, RunError> {
+    crate::limits::read_capped(path, limit).map_err(|e| match e {
+        crate::limits::ReadError::Io(source) => RunError::Read {
+            path: path.to_owned(),
+            source,
+        },
+        crate::limits::ReadError::TooLarge { len, limit } => RunError::TooLarge {
+            path: path.to_owned(),
+            len,
+            limit,
+            sidecar,
+        },
+    })
 }
 
 /// The sidecar of a mesh: `<stem>.json` beside it.
@@ -67,14 +96,12 @@ pub struct Inputs {
     pub sidecar_text: String,
 }
 
-/// Reads a mesh and its sidecar.
+/// Reads a mesh and its sidecar, each refused unread when larger than its cap (the
+/// mesh's from [`crate::limits::current`], the sidecar's [`crate::limits::MAX_SIDECAR_BYTES`]).
 pub fn read_inputs(mesh_path: &Path) -> Result<Inputs, RunError> {
-    let mesh_bytes = fs::read(mesh_path).map_err(|source| RunError::Read {
-        path: mesh_path.to_owned(),
-        source,
-    })?;
+    let mesh_bytes = read_file(mesh_path, crate::limits::current().max_file_bytes, false)?;
     let side = sidecar_path(mesh_path);
-    let sidecar_text = match fs::read(&side) {
+    let sidecar_text = match read_file(&side, crate::limits::MAX_SIDECAR_BYTES, true) {
         Ok(bytes) => String::from_utf8(bytes).map_err(|e| RunError::Read {
             path: side.clone(),
             source: io::Error::new(
@@ -82,18 +109,25 @@ pub fn read_inputs(mesh_path: &Path) -> Result<Inputs, RunError> {
                 format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
             ),
         })?,
-        Err(e) if e.kind() == io::ErrorKind::NotFound => {
+        Err(RunError::Read { source, .. }) if source.kind() == io::ErrorKind::NotFound => {
             return Err(RunError::NoSidecar {
                 mesh: mesh_path.to_owned(),
                 sidecar: side,
             });
         }
-        Err(source) => return Err(RunError::Read { path: side, source }),
+        Err(e) => return Err(e),
     };
     Ok(Inputs {
         mesh_bytes,
         sidecar_text,
     })
+}
+
+/// Reads and parses a mesh file alone, under the limits of [`crate::limits::current`].
+pub fn read_mesh_file(path: &Path) -> Result<Mesh, RunError> {
+    let limits = crate::limits::current();
+    let bytes = read_file(path, limits.max_file_bytes, false)?;
+    Ok(mesh::read_mesh_with(path, &bytes, &limits)?)
 }
 
 /// Parses and computes inputs already read (no file system access).
@@ -115,7 +149,7 @@ pub struct Computed {
 pub fn compute_parsed(mesh_path: &Path, inputs: Inputs) -> Result<Computed, RunError> {
     let side = sidecar_path(mesh_path);
     let sidecar = sidecar::parse_sidecar(&side, &inputs.sidecar_text)?;
-    let mesh = mesh::read_mesh(mesh_path, &inputs.mesh_bytes)?;
+    let mesh = mesh::read_mesh_with(mesh_path, &inputs.mesh_bytes, &crate::limits::current())?;
     drop(inputs);
     let name = mesh_path
         .file_name()
@@ -161,6 +195,12 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), RunError> {
         source,
     };
     let dir = path.parent().unwrap_or(Path::new("."));
+    // Never write through a link: results stay inside the folder they belong to.
+    if fs::symlink_metadata(dir).is_ok_and(|m| m.file_type().is_symlink()) {
+        return Err(err(io::Error::other(
+            "the folder is a symbolic link, and wetload writes results only into a real folder; replace the link with a folder",
+        )));
+    }
     fs::create_dir_all(dir).map_err(err)?;
     let mut tmp = tempfile::Builder::new()
         .prefix(".wetload-")

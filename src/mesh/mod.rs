@@ -32,8 +32,19 @@ use std::path::{Path, PathBuf};
 use rustc_hash::FxHashMap;
 use thiserror::Error;
 
-pub use obj::read_obj;
-pub use stl::read_stl;
+pub use obj::{read_obj, read_obj_with};
+pub use stl::{read_stl, read_stl_with};
+
+use crate::limits::Limits;
+
+/// The longest part name accepted (an ASCII STL `solid` name or an OBJ `g`/`o` name), in
+/// bytes. Names are copied into every result and every row of the facet CSV, so a name of
+/// absurd length is refused rather than multiplied.
+pub const MAX_NAME_BYTES: usize = 1024;
+
+/// The most parts (distinct names) a mesh may have. Every name selected is kept while the
+/// file is read, so this bounds the memory of a file made of nothing but names.
+pub const MAX_PARTS: usize = 100_000;
 
 /// One triangle: three vertices, each `[x, y, z]` in file units and the mesh's own axes.
 pub type Facet = [[f64; 3]; 3];
@@ -222,6 +233,16 @@ pub enum MeshError {
         .path.display()
     )]
     Empty { path: PathBuf, format: Format },
+
+    #[error(
+        "{}: the binary STL has {count} facets, more than the limit of {limit}; if the mesh is genuine, raise the limit with the environment variable WETLOAD_MAX_FACETS",
+        .path.display()
+    )]
+    TooManyFacets {
+        path: PathBuf,
+        count: u64,
+        limit: usize,
+    },
 }
 
 impl MeshError {
@@ -279,6 +300,26 @@ pub enum Problem {
     IndexOutOfRange { index: i64, defined: usize },
 
     #[error(
+        "the mesh has more than {limit} facets, the limit; if the mesh is genuine, raise the limit with the environment variable WETLOAD_MAX_FACETS"
+    )]
+    TooManyFacets { limit: usize },
+
+    #[error(
+        "a part name of {len} bytes is longer than the {limit} bytes allowed; shorten the name in the exporter"
+    )]
+    NameTooLong { len: usize, limit: usize },
+
+    #[error(
+        "more than {limit} vertices (3 for each facet the facet limit allows); if the mesh is genuine, raise the limit with the environment variable WETLOAD_MAX_FACETS"
+    )]
+    TooManyVertices { limit: usize },
+
+    #[error(
+        "more than {limit} parts (distinct solid, group or object names); merge parts in the exporter"
+    )]
+    TooManyParts { limit: usize },
+
+    #[error(
         "a polygon with {vertices} vertices, {non_convex} of them not convex, is too large to triangulate here (vertices × non-convex must stay ≤ {limit}); triangulate it in the exporter"
     )]
     PolygonTooComplex {
@@ -314,19 +355,46 @@ pub fn is_mesh_path(path: &Path) -> bool {
     matches!(mesh_extension(path), Some(Ext::Stl | Ext::Obj))
 }
 
-/// Reads a mesh from the file's bytes, choosing the format by the extension of `path`.
+/// Reads a mesh from the file's bytes, choosing the format by the extension of `path`,
+/// under the default [`Limits`].
 ///
 /// `path` is used only for messages and for the part name where the file names none (the
 /// file's stem); nothing is read from disk. Coordinates come back in file units and mesh
 /// axes. Errors: [`MeshError`], each naming `path`.
 pub fn read_mesh(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
+    read_mesh_with(path, bytes, &Limits::default())
+}
+
+/// Like [`read_mesh`], with at most `limits.max_facets` facets: a binary STL's count is
+/// checked before anything is allocated, text formats stop at the line that passes it.
+/// (The file size cap applies where the file is read, before this.)
+pub fn read_mesh_with(path: &Path, bytes: &[u8], limits: &Limits) -> Result<Mesh, MeshError> {
     match mesh_extension(path) {
-        Some(Ext::Stl) => read_stl(path, bytes),
-        Some(Ext::Obj) => read_obj(path, bytes),
+        Some(Ext::Stl) => {
+            if let Some(count) = binary_stl_count(bytes)
+                && count > limits.max_facets as u64
+            {
+                return Err(MeshError::TooManyFacets {
+                    path: path.to_path_buf(),
+                    count,
+                    limit: limits.max_facets,
+                });
+            }
+            read_stl_with(path, bytes, limits.max_facets)
+        }
+        Some(Ext::Obj) => read_obj_with(path, bytes, limits.max_facets),
         None => Err(MeshError::UnknownExtension {
             path: path.to_path_buf(),
         }),
     }
+}
+
+/// The facet count of a file that is a binary STL by its size (`84 + 50·n` bytes, n the
+/// u32 at byte 80), the rule of the STL reader.
+fn binary_stl_count(bytes: &[u8]) -> Option<u64> {
+    let c = bytes.get(80..84)?;
+    let n = u64::from(u32::from_le_bytes([c[0], c[1], c[2], c[3]]));
+    (bytes.len() as u64 == 84 + 50 * n).then_some(n)
 }
 
 enum Ext {
@@ -390,6 +458,9 @@ pub(crate) fn parse_coordinate(token: &[u8]) -> Result<f64, Problem> {
 /// order of facets within each part, then lays them out contiguously.
 pub(crate) struct PartsBuilder {
     default_name: String,
+    /// Facets pushed so far, and the most that may be.
+    count: usize,
+    max_facets: usize,
     names: Vec<String>,
     index: FxHashMap<String, usize>,
     facets: Vec<Vec<Facet>>,
@@ -403,6 +474,8 @@ impl PartsBuilder {
     pub(crate) fn new(default_name: String, with_normals: bool) -> PartsBuilder {
         PartsBuilder {
             default_name,
+            count: 0,
+            max_facets: usize::MAX,
             names: Vec::new(),
             index: FxHashMap::default(),
             facets: Vec::new(),
@@ -411,15 +484,42 @@ impl PartsBuilder {
         }
     }
 
+    /// At most `max_facets` facets may be pushed; the next one is refused.
+    pub(crate) fn with_max_facets(mut self, max_facets: usize) -> PartsBuilder {
+        self.max_facets = max_facets;
+        self
+    }
+
+    /// The most facets that may be pushed.
+    pub(crate) fn max_facets(&self) -> usize {
+        self.max_facets
+    }
+
+    /// How many more facets may be pushed.
+    pub(crate) fn room(&self) -> usize {
+        self.max_facets.saturating_sub(self.count)
+    }
+
     /// Makes `name` the part that receives the next facets (an empty name means the
-    /// default name); a name seen before continues its part.
-    pub(crate) fn select(&mut self, name: &str) {
+    /// default name); a name seen before continues its part. A name longer than
+    /// [`MAX_NAME_BYTES`] is refused.
+    pub(crate) fn select(&mut self, name: &str) -> Result<(), Problem> {
+        if name.len() > MAX_NAME_BYTES {
+            return Err(Problem::NameTooLong {
+                len: name.len(),
+                limit: MAX_NAME_BYTES,
+            });
+        }
         let name = if name.is_empty() {
             self.default_name.clone()
         } else {
             name.to_string()
         };
+        if self.names.len() >= MAX_PARTS && !self.index.contains_key(&name) {
+            return Err(Problem::TooManyParts { limit: MAX_PARTS });
+        }
         self.current = Some(self.part_index(name));
+        Ok(())
     }
 
     fn part_index(&mut self, name: String) -> usize {
@@ -447,12 +547,20 @@ impl PartsBuilder {
         }
     }
 
-    pub(crate) fn push(&mut self, facet: Facet, normal: [f32; 3]) {
+    /// Adds a facet to the current part; refused once the facet limit is reached.
+    pub(crate) fn push(&mut self, facet: Facet, normal: [f32; 3]) -> Result<(), Problem> {
+        if self.count >= self.max_facets {
+            return Err(Problem::TooManyFacets {
+                limit: self.max_facets,
+            });
+        }
+        self.count += 1;
         let i = self.current();
         self.facets[i].push(facet);
         if let Some(normals) = &mut self.normals {
             normals[i].push(normal);
         }
+        Ok(())
     }
 
     /// The mesh, or `None` when no facet was added.
@@ -562,16 +670,16 @@ mod tests {
     fn parts_builder_regroups_repeated_names_in_order() {
         let f = |k: f64| [[k, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]];
         let mut b = PartsBuilder::new("stem".into(), true);
-        b.push(f(0.0), [0.0; 3]);
-        b.select("a");
-        b.push(f(1.0), [1.0; 3]);
-        b.select("unused");
-        b.select("b");
-        b.push(f(2.0), [2.0; 3]);
-        b.select("a");
-        b.push(f(3.0), [3.0; 3]);
-        b.select("");
-        b.push(f(4.0), [4.0; 3]);
+        b.push(f(0.0), [0.0; 3]).expect("within the limits");
+        b.select("a").expect("within the limits");
+        b.push(f(1.0), [1.0; 3]).expect("within the limits");
+        b.select("unused").expect("within the limits");
+        b.select("b").expect("within the limits");
+        b.push(f(2.0), [2.0; 3]).expect("within the limits");
+        b.select("a").expect("within the limits");
+        b.push(f(3.0), [3.0; 3]).expect("within the limits");
+        b.select("").expect("within the limits");
+        b.push(f(4.0), [4.0; 3]).expect("within the limits");
         let m = b.finish(Format::Obj).expect("facets were added");
         let names: Vec<_> = m.parts.iter().map(|p| p.name.as_str()).collect();
         assert_eq!(names, ["stem", "a", "b"]);
@@ -770,10 +878,170 @@ mod tests {
         }
     }
 
+    /// The line problem of a text-format error (an ASCII STL of 84 bytes or more reports
+    /// it inside "neither binary nor ASCII").
+    fn problem_of(err: &MeshError) -> Option<&Problem> {
+        match err {
+            MeshError::Text { problem, .. } | MeshError::NeitherBinaryNorAscii { problem, .. } => {
+                Some(problem)
+            }
+            _ => None,
+        }
+    }
+
+    fn limits(max_facets: usize) -> Limits {
+        Limits {
+            max_facets,
+            ..Limits::default()
+        }
+    }
+
+    /// An ASCII STL of `n` facets in one solid named `name`, one keyword per line.
+    fn ascii_stl(name: &str, n: usize) -> String {
+        let mut s = format!("solid {name}\n");
+        for _ in 0..n {
+            s += "facet normal 0 0 1\nouter loop\nvertex 0 0 0\nvertex 1 0 0\nvertex 0 1 0\nendloop\nendfacet\n";
+        }
+        s + "endsolid\n"
+    }
+
+    #[test]
+    fn binary_facet_count_is_checked_before_reading() {
+        // A real binary STL of 3 facets (size 84 + 150) under a limit of 2.
+        let mut bytes = vec![0u8; 80];
+        bytes.extend_from_slice(&3u32.to_le_bytes());
+        bytes.extend(std::iter::repeat_n(0u8, 150));
+        let err = read_mesh_with(Path::new("big.stl"), &bytes, &limits(2)).expect_err("refused");
+        assert_eq!(
+            err,
+            MeshError::TooManyFacets {
+                path: PathBuf::from("big.stl"),
+                count: 3,
+                limit: 2
+            }
+        );
+        assert!(
+            err.to_string().contains("big.stl") && err.to_string().contains("WETLOAD_MAX_FACETS")
+        );
+        assert_eq!(binary_stl_count(&bytes), Some(3));
+        assert_eq!(binary_stl_count(&bytes[..233]), None);
+        // At the limit it is read (and refused for its degenerate zero facets elsewhere).
+        assert!(read_mesh_with(Path::new("big.stl"), &bytes, &limits(3)).is_ok());
+    }
+
+    #[test]
+    fn text_formats_stop_at_the_facet_limit_with_the_line() {
+        let text = ascii_stl("s", 3);
+        assert_eq!(
+            read_mesh_with(Path::new("a.stl"), text.as_bytes(), &limits(3)).map(|m| m.facets.len()),
+            Ok(3)
+        );
+        let err =
+            read_mesh_with(Path::new("a.stl"), text.as_bytes(), &limits(2)).expect_err("refused");
+        // Refused at the third facet's third vertex (line 1 + 2·7 + 5), the line whose
+        // triangle would pass the limit.
+        assert_eq!(err.line(), Some(20), "{err}");
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyFacets { limit: 2 }),
+            "{err}"
+        );
+        let obj = "v 0 0 0\nv 1 0 0\nv 0 1 0\nv 1 1 0\nf 1 2 3\nf 2 4 3\nf 1 2 4 3\n";
+        let err =
+            read_mesh_with(Path::new("a.obj"), obj.as_bytes(), &limits(3)).expect_err("refused");
+        assert_eq!(err.line(), Some(7), "{err}");
+        assert!(
+            err.to_string().contains("a.obj") && err.to_string().contains("more than 3 facets")
+        );
+        assert!(read_mesh_with(Path::new("a.obj"), obj.as_bytes(), &limits(4)).is_ok());
+    }
+
+    #[test]
+    fn a_face_line_of_absurd_length_stops_at_the_facet_limit() {
+        // 10 million vertex references on one line, 20 MB: refused after room + 2 of them,
+        // long before the face or its triangulation would be built.
+        let mut text = b"v 0 0 0\nv 1 0 0\nv 0 1 0\nf".to_vec();
+        for _ in 0..10_000_000 {
+            text.extend_from_slice(b" 1");
+        }
+        let err = read_mesh_with(Path::new("long.obj"), &text, &limits(1000)).expect_err("refused");
+        assert_eq!(err.line(), Some(4));
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyFacets { limit: 1000 })
+        );
+    }
+
+    #[test]
+    fn part_names_of_absurd_length_are_refused_with_the_line() {
+        let long = "n".repeat(MAX_NAME_BYTES + 1);
+        let ok = "n".repeat(MAX_NAME_BYTES);
+        let err =
+            read_mesh(Path::new("n.stl"), ascii_stl(&long, 1).as_bytes()).expect_err("refused");
+        assert_eq!(err.line(), Some(1));
+        assert!(
+            err.to_string().contains("1025 bytes") && err.to_string().contains("n.stl"),
+            "{err}"
+        );
+        let m = read_mesh(Path::new("n.stl"), ascii_stl(&ok, 1).as_bytes()).expect("at the cap");
+        assert_eq!(m.parts[0].name, ok);
+        let obj = format!("v 0 0 0\nv 1 0 0\nv 0 1 0\ng {long}\nf 1 2 3\n");
+        let err = read_mesh(Path::new("n.obj"), obj.as_bytes()).expect_err("refused");
+        assert_eq!(err.line(), Some(4));
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::NameTooLong {
+                len: 1025,
+                limit: MAX_NAME_BYTES
+            })
+        );
+    }
+
+    #[test]
+    fn names_vertices_and_loops_are_bounded_too() {
+        // A file of nothing but distinct group names.
+        let mut groups = String::new();
+        for i in 0..=MAX_PARTS {
+            groups += &format!("g p{i}\n");
+        }
+        let err = read_mesh(Path::new("g.obj"), groups.as_bytes()).expect_err("refused");
+        assert_eq!(err.line(), Some(MAX_PARTS + 1), "{err}");
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyParts { limit: MAX_PARTS })
+        );
+        // Repeating names is fine.
+        let repeated = "g a\ng b\n".repeat(MAX_PARTS);
+        let err = read_mesh(Path::new("g.obj"), repeated.as_bytes()).expect_err("no faces");
+        assert!(matches!(err, MeshError::Empty { .. }), "{err}");
+        // Vertices: at most 3 per allowed facet.
+        let obj = "v 0 0 0\n".repeat(7);
+        let err =
+            read_mesh_with(Path::new("v.obj"), obj.as_bytes(), &limits(2)).expect_err("refused");
+        assert_eq!(err.line(), Some(7));
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyVertices { limit: 6 })
+        );
+        // An ASCII facet loop of absurd length stops at the facet limit.
+        let mut stl = String::from("solid s\nfacet normal 0 0 1\nouter loop\n");
+        for i in 0..1000 {
+            stl += &format!("vertex {i} {} 0\n", i % 3);
+        }
+        stl += "endloop\nendfacet\nendsolid\n";
+        let err =
+            read_mesh_with(Path::new("l.stl"), stl.as_bytes(), &limits(10)).expect_err("refused");
+        assert_eq!(err.line(), Some(3 + 13), "{err}");
+        assert_eq!(
+            problem_of(&err),
+            Some(&Problem::TooManyFacets { limit: 10 })
+        );
+    }
+
     #[test]
     fn parts_builder_without_facets_is_empty() {
         let mut b = PartsBuilder::new("stem".into(), false);
-        b.select("a");
+        b.select("a").expect("within the limits");
         assert!(b.finish(Format::Obj).is_none());
     }
 }

@@ -37,10 +37,15 @@ use super::{
 /// Reads an OBJ file from its bytes; `path` names the file in messages and gives the name
 /// of the part that holds faces before any `g`/`o` (its stem).
 pub fn read_obj(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
+    read_obj_with(path, bytes, crate::limits::DEFAULT_MAX_FACETS)
+}
+
+/// Like [`read_obj`], with at most `max_facets` facets.
+pub fn read_obj_with(path: &Path, bytes: &[u8], max_facets: usize) -> Result<Mesh, MeshError> {
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let mut reader = Reader {
         vertices: Vec::new(),
-        parts: PartsBuilder::new(stem_name(path), false),
+        parts: PartsBuilder::new(stem_name(path), false).with_max_facets(max_facets),
         face: Vec::new(),
         ring: Vec::new(),
         triangles: Vec::new(),
@@ -91,11 +96,23 @@ impl Reader {
                         .ok_or(Problem::TooFewCoordinates { found: k })?;
                     *c = parse_coordinate(token)?;
                 }
+                // No face can use more than 3 vertices per facet of the limit.
+                let most = self.parts.max_facets().saturating_mul(3);
+                if self.vertices.len() >= most {
+                    return Err(Problem::TooManyVertices { limit: most });
+                }
                 self.vertices.push(xyz);
             }
             b"f" => {
                 self.face.clear();
                 for token in tokens {
+                    // A face of n vertices makes n − 2 triangles: stop a face line of
+                    // absurd length before it outgrows the facet limit.
+                    if self.face.len() >= self.parts.room().saturating_add(2) {
+                        return Err(Problem::TooManyFacets {
+                            limit: self.parts.max_facets(),
+                        });
+                    }
                     self.face.push(resolve(token, self.vertices.len())?);
                 }
                 self.push_face()?;
@@ -108,7 +125,7 @@ impl Reader {
                     }
                     name.push_str(&String::from_utf8_lossy(word));
                 }
-                self.parts.select(&name);
+                self.parts.select(&name)?;
             }
             _ => {}
         }
@@ -118,7 +135,7 @@ impl Reader {
     fn push_face(&mut self) -> Result<(), Problem> {
         let v = &self.vertices;
         match self.face[..] {
-            [a, b, c] => self.parts.push([v[a], v[b], v[c]], [0.0; 3]),
+            [a, b, c] => self.parts.push([v[a], v[b], v[c]], [0.0; 3])?,
             _ if self.face.len() < 3 => {
                 return Err(Problem::TooFewFaceVertices {
                     count: self.face.len(),
@@ -132,7 +149,7 @@ impl Reader {
                     .triangulate(&self.ring, &mut self.triangles)?;
                 for t in &self.triangles {
                     let r = &self.ring;
-                    self.parts.push([r[t[0]], r[t[1]], r[t[2]]], [0.0; 3]);
+                    self.parts.push([r[t[0]], r[t[1]], r[t[2]]], [0.0; 3])?;
                 }
             }
         }

@@ -40,6 +40,12 @@ const BINARY_FACET: usize = 50;
 /// Reads an STL file, binary or ASCII, from its bytes; `path` names the file in messages
 /// and gives the part name where the file names none (its stem).
 pub fn read_stl(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
+    read_stl_with(path, bytes, crate::limits::DEFAULT_MAX_FACETS)
+}
+
+/// Like [`read_stl`], with at most `max_facets` facets in an ASCII file (a binary file's
+/// count is checked from its size by [`super::read_mesh_with`] before it is read).
+pub fn read_stl_with(path: &Path, bytes: &[u8], max_facets: usize) -> Result<Mesh, MeshError> {
     let len = bytes.len() as u64;
     let claimed = bytes
         .get(80..BINARY_HEADER)
@@ -62,7 +68,7 @@ pub fn read_stl(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
             },
         });
     }
-    match read_ascii(bytes, stem_name(path)) {
+    match read_ascii(bytes, stem_name(path), max_facets) {
         Ok(Some(mesh)) => Ok(mesh),
         Ok(None) => Err(MeshError::Empty {
             path: path.to_path_buf(),
@@ -274,9 +280,9 @@ fn unexpected(line: usize, expected: &'static str, found: &[u8]) -> LineError {
 }
 
 /// Parses an ASCII STL; `Ok(None)` when it is well formed but holds no facet.
-fn read_ascii(bytes: &[u8], stem: String) -> Result<Option<Mesh>, LineError> {
+fn read_ascii(bytes: &[u8], stem: String, max_facets: usize) -> Result<Option<Mesh>, LineError> {
     let mut s = Scanner::new(bytes);
-    let mut parts = PartsBuilder::new(stem, true);
+    let mut parts = PartsBuilder::new(stem, true).with_max_facets(max_facets);
     let mut ring: Vec<[f64; 3]> = Vec::new();
     let mut triangles: Vec<[usize; 3]> = Vec::new();
     let mut triangulator = Triangulator::default();
@@ -297,7 +303,9 @@ fn read_ascii(bytes: &[u8], stem: String) -> Result<Option<Mesh>, LineError> {
             return Err(unexpected(line, "`solid` (or the end of the file)", token));
         }
         solids += 1;
-        parts.select(&String::from_utf8_lossy(s.rest_of_line()));
+        parts
+            .select(&String::from_utf8_lossy(s.rest_of_line()))
+            .map_err(|p| LineError::new(line, p))?;
         loop {
             let (token, line) = s.require("`facet` or `endsolid`")?;
             if token.eq_ignore_ascii_case(b"endsolid") {
@@ -324,6 +332,16 @@ fn read_ascii(bytes: &[u8], stem: String) -> Result<Option<Mesh>, LineError> {
                 if !token.eq_ignore_ascii_case(b"vertex") {
                     return Err(unexpected(line, "`vertex` or `endloop`", token));
                 }
+                // A loop of n vertices makes n − 2 triangles: stop one of absurd length
+                // before it outgrows the facet limit.
+                if ring.len() >= parts.room().saturating_add(2) {
+                    return Err(LineError::new(
+                        line,
+                        Problem::TooManyFacets {
+                            limit: parts.max_facets(),
+                        },
+                    ));
+                }
                 ring.push([s.coordinate()?, s.coordinate()?, s.coordinate()?]);
             };
             if ring.len() < 3 {
@@ -334,14 +352,18 @@ fn read_ascii(bytes: &[u8], stem: String) -> Result<Option<Mesh>, LineError> {
             }
             s.keyword(b"endfacet", "`endfacet`")?;
             if let [a, b, c] = ring[..] {
-                parts.push([a, b, c], normal);
+                parts
+                    .push([a, b, c], normal)
+                    .map_err(|p| LineError::new(loop_line, p))?;
             } else {
                 triangles.clear();
                 triangulator
                     .triangulate(&ring, &mut triangles)
                     .map_err(|p| LineError::new(loop_line, p))?;
                 for t in &triangles {
-                    parts.push([ring[t[0]], ring[t[1]], ring[t[2]]], normal);
+                    parts
+                        .push([ring[t[0]], ring[t[1]], ring[t[2]]], normal)
+                        .map_err(|p| LineError::new(loop_line, p))?;
                 }
             }
         }
@@ -633,9 +655,13 @@ mod tests {
 
     #[test]
     fn absurd_line_length_is_linear() {
-        // A 20 MB name and a 20 MB token: both are scanned once.
+        // A 20 MB name is refused on its line (names are capped); a 20 MB token is scanned
+        // once and quoted short.
         let mut text = b"solid ".to_vec();
         text.extend(std::iter::repeat_n(b'n', 20_000_000));
+        let err = read_stl(Path::new("long.stl"), &text).expect_err("must be refused");
+        assert_eq!(err.line(), Some(1), "{err}");
+        let mut text = b"solid n".to_vec();
         text.extend_from_slice(b"\nfacet normal 0 0 1 outer loop vertex ");
         text.extend(std::iter::repeat_n(b'7', 20_000_000));
         text.extend_from_slice(b"x 0 0\n");

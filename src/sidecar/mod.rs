@@ -40,6 +40,11 @@ pub const SHORTHAND_LIQUID_NAME: &str = "liquid";
 /// The most steps a sweep may take (it then has one level more).
 pub const MAX_SWEEP_STEPS: usize = 10_000;
 
+/// The longest string (key, name or keyword) a sidecar may hold, in bytes as written.
+/// Names end up in results, pages and file names, and in messages: one of absurd length
+/// is refused before anything copies it.
+pub const MAX_STRING_BYTES: usize = 1024;
+
 /// Length unit of the mesh coordinates.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum LengthUnit {
@@ -436,6 +441,10 @@ pub enum SidecarErrorKind {
         "unknown factor_preset \"{name}\": the flotation presets are {known} (see config/flotation.json), or give \"required_factor\": <number>"
     )]
     UnknownFactorPreset { name: String, known: String },
+    #[error(
+        "a string of {len} bytes is longer than the {limit} bytes a sidecar string may have; keys, names and keywords are short"
+    )]
+    StringTooLong { len: usize, limit: usize },
 }
 
 /// Reads and validates the sidecar `text` of the file `path`.
@@ -445,6 +454,21 @@ pub enum SidecarErrorKind {
 /// to the mesh coordinates only.
 pub fn parse_sidecar(path: &Path, text: &str) -> Result<Sidecar, SidecarError> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    if let Some((offset, len)) = long_string(text, MAX_STRING_BYTES) {
+        let before = &text[..offset];
+        let line = before.matches('\n').count() + 1;
+        let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+        return Err(SidecarError {
+            path: path.to_owned(),
+            line: Some(line),
+            column: Some(before[line_start..].chars().count() + 1),
+            key: String::new(),
+            kind: Box::new(SidecarErrorKind::StringTooLong {
+                len,
+                limit: MAX_STRING_BYTES,
+            }),
+        });
+    }
     let raw = raw::read(text).map_err(|e| {
         // serde_json counts columns from 1 but says 0 before the first character of a line.
         let (line, column) = match e.error.line() {
@@ -469,6 +493,31 @@ pub fn parse_sidecar(path: &Path, text: &str) -> Result<Sidecar, SidecarError> {
             kind: Box::new(problem.kind),
         }
     })
+}
+
+/// The byte offset of the opening quote and the length (bytes between the quotes, as
+/// written) of the first JSON string in `text` longer than `limit`. A linear scan that
+/// knows only strings and escapes; anything else is left to the JSON reader.
+fn long_string(text: &str, limit: usize) -> Option<(usize, usize)> {
+    let b = text.as_bytes();
+    let mut i = 0;
+    while i < b.len() {
+        if b[i] != b'"' {
+            i += 1;
+            continue;
+        }
+        let start = i;
+        i += 1;
+        while i < b.len() && b[i] != b'"' {
+            i += if b[i] == b'\\' { 2 } else { 1 };
+        }
+        let len = i.min(b.len()) - start - 1;
+        if len > limit {
+            return Some((start, len));
+        }
+        i += 1;
+    }
+    None
 }
 
 /// serde_json's message without its trailing position (reported separately). serde quotes
@@ -2049,6 +2098,45 @@ mod tests {
             .flotation
             .is_some()
         );
+    }
+
+    #[test]
+    fn strings_of_absurd_length_are_refused_with_their_line() {
+        let long = "x".repeat(MAX_STRING_BYTES + 1);
+        let at_cap = "x".repeat(MAX_STRING_BYTES);
+        for text in [
+            with(&format!("\"cases\": [{{\"name\": \"{long}\"}}]")),
+            format!("{{\n \"{long}\": 1}}"),
+            with(&format!(
+                "\"liquid\": {{\"level\": 1, \"preset\": \"{long}\"}}"
+            )),
+        ] {
+            let e = err(&text);
+            // Where the string's opening quote is (the texts are ASCII).
+            let quote = text.find(&long).expect("present") - 1;
+            let line = text[..quote].matches('\n').count() + 1;
+            let column = quote - text[..quote].rfind('\n').map_or(0, |i| i + 1) + 1;
+            assert_eq!((e.line, e.column), (Some(line), Some(column)), "{e}");
+            assert_eq!(
+                *e.kind,
+                SidecarErrorKind::StringTooLong {
+                    len: MAX_STRING_BYTES + 1,
+                    limit: MAX_STRING_BYTES
+                }
+            );
+            assert!(e.to_string().len() < 400, "{e}");
+        }
+        // Escapes count as written; a string at the cap is read.
+        let escaped = "\\\"".repeat(MAX_STRING_BYTES / 2);
+        let e = err(&with(&format!("\"cases\": [{{\"name\": \"{escaped}x\"}}]")));
+        assert!(
+            matches!(*e.kind, SidecarErrorKind::StringTooLong { .. }),
+            "{e}"
+        );
+        let s = ok(&with(&format!("\"cases\": [{{\"name\": \"{at_cap}\"}}]")));
+        assert_eq!(s.cases[0].name, at_cap);
+        assert_eq!(long_string("\"open", 3), Some((0, 4)));
+        assert_eq!(long_string("\"ab\\", 3), None);
     }
 
     #[test]

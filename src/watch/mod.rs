@@ -15,8 +15,19 @@
 //! broken. Only a folder that cannot be watched, or a change log that cannot be written,
 //! ends the watcher.
 //!
-//! Symbolic links: the folder is listed as it is; a link to a mesh elsewhere is read, but
-//! results are only ever written inside `DIR/results/`.
+//! File-system policy (README "Hostile input and file-system policy"):
+//! * Results, exports, the page and the change log are only ever written inside
+//!   `DIR/results/`, and only when that is a real folder: a `results` that is a symbolic
+//!   link ends the watcher at start with a message (nothing is written through it).
+//! * Symbolic links in the folder are not followed out of it: a mesh or sidecar that is a
+//!   link to a file outside `DIR` is refused with a message (recorded as `failed`); links
+//!   that stay inside `DIR` are read like files. Only regular files are read (a FIFO or
+//!   device named like a mesh is refused, never opened).
+//! * A result that cannot be written (read-only or full `results/`) is reported once, and
+//!   retried every [`WRITE_RETRY`] until it succeeds; the watcher keeps running.
+//! * A mesh that disappears between the event and the read is looked at again after the
+//!   quiet window (and then noted as removed); one that changes while it is read is read
+//!   again.
 
 pub mod changelog;
 pub mod record;
@@ -37,6 +48,9 @@ use serde_json::{Value, json};
 use thiserror::Error;
 
 use crate::pipeline::{self, RESULTS_DIR, RunError};
+
+/// How often a result that could not be written is tried again.
+pub const WRITE_RETRY: Duration = Duration::from_secs(2);
 use changelog::{ChangeLog, LogError};
 pub use schedule::Schedule;
 
@@ -83,6 +97,11 @@ pub enum WatchError {
     Notify { dir: PathBuf, source: notify::Error },
     #[error(transparent)]
     Log(#[from] LogError),
+    #[error(
+        "{} is a symbolic link: wetload writes results only into a real results folder inside the watched folder; replace the link with a folder",
+        path.display()
+    )]
+    ResultsLink { path: PathBuf },
 }
 
 /// How a run ended: whether every mesh computed in the last pass (for `--once`).
@@ -101,6 +120,8 @@ struct MeshState {
     previous: Option<Value>,
     baseline: Option<Value>,
     retries: u32,
+    /// The last result could not be written; it is being retried (reported once).
+    write_failing: bool,
 }
 
 struct Watch<'a> {
@@ -111,6 +132,10 @@ struct Watch<'a> {
     log: ChangeLog,
     meshes: BTreeMap<PathBuf, MeshState>,
     out: Box<dyn Write + 'a>,
+    /// Meshes whose result could not be written before the schedule existed (first pass).
+    write_retry: Vec<PathBuf>,
+    /// The last note about the folder's page, so an identical one is not repeated.
+    page_note: Option<String>,
 }
 
 /// Runs the watcher until `stop` is set (or once, with `opts.once`).
@@ -126,6 +151,9 @@ pub fn run(
     let dir = fs::canonicalize(&opts.dir).map_err(folder_err)?;
     fs::read_dir(&dir).map_err(folder_err)?;
     let results = dir.join(RESULTS_DIR);
+    if fs::symlink_metadata(&results).is_ok_and(|m| m.file_type().is_symlink()) {
+        return Err(WatchError::ResultsLink { path: results });
+    }
     let (log, recovered) = ChangeLog::open(&results)?;
     let mut w = Watch {
         opts,
@@ -134,6 +162,8 @@ pub fn run(
         log,
         meshes: BTreeMap::new(),
         out,
+        write_retry: Vec::new(),
+        page_note: None,
     };
     for note in &recovered.notes {
         w.say(&format!("note: {note}\n"));
@@ -186,6 +216,9 @@ pub fn run(
     ));
 
     let mut schedule = Schedule::new(opts.debounce);
+    for mesh in std::mem::take(&mut w.write_retry) {
+        schedule.retry(mesh, Instant::now() + WRITE_RETRY);
+    }
     while !stop.load(Ordering::SeqCst) {
         let wait = schedule
             .next_in(Instant::now())
@@ -225,7 +258,8 @@ pub fn run(
     Ok(Outcome { failures: 0 })
 }
 
-/// The meshes in `dir`, sorted (links are listed like files; see the module doc).
+/// The meshes in `dir`, sorted (links to files are listed like files, and refused when
+/// they lead out of the folder; see the module doc).
 pub fn scan(dir: &Path) -> Vec<PathBuf> {
     let mut out: Vec<PathBuf> = fs::read_dir(dir)
         .map(|rd| {
@@ -262,6 +296,13 @@ fn is_write(kind: &EventKind) -> bool {
             | EventKind::Access(AccessKind::Close(AccessMode::Write))
             | EventKind::Any
     )
+}
+
+/// Whether `p` is a symbolic link that leads out of `dir` (canonical). A dangling link does
+/// not count: reading it fails on its own.
+fn leads_outside(dir: &Path, p: &Path) -> bool {
+    fs::symlink_metadata(p).is_ok_and(|m| m.file_type().is_symlink())
+        && fs::canonicalize(p).is_ok_and(|target| !target.starts_with(dir))
 }
 
 fn hash(bytes: &[u8]) -> String {
@@ -370,6 +411,19 @@ impl Watch<'_> {
             }
             return Ok(true);
         }
+        let side = pipeline::sidecar_path(mesh);
+        if let Some(link) = [mesh, side.as_path()]
+            .into_iter()
+            .find(|p| leads_outside(&self.dir, p))
+        {
+            let e = RunError::Read {
+                path: link.to_owned(),
+                source: std::io::Error::other(
+                    "it is a symbolic link to a file outside the watched folder, and wetload does not follow links out of it; copy the file into the folder",
+                ),
+            };
+            return self.failed(mesh, &name, &e, None);
+        }
         let inputs = match pipeline::read_inputs(mesh) {
             Ok(i) => i,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
@@ -408,8 +462,24 @@ impl Watch<'_> {
         };
         let out = self.results.join(format!("{}.json", pipeline::stem(mesh)));
         if let Err(e) = pipeline::write_atomic(&out, &crate::report::json::render(&result)) {
-            // A full or read-only results folder: say so, keep running, retry on the next save.
-            self.say(&format!("{} {name} · error: {e}\n", clock()));
+            // A full or read-only results folder: say so once, keep running, try again
+            // every WRITE_RETRY (and on the next save).
+            let st = self.meshes.entry(mesh.to_owned()).or_default();
+            let first = !st.write_failing;
+            st.write_failing = true;
+            match schedule {
+                Some(s) => s.retry(mesh.to_owned(), Instant::now() + WRITE_RETRY),
+                None if !self.opts.once => self.write_retry.push(mesh.to_owned()),
+                None => {}
+            }
+            if first {
+                let again = if self.opts.once {
+                    String::new()
+                } else {
+                    format!("; trying again every {} s", WRITE_RETRY.as_secs())
+                };
+                self.say(&format!("{} {name} · error: {e}{again}\n", clock()));
+            }
             return Ok(false);
         }
         // Pictures and exports: the result is written, so a failure here is only reported.
@@ -419,6 +489,7 @@ impl Watch<'_> {
         let st = self.meshes.entry(mesh.to_owned()).or_default();
         st.iteration += 1;
         st.retries = 0;
+        let recovered = std::mem::take(&mut st.write_failing);
         let cases = record::cases_with_changes(&result, st.previous.as_ref(), st.baseline.as_ref());
         let cases = Value::Array(cases);
         st.previous = Some(cases.clone());
@@ -439,6 +510,9 @@ impl Watch<'_> {
             cases.as_array().map_or(&[][..], Vec::as_slice),
             self.opts.verbose,
         );
+        if recovered {
+            self.say(&format!("{} {name} · results written again\n", clock()));
+        }
         self.say(&block);
         Ok(true)
     }
@@ -451,6 +525,8 @@ impl Watch<'_> {
         schedule: Option<&mut Schedule>,
     ) -> Result<bool, WatchError> {
         let st = self.meshes.entry(mesh.to_owned()).or_default();
+        // Deleted between the event and the read: look again (it will be noted removed).
+        let vanished = !mesh.exists();
         let fresh = [mesh.to_owned(), pipeline::sidecar_path(mesh)]
             .iter()
             .filter_map(|p| fs::metadata(p).and_then(|m| m.modified()).ok())
@@ -458,7 +534,7 @@ impl Watch<'_> {
                 SystemTime::now().duration_since(t).unwrap_or_default() < 4 * self.opts.debounce
             });
         if let Some(s) = schedule
-            && fresh
+            && (fresh || vanished)
             && st.retries < self.opts.retries
         {
             st.retries += 1;
@@ -487,8 +563,16 @@ impl Watch<'_> {
 
     /// Rewrites the folder's page (`live`: it reloads itself); a failure is only reported.
     fn refresh_page(&mut self, live: bool) {
-        if let Err(e) = crate::outputs::write_folder_page(&self.results, live) {
-            self.say(&format!("note: {e}\n"));
+        match crate::outputs::write_folder_page(&self.results, live) {
+            Ok(_) => self.page_note = None,
+            Err(e) => {
+                // Said once while it keeps failing the same way.
+                let note = format!("note: {e}\n");
+                if self.page_note.as_ref() != Some(&note) {
+                    self.say(&note);
+                    self.page_note = Some(note);
+                }
+            }
         }
     }
 

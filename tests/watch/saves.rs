@@ -174,6 +174,9 @@ fn a_broken_save_keeps_the_last_result_marked_stale_until_a_good_one() {
     let before = log(p).len();
     save(&p.join("box.stl"), box_stl(1.0));
     wait_result(&w, p, "box", expected(1.0, 0.75));
+    // The result alone cannot tell (its numbers are those of the earlier line): wait for
+    // the line, which is appended after the result and the exports are written.
+    wait_event(&w, p, before, "box.stl", "computed");
     let lines = check_log(p);
     let computed = events(&lines[before..], "box.stl", "computed");
     assert_eq!(computed.len(), 1, "{:#?}", &lines[before..]);
