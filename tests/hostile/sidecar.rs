@@ -117,6 +117,7 @@ const KEYS: &[(Base, &str, Kind)] = &[
     (Base::Shorthand, "flotation.resisting", Kind::Named),
     (Base::Shorthand, "flotation.resisting.weight", Kind::Number),
     (Base::Shorthand, "flotation.required_factor", Kind::Number),
+    (Base::Shorthand, "flotation.factor_preset", Kind::Text),
     (Base::Shorthand, "field_exports", Kind::Text),
     (Base::Named, "liquids", Kind::Named),
     (Base::Named, "liquids.water", Kind::Object),
