@@ -11,8 +11,6 @@
 //! It does not decide what the liquid does with any of this; the caller maps shells and
 //! wet sides to per-facet wetting.
 
-use rustc_hash::FxHashMap;
-
 use super::{Tri, Vec3};
 
 /// Weld tolerance for topology, relative to the bounding-box diagonal (pinned).
@@ -356,220 +354,140 @@ const CELL_BITS: u32 = 21;
 /// Slots of the weld's cache of exact corner positions (a power of two).
 const EXACT_SLOTS: usize = 1 << 14;
 
-/// Meshes of at least this many facets are welded in two halves side by side.
-const PARALLEL_WELD_FACETS: usize = 65_536;
-
-/// Gives every corner a vertex id; corners within `tol` of a representative share it.
-///
-/// The first corner of a cluster becomes its representative ([`WeldGrid`]). Large meshes
-/// are cut by a plane across the middle of the longest side of the box: the corners on
-/// either side, farther than 2 × `tol` from the plane, are welded by the two threads at
-/// once; the corners in the band around the plane are welded last and join a
-/// representative of either side within `tol`. No corner of one side is within `tol` of
-/// one of the other side, so the clusters are those of a single pass whenever
-/// representatives lie more than `tol` apart (as they do in any mesh that is not
-/// degenerate at the scale of the tolerance). The cut depends on the geometry only, so the
-/// ids are the same for any number of threads.
-fn weld(tris: &[Tri], tol: f64, bbox: (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
-    weld_split_from(tris, tol, bbox, PARALLEL_WELD_FACETS)
-}
-
-/// [`weld`], splitting meshes of `split_from` facets or more.
-fn weld_split_from(
-    tris: &[Tri],
-    tol: f64,
-    (lo, hi): (Vec3, Vec3),
-    split_from: usize,
-) -> (Vec<[u32; 3]>, usize) {
-    let n = tris.len();
-    if n < split_from {
-        let mut grid = WeldGrid::new(n, tol, lo);
-        let ids = tris.iter().map(|t| t.map(|p| grid.weld(&p))).collect();
-        return (ids, grid.reps.len());
-    }
-    let size = hi - lo;
-    let axis = size.imax();
-    let cut = lo[axis] + size[axis] / 2.0;
-    let band = 2.0 * tol;
-    // 0 and 1: the two sides; 2: the band.
-    let side = |p: &Vec3| -> u8 {
-        if p[axis] < cut - band {
-            0
-        } else if p[axis] > cut + band {
-            1
-        } else {
-            2
-        }
-    };
-    let half = |which: u8| {
-        let mut grid = WeldGrid::new(n / 2, tol, lo);
-        let ids: Vec<[u32; 3]> = tris
-            .iter()
-            .map(|t| {
-                t.map(|p| {
-                    if side(&p) == which {
-                        grid.weld(&p)
-                    } else {
-                        u32::MAX
-                    }
-                })
-            })
-            .collect();
-        (ids, grid)
-    };
-    let ((mut ids, low), (high_ids, high)) = rayon::join(|| half(0), || half(1));
-    let offset = low.reps.len() as u32;
-    let mut banded = WeldGrid::new(0, tol, lo);
-    let base = offset + high.reps.len() as u32;
-    for (t, (own, other)) in tris.iter().zip(ids.iter_mut().zip(&high_ids)) {
-        for k in 0..3 {
-            if own[k] != u32::MAX {
-                continue;
-            }
-            own[k] = if other[k] != u32::MAX {
-                other[k] + offset
-            } else {
-                // The band's own cache holds final ids; its grid, band-local ones.
-                let p = &t[k];
-                match banded.exact_hit(p) {
-                    Some(id) => id,
-                    None => {
-                        let q = p - lo;
-                        let id = banded
-                            .find(&q)
-                            .map(|id| id + base)
-                            .or_else(|| low.find(&q))
-                            .or_else(|| high.find(&q).map(|id| id + offset))
-                            .unwrap_or_else(|| banded.insert(q) + base);
-                        banded.remember(p, id);
-                        id
-                    }
-                }
-            };
-        }
-    }
-    (ids, base as usize + banded.reps.len())
-}
-
-/// Welds corners one at a time: a grid of cells 64 × `tol` wide (so that nine in ten
-/// corners lie more than `tol` from every cell face and one cell answers); a corner is
-/// compared with the representatives of its own cell and of the neighbour cells it lies
-/// within `tol` of. The first corner of a cluster becomes its representative.
+/// Gives every corner a vertex id: corners within `tol` of each other share one (and so,
+/// by chains of such pairs, whole clusters do); ids are numbered in order of each
+/// cluster's first corner. Returns the ids per facet and the number of vertices.
 ///
 /// In a triangle soup every vertex is stored once per facet that uses it, bit for bit the
-/// same, usually a few facets apart. A small direct-mapped cache of exact positions answers
-/// those repeats before the grid is consulted; it holds only corners whose id the grid gave,
-/// so it never changes an answer, and identical positions always get the same id.
-struct WeldGrid {
-    cell: f64,
-    tol: f64,
-    origin: Vec3,
-    /// First representative of each cell; `next` chains the others.
-    heads: FxHashMap<u64, u32>,
-    /// Representatives, relative to `origin`.
-    reps: Vec<Vec3>,
-    next: Vec<u32>,
-    exact: Vec<([u64; 3], u32)>,
-}
+/// same, usually a few facets apart. So, first, a small direct-mapped cache of exact
+/// positions sends each repeat to the corner it repeats; the corners it misses (the
+/// candidates, about one per vertex, plus the few repeats it forgot) go on. Second, the
+/// candidates are sorted by a grid cell 64 × `tol` wide, and each is compared with the
+/// others of its cell and, when it lies within `tol` of a cell face (one in ten), with
+/// those of the neighbour cells across it; pairs within `tol` are joined (union-find).
+/// The sort, not a hash map, keeps every step in cache-friendly order; the result does
+/// not depend on the number of threads.
+fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
+    use rayon::prelude::*;
 
-impl WeldGrid {
-    fn new(expected_facets: usize, tol: f64, origin: Vec3) -> WeldGrid {
-        // With tol = 1e-7 × the diagonal every axis spans at most 1.6e5 cells (< 2^21).
-        let vertices = expected_facets / 2 + 16;
-        let mut heads = FxHashMap::default();
-        heads.reserve(vertices);
-        WeldGrid {
-            cell: if tol > 0.0 { 64.0 * tol } else { 1.0 },
-            tol,
-            origin,
-            heads,
-            reps: Vec::with_capacity(vertices),
-            next: Vec::with_capacity(vertices),
-            exact: vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS],
+    // 1. Exact repeats. `ids` holds candidate indices until step 4.
+    let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
+    // Each candidate's position relative to `origin`.
+    let mut candidates: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
+    let mut ids: Vec<[u32; 3]> = Vec::with_capacity(tris.len());
+    for t in tris {
+        let mut c = [0u32; 3];
+        for k in 0..3 {
+            let p = &t[k];
+            let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+            let slot = exact_slot(&bits);
+            c[k] = if exact[slot].0 == bits {
+                exact[slot].1
+            } else {
+                let i = candidates.len() as u32;
+                candidates.push(p - origin);
+                exact[slot] = (bits, i);
+                i
+            };
         }
+        ids.push(c);
     }
+    drop(exact);
 
-    /// The id of corner `p`, making it a representative when none is within `tol`.
-    fn weld(&mut self, p: &Vec3) -> u32 {
-        if let Some(id) = self.exact_hit(p) {
-            return id;
-        }
-        let q = p - self.origin;
-        let id = match self.find(&q) {
-            Some(id) => id,
-            None => self.insert(q),
-        };
-        self.remember(p, id);
-        id
-    }
-
-    fn exact_hit(&self, p: &Vec3) -> Option<u32> {
-        let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
-        let (b, id) = self.exact[exact_slot(&bits)];
-        (b == bits).then_some(id)
-    }
-
-    fn remember(&mut self, p: &Vec3, id: u32) {
-        let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
-        self.exact[exact_slot(&bits)] = (bits, id);
-    }
-
-    fn key(&self, q: &Vec3) -> [i64; 3] {
+    // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
+    // most 1.6e5 cells (< 2^21, so the packed keys of real cells never collide).
+    let cell = if tol > 0.0 { 64.0 * tol } else { 1.0 };
+    let key = |q: &Vec3| -> [i64; 3] {
         [
-            (q.x / self.cell).floor() as i64,
-            (q.y / self.cell).floor() as i64,
-            (q.z / self.cell).floor() as i64,
+            (q.x / cell).floor() as i64,
+            (q.y / cell).floor() as i64,
+            (q.z / cell).floor() as i64,
         ]
-    }
+    };
+    let mut order: Vec<(u64, u32)> = candidates
+        .par_iter()
+        .enumerate()
+        .map(|(i, q)| (pack(key(q)), i as u32))
+        .collect();
+    order.par_sort_unstable();
+    // The positions in sorted order (a gather whose loads overlap), so that the scan below
+    // reads memory in order.
+    let sorted: Vec<Vec3> = order
+        .par_iter()
+        .map(|&(_, i)| candidates[i as usize])
+        .collect();
 
-    /// A representative within `tol` of `q` (relative to the origin), if any.
-    fn find(&self, q: &Vec3) -> Option<u32> {
-        let key = self.key(q);
-        // Neighbour offsets worth visiting along each axis.
-        let mut offs: [[i64; 2]; 3] = [[0, 0]; 3];
-        let mut counts = [1usize; 3];
-        for a in 0..3 {
-            let f = q[a] / self.cell - key[a] as f64; // position inside the cell, [0, 1)
-            if f * self.cell < self.tol {
-                offs[a][1] = -1;
-                counts[a] = 2;
-            } else if (1.0 - f) * self.cell <= self.tol {
-                offs[a][1] = 1;
-                counts[a] = 2;
-            }
+    // 3. Join the candidates within `tol`: in the same cell, and across cell faces.
+    let tol2 = tol * tol;
+    let mut uf = UnionFind::new(candidates.len());
+    let mut start = 0;
+    while start < order.len() {
+        let mut end = start + 1;
+        while end < order.len() && order[end].0 == order[start].0 {
+            end += 1;
         }
-        let tol2 = self.tol * self.tol;
-        for ia in 0..counts[0] {
-            for ib in 0..counts[1] {
-                for ic in 0..counts[2] {
-                    let kk = pack([
-                        key[0] + offs[0][ia],
-                        key[1] + offs[1][ib],
-                        key[2] + offs[2][ic],
-                    ]);
-                    let mut r = self.heads.get(&kk).copied().unwrap_or(u32::MAX);
-                    while r != u32::MAX {
-                        if (self.reps[r as usize] - q).norm_squared() <= tol2 {
-                            return Some(r);
+        for a in start..end {
+            let (_, i) = order[a];
+            let q = sorted[a];
+            for b in start..a {
+                if (sorted[b] - q).norm_squared() <= tol2 {
+                    uf.union(i as usize, order[b].1 as usize);
+                }
+            }
+            // Neighbour cells worth visiting along each axis.
+            let k = key(&q);
+            let mut offs = [[0i64; 2]; 3];
+            let mut counts = [1usize; 3];
+            for ax in 0..3 {
+                let inside = q[ax] / cell - k[ax] as f64; // position inside the cell, [0, 1)
+                if inside * cell < tol {
+                    offs[ax][1] = -1;
+                    counts[ax] = 2;
+                } else if (1.0 - inside) * cell <= tol {
+                    offs[ax][1] = 1;
+                    counts[ax] = 2;
+                }
+            }
+            for ia in 0..counts[0] {
+                for ib in 0..counts[1] {
+                    for ic in 0..counts[2] {
+                        if ia + ib + ic == 0 {
+                            continue; // its own cell, done above
                         }
-                        r = self.next[r as usize];
+                        let other =
+                            pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
+                        let from = order.partition_point(|e| e.0 < other);
+                        for (b, &(key_j, j)) in order.iter().enumerate().skip(from) {
+                            if key_j != other {
+                                break;
+                            }
+                            if (sorted[b] - q).norm_squared() <= tol2 {
+                                uf.union(i as usize, j as usize);
+                            }
+                        }
                     }
                 }
             }
         }
-        None
+        start = end;
     }
+    drop((order, sorted));
 
-    /// Makes `q` (relative to the origin) a new representative; returns its id.
-    fn insert(&mut self, q: Vec3) -> u32 {
-        let id = self.reps.len() as u32;
-        let key = pack(self.key(&q));
-        self.reps.push(q);
-        let head = self.heads.entry(key).or_insert(u32::MAX);
-        self.next.push(*head);
-        *head = id;
-        id
+    // 4. Number the clusters in order of their first candidate (the union-find keeps the
+    // lowest index as the root, and candidates are in order of first appearance).
+    let mut vertex = vec![u32::MAX; candidates.len()];
+    let mut vertices = 0u32;
+    for i in 0..candidates.len() {
+        let r = uf.find(i);
+        if vertex[r] == u32::MAX {
+            vertex[r] = vertices;
+            vertices += 1;
+        }
+        vertex[i] = vertex[r];
     }
+    ids.par_iter_mut()
+        .for_each(|t| *t = t.map(|i| vertex[i as usize]));
+    (ids, vertices as usize)
 }
 
 /// A cell's three indices packed into one key, [`CELL_BITS`] bits each.
@@ -977,10 +895,10 @@ mod tests {
             let distinct: std::collections::BTreeSet<u32> = ids.iter().flatten().copied().collect();
             proptest::prop_assert_eq!(distinct.len(), seen.len());
             proptest::prop_assert_eq!(vertices, seen.len());
-            // Split in two halves and a band, the clusters are the same.
-            let (split, split_vertices) = weld_split_from(&tris, tol, (lo, hi), 0);
-            proptest::prop_assert!(same_partition(&ids, &split));
-            proptest::prop_assert_eq!(split_vertices, vertices);
+            // The same clusters as the plain pairwise reading, numbered alike.
+            let (plain, plain_vertices) = plain_weld(&tris, tol);
+            proptest::prop_assert_eq!(&ids, &plain);
+            proptest::prop_assert_eq!(plain_vertices, vertices);
 
             let t = Topology::build(&tris);
             let (open, non_manifold, inconsistent) = naive_edge_counts(&point_ids);
@@ -999,24 +917,45 @@ mod tests {
         }
     }
 
-    /// Whether two id lists describe the same clusters (equal up to renumbering).
-    fn same_partition(a: &[[u32; 3]], b: &[[u32; 3]]) -> bool {
-        let mut ab = std::collections::HashMap::new();
-        let mut ba = std::collections::HashMap::new();
-        a.iter()
-            .flatten()
-            .zip(b.iter().flatten())
-            .all(|(x, y)| *ab.entry(*x).or_insert(*y) == *y && *ba.entry(*y).or_insert(*x) == *x)
+    /// The weld by definition, in quadratic time: corners within `tol` of each other are
+    /// joined, clusters numbered by their first corner.
+    fn plain_weld(tris: &[Tri], tol: f64) -> (Vec<[u32; 3]>, usize) {
+        let corners: Vec<Vec3> = tris.iter().flatten().copied().collect();
+        let mut uf = UnionFind::new(corners.len());
+        for i in 0..corners.len() {
+            for j in 0..i {
+                if (corners[i] - corners[j]).norm_squared() <= tol * tol {
+                    uf.union(i, j);
+                }
+            }
+        }
+        let mut number = vec![u32::MAX; corners.len()];
+        let mut next = 0;
+        let mut ids = Vec::new();
+        for f in 0..tris.len() {
+            let mut t = [0; 3];
+            for (k, id) in t.iter_mut().enumerate() {
+                let r = uf.find(3 * f + k);
+                if number[r] == u32::MAX {
+                    number[r] = next;
+                    next += 1;
+                }
+                *id = number[r];
+            }
+            ids.push(t);
+        }
+        (ids, next as usize)
     }
 
     #[test]
-    fn the_split_weld_finds_the_clusters_of_a_single_pass() {
-        // Vertices exactly on the cutting plane (x = 0 for this torus), and the same
-        // torus with every vertex moved a little and some corners nudged by less than the
-        // tolerance, so the band, both sides and the near-miss logic are all exercised.
-        let plain = tris(shapes::torus([0.0; 3], 3.0, 1.0, 64, 24));
+    fn the_weld_finds_the_clusters_of_the_definition() {
+        // Vertices on cell faces (the torus is centred on the origin, a cell corner), the
+        // same torus with every vertex moved a little, and in both some corners nudged by
+        // less than the tolerance and a facet repeated, so exact repeats, near misses and
+        // neighbour cells are all exercised.
+        let plain = tris(shapes::torus([0.0; 3], 3.0, 1.0, 24, 12));
         let noisy = tris(shapes::perturb(
-            &shapes::torus([0.0; 3], 3.0, 1.0, 64, 24),
+            &shapes::torus([0.0; 3], 3.0, 1.0, 24, 12),
             1e-3,
             7,
         ));
@@ -1032,11 +971,9 @@ mod tests {
             mesh.push(mesh[0]);
             let bbox = bounding_box(mesh.iter().flat_map(|t| t.iter()));
             let tol = WELD_TOLERANCE_REL * (bbox.1 - bbox.0).norm();
-            let (one, n1) = weld_split_from(&mesh, tol, bbox, usize::MAX);
-            let (two, n2) = weld_split_from(&mesh, tol, bbox, 0);
-            assert_eq!(n1, n2);
-            assert!(same_partition(&one, &two));
-            assert_eq!(n1, 64 * 24, "every torus vertex once");
+            let (ids, n) = weld(&mesh, tol, bbox);
+            assert_eq!((ids, n), plain_weld(&mesh, tol));
+            assert_eq!(n, 24 * 12, "every torus vertex once");
         }
     }
 
