@@ -354,17 +354,19 @@ const CELL_BITS: u32 = 21;
 /// Slots of the weld's cache of exact corner positions (a power of two).
 const EXACT_SLOTS: usize = 1 << 14;
 
-/// Gives every corner a vertex id: corners within `tol` of each other share one (and so,
-/// by chains of such pairs, whole clusters do); ids are numbered in order of each
-/// cluster's first corner. Returns the ids per facet and the number of vertices.
+/// Gives every corner a vertex id: a corner within `tol` of a cluster's first corner
+/// joins that cluster (the same clusters as joining every pair within `tol` whenever
+/// clusters are far apart compared with `tol`, as in any mesh not degenerate at that
+/// scale); ids are numbered in order of each cluster's first corner. Returns the ids per facet and the number of vertices.
 ///
 /// In a triangle soup every vertex is stored once per facet that uses it, bit for bit the
 /// same, usually a few facets apart. So, first, a small direct-mapped cache of exact
 /// positions sends each repeat to the corner it repeats; the corners it misses (the
 /// candidates, about one per vertex, plus the few repeats it forgot) go on. Second, the
-/// candidates are sorted by a grid cell 64 × `tol` wide, and each is compared with the
-/// others of its cell and, when it lies within `tol` of a cell face (one in ten), with
-/// those of the neighbour cells across it; pairs within `tol` are joined (union-find).
+/// candidates are sorted by a grid cell 64 × `tol` wide and clustered cell by cell: the
+/// first candidate of a cluster is its representative, later ones within `tol` of it
+/// join it, and representatives within `tol` of a cell face (one in ten) are joined with
+/// those of the neighbour cells within `tol` (union-find).
 /// The sort, not a hash map, keeps every step in cache-friendly order; the result does
 /// not depend on the number of threads.
 fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
@@ -417,61 +419,73 @@ fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, us
         .map(|&(_, i)| candidates[i as usize])
         .collect();
 
-    // 3. Join the candidates within `tol`: in the same cell, and across cell faces.
+    // 3. Clusters. Within a cell, in candidate order, the first candidate of a cluster is
+    // its representative and every later one within `tol` of a representative joins it;
+    // then representatives within `tol` of a cell face are joined with those of the
+    // neighbour cells within `tol`. Comparing with representatives only keeps a cell
+    // that holds the same point many times (evicted from the cache) linear.
     let tol2 = tol * tol;
     let mut uf = UnionFind::new(candidates.len());
+    // Positions (in `order`) of the representatives, grouped by cell in key order.
+    let mut reps: Vec<u32> = Vec::with_capacity(order.len());
     let mut start = 0;
     while start < order.len() {
         let mut end = start + 1;
         while end < order.len() && order[end].0 == order[start].0 {
             end += 1;
         }
+        let first_rep = reps.len();
         for a in start..end {
-            let (_, i) = order[a];
             let q = sorted[a];
-            for b in start..a {
-                if (sorted[b] - q).norm_squared() <= tol2 {
-                    uf.union(i as usize, order[b].1 as usize);
-                }
+            match reps[first_rep..]
+                .iter()
+                .find(|&&r| (sorted[r as usize] - q).norm_squared() <= tol2)
+            {
+                Some(&r) => uf.union(order[a].1 as usize, order[r as usize].1 as usize),
+                None => reps.push(a as u32),
             }
-            // Neighbour cells worth visiting along each axis.
-            let k = key(&q);
-            let mut offs = [[0i64; 2]; 3];
-            let mut counts = [1usize; 3];
-            for ax in 0..3 {
-                let inside = q[ax] / cell - k[ax] as f64; // position inside the cell, [0, 1)
-                if inside * cell < tol {
-                    offs[ax][1] = -1;
-                    counts[ax] = 2;
-                } else if (1.0 - inside) * cell <= tol {
-                    offs[ax][1] = 1;
-                    counts[ax] = 2;
-                }
+        }
+        start = end;
+    }
+    for &a in &reps {
+        let (_, i) = order[a as usize];
+        let q = sorted[a as usize];
+        // Neighbour cells worth visiting along each axis.
+        let k = key(&q);
+        let mut offs = [[0i64; 2]; 3];
+        let mut counts = [1usize; 3];
+        for ax in 0..3 {
+            let inside = q[ax] / cell - k[ax] as f64; // position inside the cell, [0, 1)
+            if inside * cell < tol {
+                offs[ax][1] = -1;
+                counts[ax] = 2;
+            } else if (1.0 - inside) * cell <= tol {
+                offs[ax][1] = 1;
+                counts[ax] = 2;
             }
-            for ia in 0..counts[0] {
-                for ib in 0..counts[1] {
-                    for ic in 0..counts[2] {
-                        if ia + ib + ic == 0 {
-                            continue; // its own cell, done above
+        }
+        for ia in 0..counts[0] {
+            for ib in 0..counts[1] {
+                for ic in 0..counts[2] {
+                    if ia + ib + ic == 0 {
+                        continue; // its own cell, done above
+                    }
+                    let other = pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
+                    let from = reps.partition_point(|&r| order[r as usize].0 < other);
+                    for &r in &reps[from..] {
+                        let (key_r, j) = order[r as usize];
+                        if key_r != other {
+                            break;
                         }
-                        let other =
-                            pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
-                        let from = order.partition_point(|e| e.0 < other);
-                        for (b, &(key_j, j)) in order.iter().enumerate().skip(from) {
-                            if key_j != other {
-                                break;
-                            }
-                            if (sorted[b] - q).norm_squared() <= tol2 {
-                                uf.union(i as usize, j as usize);
-                            }
+                        if (sorted[r as usize] - q).norm_squared() <= tol2 {
+                            uf.union(i as usize, j as usize);
                         }
                     }
                 }
             }
         }
-        start = end;
     }
-    drop((order, sorted));
+    drop((order, sorted, reps));
 
     // 4. Number the clusters in order of their first candidate (the union-find keeps the
     // lowest index as the root, and candidates are in order of first appearance).
