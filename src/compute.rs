@@ -297,7 +297,6 @@ pub fn compute_model(
     if mesh.facets.is_empty() {
         return Err(ComputeError::Empty);
     }
-    check_extent(&mesh, sidecar.units.metres())?;
     let mut warnings = Vec::new();
     let prep = prepare(mesh, sidecar, &mut warnings)?;
     let facets = prep.tris.len();
@@ -540,6 +539,7 @@ fn prepare(
                 )
             },
         );
+    check_extent(&lo, &hi, sidecar.units.metres())?;
     let mid = [
         (lo[0] + hi[0]) / 2.0,
         (lo[1] + hi[1]) / 2.0,
@@ -1238,13 +1238,11 @@ fn line_distance(l: &LineOfAction, p: Vec3, d: Vec3) -> f64 {
 /// Refuses coordinates whose squares overflow f64 (beyond about 1e153 m): lengths, areas
 /// and the weld tolerance would be infinite, and topology would report nonsense before
 /// [`check_finite`] could see the loads. Smaller coordinates whose loads overflow are
-/// caught by `check_finite`.
-fn check_extent(mesh: &Mesh, metres: f64) -> Result<(), ComputeError> {
-    let largest = mesh
-        .facets
+/// caught by `check_finite`. `lo` and `hi` are the mesh's bounding box, in mesh units.
+fn check_extent(lo: &[f64; 3], hi: &[f64; 3], metres: f64) -> Result<(), ComputeError> {
+    let largest = lo
         .iter()
-        .flatten()
-        .flatten()
+        .chain(hi)
         .fold(0.0f64, |m, c| m.max(c.abs()))
         * metres;
     // 16: the squared diagonal of a box whose corners reach ±largest on three axes is 12·largest².
