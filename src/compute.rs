@@ -13,7 +13,7 @@ use crate::hydro::{
     self, Frame, LineOfAction, Liquid, LiquidError, NO_SHELL, PartAccum, PartInput, Profile,
     Topology, Tri, Vec3, WetSide, Wetting,
 };
-use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG};
+use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG, is_stale_normal};
 use crate::sidecar::{
     AUTO_FIELD_EXPORT_FACETS, Case, FieldExports, Flotation, Sidecar, Sweep, UnassignedPart,
 };
@@ -503,42 +503,50 @@ fn prepare(
         up: sidecar.up,
     };
     // Min and max are exact, so these parallel passes give the same bits on any thread count.
-    // Stored normals play no part in the loads; the file's health is still reported.
-    let stale = mesh.stale_normals(0..mesh.facets.len());
-    if stale > 0 {
-        warnings.push(format!(
-            "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals and uses the vertex order, but other tools may not"
-        ));
-    }
     let Mesh {
         mut facets,
         parts,
         format,
-        ..
+        stored_normals,
     } = mesh;
-    let (lo, hi) = facets
+    // One pass for the bounding box and the stored normals, which play no part in the
+    // loads but whose disagreement with the winding is reported.
+    let (lo, hi, stale) = facets
         .par_iter()
+        .enumerate()
         .fold(
-            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
-            |(mut lo, mut hi), t| {
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3], 0usize),
+            |(mut lo, mut hi, mut stale), (f, t)| {
                 for p in t {
                     for k in 0..3 {
                         lo[k] = lo[k].min(p[k]);
                         hi[k] = hi[k].max(p[k]);
                     }
                 }
-                (lo, hi)
+                if let Some(n) = &stored_normals
+                    && is_stale_normal(t, &n[f])
+                {
+                    stale += 1;
+                }
+                (lo, hi, stale)
             },
         )
         .reduce(
-            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
-            |(a, b), (c, d)| {
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3], 0),
+            |(a, b, s), (c, d, t)| {
                 (
                     [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
                     [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
+                    s + t,
                 )
             },
         );
+    drop(stored_normals);
+    if stale > 0 {
+        warnings.push(format!(
+            "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals and uses the vertex order, but other tools may not"
+        ));
+    }
     check_extent(&lo, &hi, sidecar.units.metres())?;
     let mid = [
         (lo[0] + hi[0]) / 2.0,
@@ -1240,11 +1248,7 @@ fn line_distance(l: &LineOfAction, p: Vec3, d: Vec3) -> f64 {
 /// [`check_finite`] could see the loads. Smaller coordinates whose loads overflow are
 /// caught by `check_finite`. `lo` and `hi` are the mesh's bounding box, in mesh units.
 fn check_extent(lo: &[f64; 3], hi: &[f64; 3], metres: f64) -> Result<(), ComputeError> {
-    let largest = lo
-        .iter()
-        .chain(hi)
-        .fold(0.0f64, |m, c| m.max(c.abs()))
-        * metres;
+    let largest = lo.iter().chain(hi).fold(0.0f64, |m, c| m.max(c.abs())) * metres;
     // 16: the squared diagonal of a box whose corners reach ±largest on three axes is 12·largest².
     if (16.0 * largest * largest).is_finite() {
         Ok(())
@@ -1292,20 +1296,36 @@ mod tests {
 
     #[test]
     fn coordinates_whose_squares_overflow_are_refused_by_size() {
-        let tri = |c: f64| vec![[[c, 0.0, 0.0], [0.0, c, 0.0], [0.0, 0.0, c]]];
+        let corner = |c: f64| ([0.0, 0.0, 0.0], [c, c, c]);
+        let check = |c: f64, metres: f64| {
+            let (lo, hi) = corner(c);
+            check_extent(&lo, &hi, metres)
+        };
         // 16 · (1e153)² = 1.6e307 is finite; 16 · (1e154)² is not.
-        assert!(check_extent(&Mesh::from_parts(vec![("p", tri(1e153))], Format::Obj), 1.0).is_ok());
-        let err = check_extent(&Mesh::from_parts(vec![("p", tri(1e154))], Format::Obj), 1.0)
-            .expect_err("refused");
+        assert!(check(1e153, 1.0).is_ok());
+        let err = check(1e154, 1.0).expect_err("refused");
         assert!(err.to_string().contains("1e154 m"), "{err}");
         // In metres after the unit: 1e155 mm is 1e152 m.
-        assert!(
-            check_extent(
-                &Mesh::from_parts(vec![("p", tri(1e155))], Format::Obj),
-                0.001
-            )
-            .is_ok()
+        assert!(check(1e155, 0.001).is_ok());
+        // A negative corner counts as much as a positive one.
+        assert!(check_extent(&[-1e154, 0.0, 0.0], &[0.0; 3], 1.0).is_err());
+        // And through compute, which gets the box from the facets.
+        let mesh = Mesh::from_parts(
+            vec![(
+                "p",
+                vec![[[1e154, 0.0, 0.0], [0.0, 1e154, 0.0], [0.0, 0.0, 1e154]]],
+            )],
+            Format::Obj,
         );
+        let side = parse_sidecar(
+            Path::new("p.json"),
+            r#"{"units": "m", "wet_side": "front", "liquid": {"level": 0, "density": 1000}}"#,
+        )
+        .expect("valid");
+        assert!(matches!(
+            compute("p.obj", &mesh, &side),
+            Err(ComputeError::NonFinite { .. })
+        ));
     }
 
     const G: f64 = 9.80665;

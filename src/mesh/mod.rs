@@ -71,6 +71,25 @@ pub struct Mesh {
 /// A stored STL normal more than this far from the normal of its facet's winding is stale.
 pub const STALE_NORMAL_DEG: f64 = 45.0;
 
+/// Whether the stored normal `n` of facet `t` is stale: more than [`STALE_NORMAL_DEG`]
+/// from the right-hand-rule normal of the vertex order. A zero normal means "not given"
+/// (a common export choice) and is not stale; nor is the normal of a facet of no area.
+pub fn is_stale_normal(t: &Facet, n: &[f32; 3]) -> bool {
+    // cos 45°, the limit above; a constant so that the test costs no trigonometry.
+    const COS_LIMIT: f64 = std::f64::consts::FRAC_1_SQRT_2;
+    let d = |i: usize, k: usize| t[i][k] - t[0][k];
+    let a = [
+        d(1, 1) * d(2, 2) - d(1, 2) * d(2, 1),
+        d(1, 2) * d(2, 0) - d(1, 0) * d(2, 2),
+        d(1, 0) * d(2, 1) - d(1, 1) * d(2, 0),
+    ];
+    let n = n.map(f64::from);
+    let dot = a[0] * n[0] + a[1] * n[1] + a[2] * n[2];
+    let la = (a[0] * a[0] + a[1] * a[1] + a[2] * a[2]).sqrt();
+    let ln = (n[0] * n[0] + n[1] * n[1] + n[2] * n[2]).sqrt();
+    ln > 0.0 && la > 0.0 && dot < COS_LIMIT * ln * la
+}
+
 impl Mesh {
     /// How many facets of `range` have a stale stored normal: one more than
     /// [`STALE_NORMAL_DEG`] from the right-hand-rule normal of the facet's vertex order.
@@ -81,23 +100,10 @@ impl Mesh {
         let Some(normals) = &self.stored_normals else {
             return 0;
         };
-        let cos_limit = STALE_NORMAL_DEG.to_radians().cos();
         self.facets[range.clone()]
             .par_iter()
             .zip(&normals[range])
-            .filter(|(t, n)| {
-                let d = |i: usize, k: usize| t[i][k] - t[0][k];
-                let a = [
-                    d(1, 1) * d(2, 2) - d(1, 2) * d(2, 1),
-                    d(1, 2) * d(2, 0) - d(1, 0) * d(2, 2),
-                    d(1, 0) * d(2, 1) - d(1, 1) * d(2, 0),
-                ];
-                let n = n.map(f64::from);
-                let dot = a[0] * n[0] + a[1] * n[1] + a[2] * n[2];
-                let la = (a[0] * a[0] + a[1] * a[1] + a[2] * a[2]).sqrt();
-                let ln = (n[0] * n[0] + n[1] * n[1] + n[2] * n[2]).sqrt();
-                ln > 0.0 && la > 0.0 && dot < cos_limit * ln * la
-            })
+            .filter(|(t, n)| is_stale_normal(t, n))
             .count()
     }
 
