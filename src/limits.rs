@@ -157,12 +157,9 @@ pub enum ReadError {
     TooLarge { len: u64, limit: u64 },
 }
 
-/// Reads a whole file, refusing one larger than `limit` bytes before reading it, and
-/// never holding more than `limit + 1` bytes of one that grows while it is read.
-///
-/// Only regular files are opened: a FIFO or a device named like a mesh would block or never
-/// end, so it is refused from its metadata first.
-pub fn read_capped(path: &Path, limit: u64) -> Result<Vec<u8>, ReadError> {
+/// Opens a regular file of at most `limit` bytes (checked before anything is read);
+/// returns it with its size.
+pub fn open_capped(path: &Path, limit: u64) -> Result<(fs::File, u64), ReadError> {
     let meta = fs::metadata(path).map_err(ReadError::Io)?;
     if !meta.is_file() {
         return Err(ReadError::Io(io::Error::other(if meta.is_dir() {
@@ -176,6 +173,16 @@ pub fn read_capped(path: &Path, limit: u64) -> Result<Vec<u8>, ReadError> {
     if len > limit {
         return Err(ReadError::TooLarge { len, limit });
     }
+    Ok((file, len))
+}
+
+/// Reads a whole file, refusing one larger than `limit` bytes before reading it, and
+/// never holding more than `limit + 1` bytes of one that grows while it is read.
+///
+/// Only regular files are opened: a FIFO or a device named like a mesh would block or never
+/// end, so it is refused from its metadata first.
+pub fn read_capped(path: &Path, limit: u64) -> Result<Vec<u8>, ReadError> {
+    let (file, len) = open_capped(path, limit)?;
     // The size on disk sizes the buffer only after it has passed the cap.
     let mut bytes = Vec::with_capacity(usize::try_from(len).unwrap_or(0));
     file.take(limit.saturating_add(1))

@@ -33,7 +33,7 @@ use rustc_hash::FxHashMap;
 use thiserror::Error;
 
 pub use obj::{read_obj, read_obj_with};
-pub use stl::{read_stl, read_stl_with};
+pub use stl::{BinaryStl, read_stl, read_stl_with};
 
 use crate::limits::Limits;
 

@@ -104,61 +104,109 @@ fn starts_with_solid(bytes: &[u8]) -> bool {
 
 /// Reads a binary STL whose size has been checked to be `84 + 50·n`.
 fn read_binary(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
-    // `as_chunks` is `chunks_exact(50)` with fixed-size arrays: no per-facet allocation
-    // and no bounds checks on the offsets below.
-    let (records, _) = bytes[BINARY_HEADER..].as_chunks::<BINARY_FACET>();
-    let count = records.len();
-    if count == 0 {
-        return Err(MeshError::Empty {
-            path: path.to_path_buf(),
-            format: Format::StlBinary,
-        });
+    let mut builder = BinaryStl::new((bytes.len() - BINARY_HEADER) / BINARY_FACET);
+    builder.push(&bytes[BINARY_HEADER..]);
+    builder.finish(path)
+}
+
+/// A binary STL converted in pieces, so a caller can read the file a block at a time
+/// instead of holding all its bytes: [`BinaryStl::new`] with the facet count from the
+/// header (checked against the file size), [`BinaryStl::push`] with the records in order,
+/// then [`BinaryStl::finish`]. [`read_stl`] pushes the whole file at once.
+pub struct BinaryStl {
+    facets: Vec<Facet>,
+    normals: Vec<[f32; 3]>,
+    /// Facets converted so far.
+    done: usize,
+    /// The first facet with a non-finite coordinate, and the value.
+    first_bad: Option<(usize, f32)>,
+}
+
+impl BinaryStl {
+    /// Bytes of one facet record.
+    pub const RECORD: usize = BINARY_FACET;
+    /// Bytes of the header, facet count included.
+    pub const HEADER: usize = BINARY_HEADER;
+
+    /// Room for `count` facets (the caller has checked the count against the file size).
+    pub fn new(count: usize) -> BinaryStl {
+        BinaryStl {
+            facets: vec![[[0.0; 3]; 3]; count],
+            normals: vec![[0.0; 3]; count],
+            done: 0,
+            first_bad: None,
+        }
     }
-    // Fixed-size chunks over both threads; each facet is converted on its own, so the
-    // result does not depend on the thread count. The first non-finite value is reported.
-    const CHUNK: usize = 8192;
-    let mut facets: Vec<Facet> = vec![[[0.0; 3]; 3]; count];
-    let mut normals: Vec<[f32; 3]> = vec![[0.0; 3]; count];
-    let first_bad = facets
-        .par_chunks_mut(CHUNK)
-        .zip(normals.par_chunks_mut(CHUNK))
-        .zip(records.par_chunks(CHUNK))
-        .enumerate()
-        .filter_map(|(c, ((facets, normals), records))| {
-            let mut bad = None;
-            for (i, ((facet, normal), r)) in facets.iter_mut().zip(normals).zip(records).enumerate()
-            {
-                for (k, vertex) in facet.iter_mut().enumerate() {
-                    for (j, v) in vertex.iter_mut().enumerate() {
-                        let value = f32_at(r, 12 + 12 * k + 4 * j);
-                        if !value.is_finite() && bad.is_none() {
-                            bad = Some((c * CHUNK + i, value));
+
+    /// Converts the next whole records of `bytes` (a multiple of [`Self::RECORD`] bytes,
+    /// at most the facets still missing; anything beyond is ignored).
+    pub fn push(&mut self, bytes: &[u8]) {
+        // Fixed-size chunks over both threads; each facet is converted on its own, so the
+        // result does not depend on the thread count. The first non-finite value is
+        // reported.
+        const CHUNK: usize = 8192;
+        let (records, _) = bytes.as_chunks::<BINARY_FACET>();
+        let n = records.len().min(self.facets.len() - self.done);
+        let start = self.done;
+        let bad = self.facets[start..start + n]
+            .par_chunks_mut(CHUNK)
+            .zip(self.normals[start..start + n].par_chunks_mut(CHUNK))
+            .zip(records[..n].par_chunks(CHUNK))
+            .enumerate()
+            .filter_map(|(c, ((facets, normals), records))| {
+                let mut bad = None;
+                for (i, ((facet, normal), r)) in
+                    facets.iter_mut().zip(normals).zip(records).enumerate()
+                {
+                    for (k, vertex) in facet.iter_mut().enumerate() {
+                        for (j, v) in vertex.iter_mut().enumerate() {
+                            let value = f32_at(r, 12 + 12 * k + 4 * j);
+                            if !value.is_finite() && bad.is_none() {
+                                bad = Some((start + c * CHUNK + i, value));
+                            }
+                            *v = f64::from(value);
                         }
-                        *v = f64::from(value);
                     }
+                    *normal = [f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)];
                 }
-                *normal = [f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)];
-            }
-            bad
-        })
-        .min_by_key(|(i, _)| *i);
-    if let Some((i, value)) = first_bad {
-        return Err(MeshError::NonFiniteBinary {
-            path: path.to_path_buf(),
-            facet: i + 1,
-            count,
-            value,
-        });
+                bad
+            })
+            .min_by_key(|(i, _)| *i);
+        if self.first_bad.is_none() {
+            self.first_bad = bad;
+        }
+        self.done += n;
     }
-    Ok(Mesh {
-        facets,
-        parts: vec![Part {
-            name: stem_name(path),
-            facets: 0..count,
-        }],
-        stored_normals: Some(normals),
-        format: Format::StlBinary,
-    })
+
+    /// The mesh, one part named after the file's stem; an error for a file of no facets
+    /// or with a non-finite coordinate. `path` names the file.
+    pub fn finish(self, path: &Path) -> Result<Mesh, MeshError> {
+        let count = self.facets.len();
+        debug_assert_eq!(self.done, count, "every record pushed");
+        if count == 0 {
+            return Err(MeshError::Empty {
+                path: path.to_path_buf(),
+                format: Format::StlBinary,
+            });
+        }
+        if let Some((i, value)) = self.first_bad {
+            return Err(MeshError::NonFiniteBinary {
+                path: path.to_path_buf(),
+                facet: i + 1,
+                count,
+                value,
+            });
+        }
+        Ok(Mesh {
+            facets: self.facets,
+            parts: vec![Part {
+                name: stem_name(path),
+                facets: 0..count,
+            }],
+            stored_normals: Some(self.normals),
+            format: Format::StlBinary,
+        })
+    }
 }
 
 fn f32_at(record: &[u8; BINARY_FACET], offset: usize) -> f32 {
