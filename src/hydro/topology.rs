@@ -399,11 +399,13 @@ fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, us
     // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
     // most 1.6e5 cells (< 2^21, so the packed keys of real cells never collide).
     let cell = if tol > 0.0 { 64.0 * tol } else { 1.0 };
+    // Positions are relative to the box's lowest corner, so never negative, and the cast
+    // (which truncates) is the floor without a call to `floor`.
     let key = |q: &Vec3| -> [i64; 3] {
         [
-            (q.x / cell).floor() as i64,
-            (q.y / cell).floor() as i64,
-            (q.z / cell).floor() as i64,
+            (q.x / cell) as i64,
+            (q.y / cell) as i64,
+            (q.z / cell) as i64,
         ]
     };
     let mut order: Vec<(u64, u32)> = candidates
@@ -447,6 +449,8 @@ fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, us
         }
         start = end;
     }
+    // The representatives' keys side by side, for the searches below.
+    let rep_keys: Vec<u64> = reps.iter().map(|&r| order[r as usize].0).collect();
     for &a in &reps {
         let (_, i) = order[a as usize];
         let q = sorted[a as usize];
@@ -471,12 +475,12 @@ fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, us
                         continue; // its own cell, done above
                     }
                     let other = pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
-                    let from = reps.partition_point(|&r| order[r as usize].0 < other);
-                    for &r in &reps[from..] {
-                        let (key_r, j) = order[r as usize];
+                    let from = rep_keys.partition_point(|&k| k < other);
+                    for (&r, &key_r) in reps[from..].iter().zip(&rep_keys[from..]) {
                         if key_r != other {
                             break;
                         }
+                        let j = order[r as usize].1;
                         if (sorted[r as usize] - q).norm_squared() <= tol2 {
                             uf.union(i as usize, j as usize);
                         }
@@ -485,7 +489,7 @@ fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, us
             }
         }
     }
-    drop((order, sorted, reps));
+    drop((order, sorted, reps, rep_keys));
 
     // 4. Number the clusters in order of their first candidate (the union-find keeps the
     // lowest index as the root, and candidates are in order of first appearance).
