@@ -58,7 +58,18 @@ pub enum RunError {
 
 /// Reads a file of at most `limit` bytes (see [`crate::limits::read_capped`]).
 fn read_file(path: &Path, limit: u64, sidecar: bool) -> Result<Vec<u8>, RunError> {
-    crate::limits::read_capped(path, limit).map_err(|e| match e {
+    crate::limits::read_capped(path, limit).map_err(|e| read_error(path, e, sidecar))
+}
+
+/// Opens a mesh file as [`crate::limits::read_capped`] would read it: a regular file of at
+/// most `limit` bytes. Returns the file and its size.
+fn open_capped(path: &Path, limit: u64) -> Result<(fs::File, u64), RunError> {
+    crate::limits::open_capped(path, limit).map_err(|e| read_error(path, e, false))
+}
+
+/// A capped read's failure as the error of a run, naming the file.
+fn read_error(path: &Path, e: crate::limits::ReadError, sidecar: bool) -> RunError {
+    match e {
         crate::limits::ReadError::Io(source) => RunError::Read {
             path: path.to_owned(),
             source,
@@ -69,24 +80,7 @@ fn read_file(path: &Path, limit: u64, sidecar: bool) -> Result<Vec<u8>, RunError
             limit,
             sidecar,
         },
-    })
-}
-
-/// Opens a mesh file as [`crate::limits::read_capped`] would read it: a regular file of at
-/// most `limit` bytes. Returns the file and its size.
-fn open_capped(path: &Path, limit: u64) -> Result<(fs::File, u64), RunError> {
-    crate::limits::open_capped(path, limit).map_err(|e| match e {
-        crate::limits::ReadError::Io(source) => RunError::Read {
-            path: path.to_owned(),
-            source,
-        },
-        crate::limits::ReadError::TooLarge { len, limit } => RunError::TooLarge {
-            path: path.to_owned(),
-            len,
-            limit,
-            sidecar: false,
-        },
-    })
+    }
 }
 
 /// The sidecar of a mesh: `<stem>.json` beside it.

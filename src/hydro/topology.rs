@@ -369,32 +369,66 @@ const EXACT_SLOTS: usize = 1 << 14;
 /// those of the neighbour cells within `tol` (union-find).
 /// The sort, not a hash map, keeps every step in cache-friendly order; the result does
 /// not depend on the number of threads.
-fn weld(tris: &[Tri], tol: f64, (origin, _): (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
+fn weld(tris: &[Tri], tol: f64, bbox: (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
+    weld_in_blocks(tris, tol, bbox, WELD_BLOCK)
+}
+
+/// Facets per block of the weld's first step (a constant, so that nothing depends on the
+/// number of threads).
+const WELD_BLOCK: usize = 1 << 18;
+
+/// [`weld`], its first step in blocks of `block` facets.
+fn weld_in_blocks(
+    tris: &[Tri],
+    tol: f64,
+    (origin, _): (Vec3, Vec3),
+    block: usize,
+) -> (Vec<[u32; 3]>, usize) {
     use rayon::prelude::*;
 
-    // 1. Exact repeats. `ids` holds candidate indices until step 4.
-    let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
-    // Each candidate's position relative to `origin`.
-    let mut candidates: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
-    let mut ids: Vec<[u32; 3]> = Vec::with_capacity(tris.len());
-    for t in tris {
-        let mut c = [0u32; 3];
-        for k in 0..3 {
-            let p = &t[k];
-            let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
-            let slot = exact_slot(&bits);
-            c[k] = if exact[slot].0 == bits {
-                exact[slot].1
-            } else {
-                let i = candidates.len() as u32;
-                candidates.push(p - origin);
-                exact[slot] = (bits, i);
-                i
-            };
+    // 1. Exact repeats, block by block on both threads, each block with its own cache; the
+    // candidates of a block follow those of the blocks before it, so they stay in order
+    // of first appearance (a point repeated across blocks is one candidate per block, and
+    // step 3 joins them). `ids` holds candidate indices until step 4.
+    let blocks: Vec<(Vec<[u32; 3]>, Vec<Vec3>)> = tris
+        .par_chunks(block.max(1))
+        .map(|tris| {
+            let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
+            // Each candidate's position relative to `origin`.
+            let mut candidates: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
+            let mut ids: Vec<[u32; 3]> = Vec::with_capacity(tris.len());
+            for t in tris {
+                let mut c = [0u32; 3];
+                for k in 0..3 {
+                    let p = &t[k];
+                    let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+                    let slot = exact_slot(&bits);
+                    c[k] = if exact[slot].0 == bits {
+                        exact[slot].1
+                    } else {
+                        let i = candidates.len() as u32;
+                        candidates.push(p - origin);
+                        exact[slot] = (bits, i);
+                        i
+                    };
+                }
+                ids.push(c);
+            }
+            (ids, candidates)
+        })
+        .collect();
+    let (mut ids, candidates) = if blocks.len() == 1 {
+        blocks.into_iter().next().unwrap_or_default()
+    } else {
+        let mut ids: Vec<[u32; 3]> = Vec::with_capacity(tris.len());
+        let mut candidates: Vec<Vec3> = Vec::with_capacity(blocks.iter().map(|b| b.1.len()).sum());
+        for (block_ids, block_candidates) in blocks {
+            let offset = candidates.len() as u32;
+            ids.extend(block_ids.iter().map(|t| t.map(|i| i + offset)));
+            candidates.extend(block_candidates);
         }
-        ids.push(c);
-    }
-    drop(exact);
+        (ids, candidates)
+    };
 
     // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
     // most 1.6e5 cells (< 2^21, so the packed keys of real cells never collide).
@@ -917,6 +951,7 @@ mod tests {
             let (plain, plain_vertices) = plain_weld(&tris, tol);
             proptest::prop_assert_eq!(&ids, &plain);
             proptest::prop_assert_eq!(plain_vertices, vertices);
+            proptest::prop_assert_eq!(weld_in_blocks(&tris, tol, (lo, hi), 3), (ids.clone(), vertices));
 
             let t = Topology::build(&tris);
             let (open, non_manifold, inconsistent) = naive_edge_counts(&point_ids);
@@ -990,7 +1025,11 @@ mod tests {
             let bbox = bounding_box(mesh.iter().flat_map(|t| t.iter()));
             let tol = WELD_TOLERANCE_REL * (bbox.1 - bbox.0).norm();
             let (ids, n) = weld(&mesh, tol, bbox);
-            assert_eq!((ids, n), plain_weld(&mesh, tol));
+            assert_eq!((ids.clone(), n), plain_weld(&mesh, tol));
+            // In blocks of a few facets: points repeated across blocks are joined again.
+            for block in [1, 7, 100] {
+                assert_eq!(weld_in_blocks(&mesh, tol, bbox, block), (ids.clone(), n));
+            }
             assert_eq!(n, 24 * 12, "every torus vertex once");
         }
     }
