@@ -390,15 +390,16 @@ fn weld_in_blocks(
     // candidates of a block follow those of the blocks before it, so they stay in order
     // of first appearance (a point repeated across blocks is one candidate per block, and
     // step 3 joins them). `ids` holds candidate indices until step 4.
-    let blocks: Vec<(Vec<[u32; 3]>, Vec<Vec3>)> = tris
-        .par_chunks(block.max(1))
-        .map(|tris| {
+    let block = block.max(1);
+    let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.len()];
+    let blocks: Vec<Vec<Vec3>> = tris
+        .par_chunks(block)
+        .zip(ids.par_chunks_mut(block))
+        .map(|(tris, ids)| {
             let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
             // Each candidate's position relative to `origin`.
             let mut candidates: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
-            let mut ids: Vec<[u32; 3]> = Vec::with_capacity(tris.len());
-            for t in tris {
-                let mut c = [0u32; 3];
+            for (t, c) in tris.iter().zip(ids) {
                 for k in 0..3 {
                     let p = &t[k];
                     let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
@@ -412,22 +413,25 @@ fn weld_in_blocks(
                         i
                     };
                 }
-                ids.push(c);
             }
-            (ids, candidates)
+            candidates
         })
         .collect();
-    let (mut ids, candidates) = if blocks.len() == 1 {
+    // Block-local candidate indices become global ones.
+    let mut offsets = Vec::with_capacity(blocks.len());
+    let mut total = 0u32;
+    for b in &blocks {
+        offsets.push(total);
+        total += b.len() as u32;
+    }
+    ids.par_chunks_mut(block)
+        .zip(&offsets)
+        .filter(|(_, o)| **o > 0)
+        .for_each(|(ids, &o)| ids.iter_mut().for_each(|t| *t = t.map(|i| i + o)));
+    let candidates: Vec<Vec3> = if blocks.len() == 1 {
         blocks.into_iter().next().unwrap_or_default()
     } else {
-        let mut ids: Vec<[u32; 3]> = Vec::with_capacity(tris.len());
-        let mut candidates: Vec<Vec3> = Vec::with_capacity(blocks.iter().map(|b| b.1.len()).sum());
-        for (block_ids, block_candidates) in blocks {
-            let offset = candidates.len() as u32;
-            ids.extend(block_ids.iter().map(|t| t.map(|i| i + offset)));
-            candidates.extend(block_candidates);
-        }
-        (ids, candidates)
+        blocks.concat()
     };
 
     // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
