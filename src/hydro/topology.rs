@@ -428,10 +428,11 @@ fn weld_in_blocks(
         .zip(&offsets)
         .filter(|(_, o)| **o > 0)
         .for_each(|(ids, &o)| ids.iter_mut().for_each(|t| *t = t.map(|i| i + o)));
-    let candidates: Vec<Vec3> = if blocks.len() == 1 {
-        blocks.into_iter().next().unwrap_or_default()
-    } else {
-        blocks.concat()
+    let count = total as usize;
+    // Candidate `i` (global index), without joining the blocks' lists into one.
+    let candidate = |i: u32| -> Vec3 {
+        let b = offsets.partition_point(|&o| o <= i) - 1;
+        blocks[b][(i - offsets[b]) as usize]
     };
 
     // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
@@ -446,18 +447,20 @@ fn weld_in_blocks(
             (q.z / cell) as i64,
         ]
     };
-    let mut order: Vec<(u64, u32)> = candidates
+    let mut order: Vec<(u64, u32)> = blocks
         .par_iter()
-        .enumerate()
-        .map(|(i, q)| (pack(key(q)), i as u32))
+        .zip(&offsets)
+        .flat_map_iter(|(b, &o)| {
+            b.iter()
+                .enumerate()
+                .map(move |(i, q)| (pack(key(q)), o + i as u32))
+        })
         .collect();
     order.par_sort_unstable();
     // The positions in sorted order (a gather whose loads overlap), so that the scan below
     // reads memory in order.
-    let sorted: Vec<Vec3> = order
-        .par_iter()
-        .map(|&(_, i)| candidates[i as usize])
-        .collect();
+    let sorted: Vec<Vec3> = order.par_iter().map(|&(_, i)| candidate(i)).collect();
+    drop(blocks);
 
     // 3. Clusters. Within a cell, in candidate order, the first candidate of a cluster is
     // its representative and every later one within `tol` of a representative joins it;
@@ -465,7 +468,7 @@ fn weld_in_blocks(
     // neighbour cells within `tol`. Comparing with representatives only keeps a cell
     // that holds the same point many times (evicted from the cache) linear.
     let tol2 = tol * tol;
-    let mut uf = UnionFind::new(candidates.len());
+    let mut uf = UnionFind::new(count);
     // Positions (in `order`) of the representatives, grouped by cell in key order.
     let mut reps: Vec<u32> = Vec::with_capacity(order.len());
     let mut start = 0;
@@ -531,9 +534,9 @@ fn weld_in_blocks(
 
     // 4. Number the clusters in order of their first candidate (the union-find keeps the
     // lowest index as the root, and candidates are in order of first appearance).
-    let mut vertex = vec![u32::MAX; candidates.len()];
+    let mut vertex = vec![u32::MAX; count];
     let mut vertices = 0u32;
-    for i in 0..candidates.len() {
+    for i in 0..count {
         let r = uf.find(i);
         if vertex[r] == u32::MAX {
             vertex[r] = vertices;
