@@ -563,7 +563,13 @@ fn prepare(
         }
     });
     let tris: Vec<Tri> = bytemuck::cast_vec(facets);
-    let local_box = hydro::par_bounding_box(&tris);
+    // The box of `tris`, from the mesh's box: each internal coordinate is one mesh
+    // coordinate times ±1 and the (positive) scale, less the centre, and each of those steps
+    // keeps the order of values under rounding, so the corners map to corners exactly.
+    let local_box = {
+        let (a, b) = (frame.point_in(lo) - centre, frame.point_in(hi) - centre);
+        (a.inf(&b), a.sup(&b))
+    };
     // The topology is one thread's work; the planes of the parts need only the facets, so
     // the other thread finds them meanwhile.
     let (topology, (part_plane, mesh_plane)) = rayon::join(
@@ -1293,6 +1299,33 @@ mod tests {
     use crate::sidecar::parse_sidecar;
     use approx::assert_relative_eq;
     use std::path::Path;
+
+    #[test]
+    fn the_local_box_derived_from_the_mesh_box_is_that_of_the_facets() {
+        // Off-centre, noisy coordinates in every up axis and unit: the box taken from the
+        // mesh's box must equal, bit for bit, the box of the transformed facets.
+        let tris = shapes::perturb(
+            &shapes::torus([12.3, -4.56, 7.89], 3.0, 1.0, 20, 9),
+            0.05,
+            3,
+        );
+        for up in ["+x", "-x", "+y", "-y", "+z", "-z"] {
+            for units in ["m", "mm", "ft"] {
+                let side = parse_sidecar(
+                    Path::new("t.json"),
+                    &format!(
+                        r#"{{"units": "{units}", "up": "{up}", "liquid": {{"level": 0, "density": 1000}}}}"#
+                    ),
+                )
+                .expect("valid");
+                let mesh = Mesh::from_parts(vec![("t", tris.clone())], Format::Obj);
+                let (_, model) = compute_model("t.obj", mesh, &side).expect("computes");
+                let prep = &model.prep;
+                let facet_box = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+                assert_eq!(prep.local_box, facet_box, "up {up}, units {units}");
+            }
+        }
+    }
 
     #[test]
     fn coordinates_whose_squares_overflow_are_refused_by_size() {

@@ -338,16 +338,6 @@ pub fn bounding_box<'a>(points: impl Iterator<Item = &'a Vec3>) -> (Vec3, Vec3) 
     (lo, hi)
 }
 
-/// [`bounding_box`] of the corners of `tris`, over all threads (min and max are exact,
-/// so the result is the same bits for any thread count).
-pub fn par_bounding_box(tris: &[Tri]) -> (Vec3, Vec3) {
-    use rayon::prelude::*;
-    let empty = || (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY));
-    tris.par_chunks(super::CHUNK)
-        .map(|c| bounding_box(c.iter().flat_map(|t| t.iter())))
-        .reduce(empty, |(a, b), (c, d)| (a.inf(&c), b.sup(&d)))
-}
-
 /// Cells per axis of the weld grid fit in this many bits of a packed key.
 const CELL_BITS: u32 = 21;
 
