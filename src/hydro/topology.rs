@@ -919,8 +919,10 @@ mod tests {
                     Vec3::new(i.sin() * 3.0, (1.7 * i).cos() * 2.0, 0.37 * i)
                 })
                 .collect();
-            let mut tris = Vec::new();
-            let mut point_ids = Vec::new();
+            // A first facet across the pool, so that the box diagonal (and the tolerance
+            // with it) is never set by the jitter alone.
+            let mut tris = vec![[pool[0], pool[5], pool[11]]];
+            let mut point_ids = vec![[0u32, 5, 11]];
             for (f, &(a, b, c, j)) in faces.iter().enumerate() {
                 let corner = |k: usize, id: u32| {
                     // A twentieth of the tolerance at most (the box diagonal is over 4).
