@@ -183,9 +183,26 @@ pub fn open_capped(path: &Path, limit: u64) -> Result<(fs::File, u64), ReadError
 /// end, so it is refused from its metadata first.
 pub fn read_capped(path: &Path, limit: u64) -> Result<Vec<u8>, ReadError> {
     let (file, len) = open_capped(path, limit)?;
+    read_rest_capped(file, len, limit, Vec::new())
+}
+
+/// The rest of an opened file of `len` bytes (see [`open_capped`]) after the bytes already
+/// `read` from it, appended to them; never more than `limit + 1` bytes in all, and refused
+/// when the file has grown past `limit` while it was read.
+pub fn read_rest_capped(
+    file: fs::File,
+    len: u64,
+    limit: u64,
+    read: Vec<u8>,
+) -> Result<Vec<u8>, ReadError> {
     // The size on disk sizes the buffer only after it has passed the cap.
-    let mut bytes = Vec::with_capacity(usize::try_from(len).unwrap_or(0));
-    file.take(limit.saturating_add(1))
+    let mut bytes = read;
+    bytes.reserve(
+        usize::try_from(len)
+            .unwrap_or(0)
+            .saturating_sub(bytes.len()),
+    );
+    file.take(limit.saturating_add(1).saturating_sub(bytes.len() as u64))
         .read_to_end(&mut bytes)
         .map_err(ReadError::Io)?;
     if bytes.len() as u64 > limit {

@@ -160,20 +160,8 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
     let mut header = [0u8; BinaryStl::HEADER];
     if is_stl && len >= header_len {
         file.read_exact(&mut header).map_err(io_err)?;
-        let count = u64::from(u32::from_le_bytes([
-            header[80], header[81], header[82], header[83],
-        ]));
-        if header_len + BinaryStl::RECORD as u64 * count == len {
-            if count > limits.max_facets as u64 {
-                return Err(MeshError::TooManyFacets {
-                    path: path.to_owned(),
-                    count,
-                    limit: limits.max_facets,
-                }
-                .into());
-            }
-            let mut builder = BinaryStl::new(count as usize);
-            let mut left = count as usize * BinaryStl::RECORD;
+        if let Some(mut builder) = BinaryStl::for_file(path, &header, len, limits.max_facets)? {
+            let mut left = (len - header_len) as usize;
             let mut block = vec![0u8; left.min(STREAM_BLOCK)];
             while left > 0 {
                 let n = left.min(STREAM_BLOCK);
@@ -186,22 +174,13 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
         }
     }
     // Not a binary STL by its size: the whole file, within the cap even if it grows.
-    let limit = limits.max_file_bytes;
-    let mut bytes = Vec::with_capacity(usize::try_from(len).unwrap_or(0));
-    if is_stl && len >= header_len {
-        bytes.extend_from_slice(&header);
-    }
-    file.take(limit.saturating_add(1) - bytes.len() as u64)
-        .read_to_end(&mut bytes)
-        .map_err(io_err)?;
-    if bytes.len() as u64 > limit {
-        return Err(RunError::TooLarge {
-            path: path.to_owned(),
-            len: bytes.len() as u64,
-            limit,
-            sidecar: false,
-        });
-    }
+    let read = if is_stl && len >= header_len {
+        header.to_vec()
+    } else {
+        Vec::new()
+    };
+    let bytes = crate::limits::read_rest_capped(file, len, limits.max_file_bytes, read)
+        .map_err(|e| read_error(path, e, false))?;
     Ok(mesh::read_mesh_with(path, &bytes, &limits)?)
 }
 

@@ -377,30 +377,19 @@ pub fn read_mesh(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
 pub fn read_mesh_with(path: &Path, bytes: &[u8], limits: &Limits) -> Result<Mesh, MeshError> {
     match mesh_extension(path) {
         Some(Ext::Stl) => {
-            if let Some(count) = binary_stl_count(bytes)
-                && count > limits.max_facets as u64
-            {
-                return Err(MeshError::TooManyFacets {
-                    path: path.to_path_buf(),
-                    count,
-                    limit: limits.max_facets,
-                });
+            match BinaryStl::for_file(path, bytes, bytes.len() as u64, limits.max_facets)? {
+                Some(mut binary) => {
+                    binary.push(&bytes[BinaryStl::HEADER..]);
+                    binary.finish(path)
+                }
+                None => read_stl_with(path, bytes, limits.max_facets),
             }
-            read_stl_with(path, bytes, limits.max_facets)
         }
         Some(Ext::Obj) => read_obj_with(path, bytes, limits.max_facets),
         None => Err(MeshError::UnknownExtension {
             path: path.to_path_buf(),
         }),
     }
-}
-
-/// The facet count of a file that is a binary STL by its size (`84 + 50·n` bytes, n the
-/// u32 at byte 80), the rule of the STL reader.
-fn binary_stl_count(bytes: &[u8]) -> Option<u64> {
-    let c = bytes.get(80..84)?;
-    let n = u64::from(u32::from_le_bytes([c[0], c[1], c[2], c[3]]));
-    (bytes.len() as u64 == 84 + 50 * n).then_some(n)
 }
 
 enum Ext {
@@ -929,8 +918,8 @@ mod tests {
         assert!(
             err.to_string().contains("big.stl") && err.to_string().contains("WETLOAD_MAX_FACETS")
         );
-        assert_eq!(binary_stl_count(&bytes), Some(3));
-        assert_eq!(binary_stl_count(&bytes[..233]), None);
+        assert_eq!(BinaryStl::count(&bytes, bytes.len() as u64), Some(3));
+        assert_eq!(BinaryStl::count(&bytes[..233], 233), None);
         // At the limit it is read (and refused for its degenerate zero facets elsewhere).
         assert!(read_mesh_with(Path::new("big.stl"), &bytes, &limits(3)).is_ok());
     }

@@ -47,13 +47,11 @@ pub fn read_stl(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
 /// count is checked from its size by [`super::read_mesh_with`] before it is read).
 pub fn read_stl_with(path: &Path, bytes: &[u8], max_facets: usize) -> Result<Mesh, MeshError> {
     let len = bytes.len() as u64;
-    let claimed = bytes
-        .get(80..BINARY_HEADER)
-        .map(|c| u32::from_le_bytes([c[0], c[1], c[2], c[3]]));
-    let expected = claimed.map(|n| BINARY_HEADER as u64 + BINARY_FACET as u64 * u64::from(n));
-    if expected == Some(len) {
+    if BinaryStl::count(bytes, len).is_some() {
         return read_binary(path, bytes);
     }
+    let claimed = claimed_count(bytes);
+    let expected = claimed.map(|n| BINARY_HEADER as u64 + BINARY_FACET as u64 * u64::from(n));
     if !starts_with_solid(bytes) {
         return Err(match (claimed, expected) {
             (Some(claimed), Some(expected)) => MeshError::NotStl {
@@ -122,11 +120,47 @@ pub struct BinaryStl {
     first_bad: Option<(usize, f32)>,
 }
 
+/// The facet count a file's header claims (the u32 at byte 80), if it is that long.
+fn claimed_count(header: &[u8]) -> Option<u32> {
+    header
+        .get(80..BINARY_HEADER)
+        .map(|c| u32::from_le_bytes([c[0], c[1], c[2], c[3]]))
+}
+
 impl BinaryStl {
     /// Bytes of one facet record.
     pub const RECORD: usize = BINARY_FACET;
     /// Bytes of the header, facet count included.
     pub const HEADER: usize = BINARY_HEADER;
+
+    /// The facet count of a file of `len` bytes that starts with `header` (its first
+    /// [`Self::HEADER`] bytes or more), when the file is a binary STL by its size: exactly
+    /// `84 + 50·n` bytes for the `n` its header claims. This is the reader's one rule for
+    /// telling binary from ASCII.
+    pub fn count(header: &[u8], len: u64) -> Option<u64> {
+        let n = u64::from(claimed_count(header)?);
+        (len == BINARY_HEADER as u64 + BINARY_FACET as u64 * n).then_some(n)
+    }
+
+    /// A builder for the file of `len` bytes that starts with `header`, when it is a binary
+    /// STL by its size ([`Self::count`]); `None` when it is not. A count over `max_facets`
+    /// is refused before anything is allocated.
+    pub fn for_file(
+        path: &Path,
+        header: &[u8],
+        len: u64,
+        max_facets: usize,
+    ) -> Result<Option<BinaryStl>, MeshError> {
+        match Self::count(header, len) {
+            None => Ok(None),
+            Some(count) if count > max_facets as u64 => Err(MeshError::TooManyFacets {
+                path: path.to_path_buf(),
+                count,
+                limit: max_facets,
+            }),
+            Some(count) => Ok(Some(BinaryStl::new(count as usize))),
+        }
+    }
 
     /// Room for `count` facets (the caller has checked the count against the file size).
     pub fn new(count: usize) -> BinaryStl {
