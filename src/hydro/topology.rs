@@ -618,21 +618,10 @@ impl EdgeBuckets {
     fn for_each_group(mut self, mut visit: impl FnMut(&[EdgeEntry])) {
         for v in 0..self.start.len() - 1 {
             let bucket = &mut self.entries[self.start[v] as usize..self.start[v + 1] as usize];
-            // Buckets are small (about six uses): a stable insertion sort by higher vertex
-            // keeps the facet order within each edge. A vertex shared by many facets (a
-            // fan's hub, coincident facets) takes the stable O(k log k) sort instead, so a
-            // hostile file cannot make this quadratic.
-            if bucket.len() > 32 {
-                bucket.sort_by_key(|e| e.hi);
-            } else {
-                for i in 1..bucket.len() {
-                    let mut j = i;
-                    while j > 0 && bucket[j - 1].hi > bucket[j].hi {
-                        bucket.swap(j - 1, j);
-                        j -= 1;
-                    }
-                }
-            }
+            // Stable, so the facet order within each edge is kept. Buckets are small (about
+            // six uses), where the standard sort is an insertion sort; a vertex shared by
+            // many facets (a fan's hub, coincident facets) still costs O(k log k).
+            bucket.sort_by_key(|e| e.hi);
             let mut i = 0;
             while i < bucket.len() {
                 let mut j = i + 1;
