@@ -153,9 +153,7 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
         path: path.to_owned(),
         source,
     };
-    let is_stl = path
-        .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("stl"));
+    let is_stl = mesh::is_stl_path(path);
     let header_len = BinaryStl::HEADER as u64;
     let mut header = [0u8; BinaryStl::HEADER];
     if is_stl && len >= header_len {

@@ -361,6 +361,11 @@ pub fn is_mesh_path(path: &Path) -> bool {
     matches!(mesh_extension(path), Some(Ext::Stl | Ext::Obj))
 }
 
+/// Whether `path` names an STL file (by its extension, in any case).
+pub fn is_stl_path(path: &Path) -> bool {
+    matches!(mesh_extension(path), Some(Ext::Stl))
+}
+
 /// Reads a mesh from the file's bytes, choosing the format by the extension of `path`,
 /// under the default [`Limits`].
 ///
