@@ -248,10 +248,8 @@ struct Prepared {
     /// Bounding box of `tris`.
     local_box: (Vec3, Vec3),
     topology: Topology,
-    /// Per part: liquid index (None = dry) and resolved wet side.
-    part_setup: Vec<(Option<usize>, WetSide)>,
-    wetting: Vec<Wetting>,
-    vol_sign: Vec<i8>,
+    /// Which side of every part and facet is wet.
+    wet: Wet,
     /// Per part: closed by itself (volumes reported).
     part_closed: Vec<bool>,
     /// Per part and for the whole mesh: the plane, when planar (internal, local).
@@ -298,7 +296,7 @@ pub fn compute_model(
         return Err(ComputeError::Empty);
     }
     let mut warnings = Vec::new();
-    let prep = prepare(mesh, sidecar, &mut warnings)?;
+    let (prep, early) = prepare(mesh, sidecar, &mut warnings)?;
     let facets = prep.tris.len();
     if sidecar.field_exports == FieldExports::Auto && !sidecar.field_exports.writes(facets) {
         warnings.push(format!(
@@ -307,9 +305,13 @@ pub fn compute_model(
     }
 
     let mut cases = Vec::with_capacity(sidecar.cases.len());
-    for case in &sidecar.cases {
-        let profiles = profiles(sidecar, &case.name, &case.liquids, prep.centre.z)?;
-        let accs = run(&prep, &profiles);
+    let ahead = early.profiles.into_iter().zip(early.accs);
+    for (case, (profiles, ahead)) in sidecar.cases.iter().zip(ahead) {
+        let profiles = profiles?;
+        let accs = match ahead {
+            Some(accs) => accs,
+            None => run(&prep.tris, &prep.parts, &prep.wet, &profiles),
+        };
         let (loads, parts) = assemble(&prep, &accs);
         let sweep = match &sidecar.sweep {
             None => None,
@@ -356,13 +358,13 @@ pub fn compute_model(
             up: sidecar.up.as_str(),
             gravity: sidecar.gravity_m_s2,
             wet_side: sidecar.wet_side.map(WetSide::as_str),
-            closed: prep.topology.closed(),
+            closed: prep.wet.closed,
             facets: prep.tris.len(),
             shells: prep.topology.shells.len(),
             parts: prep
                 .parts
                 .iter()
-                .zip(&prep.part_setup)
+                .zip(&prep.wet.part_setup)
                 .zip(&prep.part_closed)
                 .map(|((p, (liquid, side)), closed)| PartInputs {
                     name: p.name.clone(),
@@ -461,15 +463,6 @@ fn echo(name: &str, l: &Liquid) -> LiquidEcho {
     }
 }
 
-fn profiles(
-    sidecar: &Sidecar,
-    case: &str,
-    liquids: &[Liquid],
-    origin_z: f64,
-) -> Result<Vec<Profile>, ComputeError> {
-    profiles_of(sidecar, case, liquids, origin_z)
-}
-
 /// The liquids of a case as profiles in the local frame (elevations relative to the
 /// local origin; levels are given in metres along the up axis, as is the frame's `z`).
 fn profiles_of(
@@ -493,11 +486,19 @@ fn profiles_of(
         .collect()
 }
 
+/// What [`prepare`] finds for the cases before their loop: each case's liquid profiles
+/// (or the error to report when the case comes), and the loads of the cases it could
+/// compute while the topology was being built (see [`Wet::clean_guess`]).
+struct Early {
+    profiles: Vec<Result<Vec<Profile>, ComputeError>>,
+    accs: Vec<Option<Vec<PartAccum>>>,
+}
+
 fn prepare(
     mesh: Mesh,
     sidecar: &Sidecar,
     warnings: &mut Vec<String>,
-) -> Result<Prepared, ComputeError> {
+) -> Result<(Prepared, Early), ComputeError> {
     let frame = Frame {
         scale_m: sidecar.units.metres(),
         up: sidecar.up,
@@ -570,9 +571,15 @@ fn prepare(
         let (a, b) = (frame.point_in(lo) - centre, frame.point_in(hi) - centre);
         (a.inf(&b), a.sup(&b))
     };
-    // The topology is one thread's work; the planes of the parts need only the facets, so
-    // the other thread finds them meanwhile.
-    let (topology, (part_plane, mesh_plane)) = rayon::join(
+    let profiles: Vec<_> = sidecar
+        .cases
+        .iter()
+        .map(|c| profiles_of(sidecar, &c.name, &c.liquids, centre.z))
+        .collect();
+    // The topology is mostly one thread's work. Meanwhile the other thread finds the
+    // planes of the parts, which need only the facets, and computes the cases on the guess
+    // that the mesh is clean; the guess is kept only if the topology confirms it exactly.
+    let (topology, (part_plane, mesh_plane, guess)) = rayon::join(
         || Topology::build_in_box(&tris, local_box),
         || {
             let part_plane: Vec<Option<hydro::Plane>> = parts
@@ -583,92 +590,28 @@ fn prepare(
                 [one] if parts.len() == 1 => *one,
                 _ => hydro::plane_of(tris.iter()),
             };
-            (part_plane, mesh_plane)
+            let guess = Wet::clean_guess(&parts, sidecar, tris.len()).map(|wet| {
+                let accs: Vec<Option<Vec<PartAccum>>> = profiles
+                    .iter()
+                    .map(|p| p.as_ref().ok().map(|p| run(&tris, &parts, &wet, p)))
+                    .collect();
+                (wet, accs)
+            });
+            (part_plane, mesh_plane, guess)
         },
     );
-    let closed = topology.closed();
-
-    // Wet side and liquid of every part.
-    let mut part_setup = Vec::with_capacity(parts.len());
-    for part in &parts {
-        let liquid = sidecar.part_liquid(&part.name)?;
-        let stated = sidecar.part_wet_side(&part.name);
-        let side = match (stated, closed) {
-            (Some(WetSide::Outside | WetSide::Inside), false) => {
-                return Err(ComputeError::OpenWithClosedSide {
-                    part: part.name.clone(),
-                    open: topology.open_edges,
-                    non_manifold: topology.non_manifold_edges,
-                });
-            }
-            (Some(s), _) => s,
-            (None, true) => WetSide::Outside,
-            (None, false) => {
-                return Err(ComputeError::OpenWithoutSide {
-                    part: part.name.clone(),
-                    open: topology.open_edges,
-                    non_manifold: topology.non_manifold_edges,
-                });
-            }
-        };
-        part_setup.push((liquid, side));
-    }
-
-    // Volumes follow the mesh-level reading: the liquid's space for "inside", else the body.
-    let volume_inside = sidecar.wet_side == Some(WetSide::Inside);
-    let mut wetting = vec![Wetting::Dry; tris.len()];
-    let mut vol_sign = vec![0i8; tris.len()];
-    let outward = |f: usize| {
-        if topology.flip[f] {
-            Wetting::Back
-        } else {
-            Wetting::Front
-        }
+    let wet = Wet::of(&parts, sidecar, &topology)?;
+    let accs = match guess {
+        Some((guessed, accs)) if guessed == wet => accs,
+        _ => vec![None; sidecar.cases.len()],
     };
-    let inward = |f: usize| {
-        if topology.flip[f] {
-            Wetting::Front
-        } else {
-            Wetting::Back
-        }
-    };
-    for (part, (liquid, side)) in parts.iter().zip(&part_setup) {
-        for f in part.facets.clone() {
-            let s = topology.facet_shell[f];
-            let shell = (s != NO_SHELL).then(|| &topology.shells[s as usize]);
-            if closed && let Some(sh) = shell {
-                let counts = if volume_inside {
-                    sh.children == 0
-                } else {
-                    sh.depth == 0
-                };
-                if counts {
-                    vol_sign[f] = if topology.flip[f] { -1 } else { 1 };
-                }
-            }
-            if liquid.is_none() {
-                continue;
-            }
-            wetting[f] = match side {
-                WetSide::Front => Wetting::Front,
-                WetSide::Back => Wetting::Back,
-                WetSide::Outside => match shell {
-                    Some(sh) if sh.depth == 0 => outward(f),
-                    _ => Wetting::Dry,
-                },
-                WetSide::Inside => match shell {
-                    Some(sh) if sh.children == 0 => inward(f),
-                    _ => Wetting::Dry,
-                },
-            };
-        }
-    }
+    let closed = wet.closed;
 
     let part_closed: Vec<bool> = parts
         .iter()
         .map(|p| closed && topology.closed_within(p.facets.clone()))
         .collect();
-    describe_topology(&topology, &part_setup, closed, warnings);
+    describe_topology(&topology, &wet.part_setup, closed, warnings);
     units_hint(sidecar, &lo, &hi, warnings);
 
     let axes = sidecar
@@ -682,7 +625,7 @@ fn prepare(
             )
         })
         .collect();
-    Ok(Prepared {
+    let prepared = Prepared {
         parts,
         format,
         frame,
@@ -691,14 +634,168 @@ fn prepare(
         local_box,
         moment_about: frame.vector_in(sidecar.moment_about_m),
         topology,
-        part_setup,
-        wetting,
-        vol_sign,
+        wet,
         part_closed,
         part_plane,
         mesh_plane,
         axes,
-    })
+    };
+    Ok((prepared, Early { profiles, accs }))
+}
+
+/// Which side of every part and facet is wet: all the integration needs to know of the
+/// topology. Equal values give the same loads, bit for bit.
+#[derive(Debug, PartialEq)]
+struct Wet {
+    /// Every shell closed: volumes are measured.
+    closed: bool,
+    /// Per part: liquid index (None = dry) and resolved wet side.
+    part_setup: Vec<(Option<usize>, WetSide)>,
+    wetting: Vec<Wetting>,
+    /// +1 or −1 for a facet that bounds the measured volume (by its winding), else 0.
+    vol_sign: Vec<i8>,
+}
+
+/// A facet's place in the topology, as far as the wetting needs it.
+#[derive(Clone, Copy)]
+struct Place {
+    /// Its shell, if it has one: (enclosed by no other shell, encloses no other shell).
+    shell: Option<(bool, bool)>,
+    /// Read reversed to face outward (or consistently, for an open shell).
+    flip: bool,
+}
+
+impl Wet {
+    /// The wetting the topology gives.
+    fn of(parts: &[Part], sidecar: &Sidecar, topology: &Topology) -> Result<Wet, ComputeError> {
+        let closed = topology.closed();
+        let open = (topology.open_edges, topology.non_manifold_edges);
+        let part_setup = resolve_sides(parts, sidecar, closed, open)?;
+        let place = |f: usize| {
+            let s = topology.facet_shell[f];
+            Place {
+                shell: (s != NO_SHELL).then(|| {
+                    let sh = &topology.shells[s as usize];
+                    (sh.depth == 0, sh.children == 0)
+                }),
+                flip: topology.flip[f],
+            }
+        };
+        let facets = topology.facet_shell.len();
+        Ok(Wet::with(parts, sidecar, closed, part_setup, facets, place))
+    }
+
+    /// The wetting of a clean mesh, before its topology is known: every facet in a shell
+    /// of its own nesting level, wound outward; closed unless every part states a wet side
+    /// of an open surface (front or back). `None` when the sidecar does not fit the guess.
+    fn clean_guess(parts: &[Part], sidecar: &Sidecar, facets: usize) -> Option<Wet> {
+        let closed = parts.iter().all(|p| {
+            !matches!(
+                sidecar.part_wet_side(&p.name),
+                Some(WetSide::Front | WetSide::Back)
+            )
+        });
+        let part_setup = resolve_sides(parts, sidecar, closed, (0, 0)).ok()?;
+        let clean = Place {
+            shell: Some((true, true)),
+            flip: false,
+        };
+        Some(Wet::with(
+            parts,
+            sidecar,
+            closed,
+            part_setup,
+            facets,
+            |_| clean,
+        ))
+    }
+
+    fn with(
+        parts: &[Part],
+        sidecar: &Sidecar,
+        closed: bool,
+        part_setup: Vec<(Option<usize>, WetSide)>,
+        facets: usize,
+        place: impl Fn(usize) -> Place,
+    ) -> Wet {
+        // Volumes follow the mesh-level reading: the liquid's space for "inside", else
+        // the body.
+        let volume_inside = sidecar.wet_side == Some(WetSide::Inside);
+        let mut wetting = vec![Wetting::Dry; facets];
+        let mut vol_sign = vec![0i8; facets];
+        for (part, (liquid, side)) in parts.iter().zip(&part_setup) {
+            for f in part.facets.clone() {
+                let Place { shell, flip } = place(f);
+                let (outward, inward) = if flip {
+                    (Wetting::Back, Wetting::Front)
+                } else {
+                    (Wetting::Front, Wetting::Back)
+                };
+                if closed && let Some((outermost, innermost)) = shell {
+                    let counts = if volume_inside { innermost } else { outermost };
+                    if counts {
+                        vol_sign[f] = if flip { -1 } else { 1 };
+                    }
+                }
+                if liquid.is_none() {
+                    continue;
+                }
+                wetting[f] = match side {
+                    WetSide::Front => Wetting::Front,
+                    WetSide::Back => Wetting::Back,
+                    WetSide::Outside => match shell {
+                        Some((true, _)) => outward,
+                        _ => Wetting::Dry,
+                    },
+                    WetSide::Inside => match shell {
+                        Some((_, true)) => inward,
+                        _ => Wetting::Dry,
+                    },
+                };
+            }
+        }
+        Wet {
+            closed,
+            part_setup,
+            wetting,
+            vol_sign,
+        }
+    }
+}
+
+/// The wet side and liquid of every part. An open mesh needs a stated front or back;
+/// `open` is its count of (open, non-manifold) edges, for the message.
+fn resolve_sides(
+    parts: &[Part],
+    sidecar: &Sidecar,
+    closed: bool,
+    (open, non_manifold): (usize, usize),
+) -> Result<Vec<(Option<usize>, WetSide)>, ComputeError> {
+    parts
+        .iter()
+        .map(|part| {
+            let liquid = sidecar.part_liquid(&part.name)?;
+            let side = match (sidecar.part_wet_side(&part.name), closed) {
+                (Some(WetSide::Outside | WetSide::Inside), false) => {
+                    return Err(ComputeError::OpenWithClosedSide {
+                        part: part.name.clone(),
+                        open,
+                        non_manifold,
+                    });
+                }
+                (Some(s), _) => s,
+                (None, true) => WetSide::Outside,
+                (None, false) => {
+                    return Err(ComputeError::OpenWithoutSide {
+                        part: part.name.clone(),
+                        open,
+                        non_manifold,
+                    });
+                }
+            };
+            Ok((liquid, side))
+        })
+        .collect()
 }
 
 fn describe_topology(
@@ -856,12 +953,12 @@ impl Model {
         let out = |v: Vec3| prep.frame.vector_out(v);
         let mut pieces = Vec::new();
         let mut facets = Vec::with_capacity(prep.tris.len());
-        for (pi, (part, (liquid, _))) in prep.parts.iter().zip(&prep.part_setup).enumerate() {
+        for (pi, (part, (liquid, _))) in prep.parts.iter().zip(&prep.wet.part_setup).enumerate() {
             let profile = liquid.map(|i| &profiles[i]);
             let planes = hydro::part_planes(profile, None);
             for f in part.facets.clone() {
                 let t = &prep.tris[f];
-                let wet = prep.wetting[f];
+                let wet = prep.wet.wetting[f];
                 let side = match wet {
                     Wetting::Front => 1.0,
                     Wetting::Back => -1.0,
@@ -927,12 +1024,11 @@ impl Model {
     }
 }
 
-fn run(prep: &Prepared, profiles: &[Profile]) -> Vec<PartAccum> {
-    let closed = prep.topology.closed();
-    let inputs: Vec<PartInput<'_>> = prep
-        .parts
+fn run(tris: &[Tri], parts: &[Part], wet: &Wet, profiles: &[Profile]) -> Vec<PartAccum> {
+    let closed = wet.closed;
+    let inputs: Vec<PartInput<'_>> = parts
         .iter()
-        .zip(&prep.part_setup)
+        .zip(&wet.part_setup)
         .map(|(p, (liquid, _))| {
             let profile = liquid.map(|i| &profiles[i]);
             // Volumes are measured below the part's own liquid, or the first liquid's.
@@ -944,7 +1040,7 @@ fn run(prep: &Prepared, profiles: &[Profile]) -> Vec<PartAccum> {
             }
         })
         .collect();
-    hydro::integrate(&prep.tris, &inputs, &prep.wetting, &prep.vol_sign)
+    hydro::integrate(tris, &inputs, &wet.wetting, &wet.vol_sign)
 }
 
 /// The steps of a level sweep in one case: the parts the swept liquid does not reach
@@ -956,10 +1052,10 @@ fn sweep_steps(
     sw: &Sweep,
     accs: &[PartAccum],
 ) -> Result<Vec<SweepStep>, ComputeError> {
-    let closed = prep.topology.closed();
+    let closed = prep.wet.closed;
     let mut fixed = PartAccum::default();
     let mut parts = Vec::new();
-    for (i, (p, (liquid, _))) in prep.parts.iter().zip(&prep.part_setup).enumerate() {
+    for (i, (p, (liquid, _))) in prep.parts.iter().zip(&prep.wet.part_setup).enumerate() {
         let wet = *liquid == Some(sw.liquid);
         // Volumes are measured below the part's own liquid, or the first one (see `run`).
         let volume = closed && liquid.unwrap_or(0) == sw.liquid;
@@ -982,8 +1078,8 @@ fn sweep_steps(
     let sums = hydro::sweep(
         &prep.tris,
         &parts,
-        &prep.wetting,
-        &prep.vol_sign,
+        &prep.wet.wetting,
+        &prep.wet.vol_sign,
         &swept,
         &levels,
     )
@@ -1143,12 +1239,7 @@ fn total_of(accs: &[PartAccum]) -> PartAccum {
 
 fn assemble(prep: &Prepared, accs: &[PartAccum]) -> (Loads, Vec<PartResult>) {
     let total = total_of(accs);
-    let loads = loads_of(
-        prep,
-        &total,
-        prep.topology.closed(),
-        prep.mesh_plane.as_ref(),
-    );
+    let loads = loads_of(prep, &total, prep.wet.closed, prep.mesh_plane.as_ref());
     let parts = prep
         .parts
         .iter()
@@ -1423,6 +1514,50 @@ mod tests {
             }
             assert_relative_eq!(a.uplift, b.uplift, max_relative = 1e-12);
             assert!(!other.warnings.is_empty(), "the repair is reported");
+        }
+    }
+
+    #[test]
+    fn the_clean_guess_holds_exactly_where_the_topology_confirms_it() {
+        // (mesh, sidecar, whether the loads computed during the topology are kept)
+        let mut void = shapes::box_solid([-0.5, -0.5, 0.5], [0.5, 0.5, 1.5], 1);
+        void = shapes::reverse_winding(&void);
+        let plate = shapes::rectangle([0.0, 0.0, 0.0], [2.0, 0.0, 0.0], [0.0, 0.0, 1.0], 3, 2);
+        let mut one_flipped = block();
+        one_flipped[5] = [one_flipped[5][0], one_flipped[5][2], one_flipped[5][1]];
+        let water = r#""liquid": {"level": 1.0, "density": 1000}"#;
+        let outside = format!(r#"{{"units": "m", {water}}}"#);
+        let front = format!(r#"{{"units": "m", "wet_side": "front", {water}}}"#);
+        let inside = format!(r#"{{"units": "m", "wet_side": "inside", {water}}}"#);
+        let cases = [
+            (vec![("b", block())], &outside, true),
+            (vec![("b", block())], &inside, true),
+            (
+                vec![("b", shapes::reverse_winding(&block()))],
+                &outside,
+                false,
+            ),
+            (vec![("b", one_flipped)], &outside, false),
+            (vec![("outer", block()), ("void", void)], &outside, false),
+            (vec![("p", plate.clone())], &front, true),
+            // A closed mesh with a side for open surfaces: guessed open, found closed.
+            (vec![("b", block())], &front, false),
+            (
+                vec![
+                    ("a", plate.clone()),
+                    ("b", shapes::translate(&plate, [0.0, 3.0, 0.0])),
+                ],
+                &front,
+                true,
+            ),
+        ];
+        for (i, (parts, json, holds)) in cases.into_iter().enumerate() {
+            let m = mesh(parts);
+            let s = side(json);
+            let tris: Vec<Tri> = m.facets.iter().map(|t| t.map(Vec3::from)).collect();
+            let found = Wet::of(&m.parts, &s, &Topology::build(&tris)).expect("resolves");
+            let guess = Wet::clean_guess(&m.parts, &s, tris.len()).expect("fits the guess");
+            assert_eq!(guess == found, holds, "case {i}");
         }
     }
 
