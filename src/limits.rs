@@ -17,7 +17,7 @@
 //! | variable | meaning | default |
 //! |---|---|---|
 //! | `WETLOAD_MAX_FILE_SIZE` | largest mesh file read, bytes; a suffix `K`, `M`, `G` (or `KiB`, `MiB`, `GiB`) means powers of 1024 | 4 GiB |
-//! | `WETLOAD_MAX_FACETS` | most facets a mesh may have (after polygons are triangulated) | 50 000 000 |
+//! | `WETLOAD_MAX_FACETS` | most facets a mesh may have (after polygons are triangulated), at most [`FACETS_CEILING`] | 50 000 000 |
 //!
 //! A value that cannot be read is a usage error (exit status 2) naming the variable.
 
@@ -33,6 +33,10 @@ pub const DEFAULT_MAX_FILE_BYTES: u64 = 4 << 30;
 
 /// Default cap on the facets of one mesh: 50 million.
 pub const DEFAULT_MAX_FACETS: usize = 50_000_000;
+
+/// The largest facet cap that may be set: 2^28 (268 million facets, a 13 GB binary
+/// STL). The topology numbers facets and corners in 32 bits with room for flag bits.
+pub const FACETS_CEILING: usize = 1 << 28;
 
 /// Cap on a sidecar's size: 16 MiB, thousands of times a large hand-written sidecar.
 pub const MAX_SIDECAR_BYTES: u64 = 16 << 20;
@@ -65,7 +69,7 @@ impl Default for Limits {
 #[derive(Debug, Error, Clone, PartialEq, Eq)]
 #[error(
     "{variable}={value:?} cannot be used: give a whole number greater than 0{}",
-    if *.variable == ENV_MAX_FILE_SIZE { " of bytes, optionally with K, M or G (powers of 1024), e.g. 8G" } else { ", e.g. 100000000" }
+    if *.variable == ENV_MAX_FILE_SIZE { " of bytes, optionally with K, M or G (powers of 1024), e.g. 8G" } else { " and at most 268435456, e.g. 100000000" }
 )]
 pub struct LimitsError {
     pub variable: &'static str,
@@ -97,7 +101,7 @@ impl Limits {
                 .replace('_', "")
                 .parse::<usize>()
                 .ok()
-                .filter(|&n| n > 0)
+                .filter(|&n| n > 0 && n <= FACETS_CEILING)
                 .ok_or(LimitsError {
                     variable: ENV_MAX_FACETS,
                     value,
@@ -252,6 +256,11 @@ mod tests {
         );
         let e = Limits::from_values(None, Some("0".into())).expect_err("refused");
         assert!(e.to_string().contains("WETLOAD_MAX_FACETS"), "{e}");
+        let top = FACETS_CEILING.to_string();
+        assert!(Limits::from_values(None, Some(top.clone())).is_ok());
+        let e = Limits::from_values(None, Some(format!("{top}1"))).expect_err("refused");
+        assert!(e.to_string().contains("at most 268435456"), "{e}");
+        assert_eq!(FACETS_CEILING, 268_435_456);
     }
 
     #[test]

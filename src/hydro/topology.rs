@@ -11,6 +11,8 @@
 //! It does not decide what the liquid does with any of this; the caller maps shells and
 //! wet sides to per-facet wetting.
 
+use std::sync::atomic::{AtomicU32, Ordering};
+
 use super::{Tri, Vec3};
 
 /// Weld tolerance for topology, relative to the bounding-box diagonal (pinned).
@@ -135,64 +137,39 @@ impl Topology {
         }
         let degenerate_facets = defects.len();
 
-        // Directed edges bucketed by their lower vertex (a counting sort, stable in facet
-        // order), then grouped by the higher vertex within each bucket.
-        let edges = EdgeBuckets::new(&ids, &degenerate, vertices);
-
-        let mut uf = UnionFind::new(n);
-        // Manifold neighbours: other facet << 1 | (same direction as stored).
-        let mut adj: Vec<[u32; 3]> = vec![[u32::MAX; 3]; n];
-        let mut adj_len = vec![0u8; n];
+        // The facets around every vertex (a counting sort, in facet order), then each
+        // vertex's edges to higher vertices grouped by that vertex: both in ranges of
+        // vertices on all threads.
+        let around = Incidence::new(&ids, &degenerate, vertices);
+        let edges = around.edges(&ids);
+        drop(around);
+        let EdgeFindings {
+            open_edges,
+            non_manifold_edges,
+            inconsistent_edges,
+            findings: mut groups,
+            bad,
+            joins,
+        } = edges.findings;
+        let adj = edges.neighbours;
         let mut bad_facet = vec![false; n]; // touches an open or non-manifold edge
-        let (mut open_edges, mut non_manifold_edges, mut inconsistent_edges) = (0, 0, 0);
-        let mut groups: Vec<(Defect, u32)> = Vec::new();
-        edges.for_each_group(|group| match group.len() {
-            1 => {
-                open_edges += 1;
-                let f = group[0].facet();
-                bad_facet[f as usize] = true;
-                groups.push((Defect::OpenEdge, f));
-            }
-            2 => {
-                let (f, g) = (group[0].facet(), group[1].facet());
-                let same = group[0].forward() == group[1].forward();
-                if same {
-                    inconsistent_edges += 1;
-                    groups.push((Defect::InconsistentEdge, f));
-                }
-                uf.union(f as usize, g as usize);
-                if f == g {
-                    // A facet meeting itself (a folded sliver) cannot be manifold.
-                    bad_facet[f as usize] = true;
-                } else {
-                    for (a, b) in [(f, g), (g, f)] {
-                        let k = adj_len[a as usize] as usize;
-                        if k < 3 {
-                            adj[a as usize][k] = (b << 1) | u32::from(same);
-                            adj_len[a as usize] += 1;
-                        }
-                    }
-                }
-            }
-            _ => {
-                non_manifold_edges += 1;
-                let f0 = group[0].facet();
-                groups.push((Defect::NonManifoldEdge, f0));
-                for e in group {
-                    bad_facet[e.facet() as usize] = true;
-                    uf.union(f0 as usize, e.facet() as usize);
-                }
-            }
-        });
+        for f in bad {
+            bad_facet[f as usize] = true;
+        }
 
         // Duplicate facets. Two facets with the same three vertices share all three edges:
         // when every edge is manifold, they are each other's only neighbours; otherwise
         // compare the sorted vertex triples of all facets.
         let duplicates = if non_manifold_edges == 0 {
+            use rayon::prelude::*;
             (0..n)
+                .into_par_iter()
                 .filter(|&f| {
-                    let g = adj[f][0] >> 1;
-                    adj_len[f] == 3 && (g as usize) < f && adj[f].iter().all(|&a| a >> 1 == g)
+                    let a = adj.of(f);
+                    let g = a[0] >> 1;
+                    a[0] != NO_NEIGHBOUR
+                        && (g as usize) < f
+                        && a.iter().all(|&x| x != NO_NEIGHBOUR && x >> 1 == g)
                 })
                 .map(|f| f as u32)
                 .collect()
@@ -205,69 +182,63 @@ impl Topology {
         // Edge findings follow, ordered by edge as found (lower vertex, then higher).
         defects.append(&mut groups);
 
-        // Shell numbering in order of first facet.
-        let mut root_shell: Vec<u32> = vec![NO_SHELL; n];
+        // Shells and winding in one flood fill over the manifold edges: the facets it
+        // reaches from the lowest facet not yet reached are one piece, and a neighbour
+        // across an edge traversed in the same direction must be read reversed relative
+        // to this facet. Pieces joined at non-manifold edges are one shell.
         let mut facet_shell = vec![NO_SHELL; n];
-        let mut shells: Vec<ShellInfo> = Vec::new();
-        for f in 0..n {
-            if degenerate[f] {
-                continue;
-            }
-            let r = uf.find(f);
-            if root_shell[r] == NO_SHELL {
-                root_shell[r] = shells.len() as u32;
-                shells.push(ShellInfo {
-                    facets: 0,
-                    facet_span: (f, f),
-                    closed: true,
-                    orientable: true,
-                    volume: 0.0,
-                    inverted: false,
-                    flipped_facets: 0,
-                    depth: 0,
-                    children: 0,
-                });
-            }
-            let s = root_shell[r];
-            facet_shell[f] = s;
-            let sh = &mut shells[s as usize];
-            sh.facets += 1;
-            sh.facet_span.1 = f;
-            if bad_facet[f] {
-                sh.closed = false;
-            }
-        }
-
-        // Flood fill: a neighbour across a manifold edge traversed in the same direction
-        // must be read reversed relative to this facet.
         let mut flip = vec![false; n];
-        let mut seen = vec![false; n];
+        let mut shells: Vec<ShellInfo> = Vec::new();
         let mut queue: Vec<u32> = Vec::new();
         for f in 0..n {
-            if degenerate[f] || seen[f] {
+            if degenerate[f] || facet_shell[f] != NO_SHELL {
                 continue;
             }
-            seen[f] = true;
+            let piece = shells.len() as u32;
+            let mut sh = ShellInfo {
+                facets: 0,
+                facet_span: (f, f),
+                closed: true,
+                orientable: true,
+                volume: 0.0,
+                inverted: false,
+                flipped_facets: 0,
+                depth: 0,
+                children: 0,
+            };
+            facet_shell[f] = piece;
             queue.clear();
             queue.push(f as u32);
             let mut head = 0;
             while head < queue.len() {
                 let c = queue[head] as usize;
                 head += 1;
-                for &a in &adj[c][..adj_len[c] as usize] {
+                sh.facets += 1;
+                sh.facet_span.1 = sh.facet_span.1.max(c);
+                if bad_facet[c] {
+                    sh.closed = false;
+                }
+                for a in adj.of(c) {
+                    if a == NO_NEIGHBOUR {
+                        continue;
+                    }
                     let (g, same) = ((a >> 1) as usize, a & 1 == 1);
                     let want = flip[c] ^ same;
-                    if !seen[g] {
-                        seen[g] = true;
+                    if facet_shell[g] == NO_SHELL {
+                        facet_shell[g] = piece;
                         flip[g] = want;
                         queue.push(g as u32);
                     } else if flip[g] != want {
-                        let sh = &mut shells[facet_shell[c] as usize];
                         sh.orientable = false;
                         sh.closed = false;
                     }
                 }
             }
+            shells.push(sh);
+        }
+        drop((adj, queue, bad_facet));
+        if !joins.is_empty() {
+            shells = join_pieces(shells, &joins, &mut facet_shell);
         }
 
         // Signed volume per shell about the box centre (no cancellation far from origin).
@@ -382,14 +353,16 @@ fn weld_in_blocks(
     // step 3 joins them). `ids` holds candidate indices until step 4.
     let block = block.max(1);
     let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.len()];
-    let blocks: Vec<Vec<Vec3>> = tris
+    // Each candidate's corner (3 × facet + corner), relative to `origin` its position.
+    let corner = |c: u32| tris[c as usize / 3][c as usize % 3] - origin;
+    let blocks: Vec<Vec<u32>> = tris
         .par_chunks(block)
         .zip(ids.par_chunks_mut(block))
-        .map(|(tris, ids)| {
+        .enumerate()
+        .map(|(b, (tris, ids))| {
             let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
-            // Each candidate's position relative to `origin`.
-            let mut candidates: Vec<Vec3> = Vec::with_capacity(tris.len() / 2 + 16);
-            for (t, c) in tris.iter().zip(ids) {
+            let mut candidates: Vec<u32> = Vec::with_capacity(tris.len() / 2 + 16);
+            for (f, (t, c)) in tris.iter().zip(ids).enumerate() {
                 for k in 0..3 {
                     let p = &t[k];
                     let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
@@ -398,7 +371,7 @@ fn weld_in_blocks(
                         exact[slot].1
                     } else {
                         let i = candidates.len() as u32;
-                        candidates.push(p - origin);
+                        candidates.push((3 * (b * block + f) + k) as u32);
                         exact[slot] = (bits, i);
                         i
                     };
@@ -419,11 +392,6 @@ fn weld_in_blocks(
         .filter(|(_, o)| **o > 0)
         .for_each(|(ids, &o)| ids.iter_mut().for_each(|t| *t = t.map(|i| i + o)));
     let count = total as usize;
-    // Candidate `i` (global index), without joining the blocks' lists into one.
-    let candidate = |i: u32| -> Vec3 {
-        let b = offsets.partition_point(|&o| o <= i) - 1;
-        blocks[b][(i - offsets[b]) as usize]
-    };
 
     // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
     // most 1.6e5 cells (< 2^21, so the packed keys of real cells never collide).
@@ -437,20 +405,36 @@ fn weld_in_blocks(
             (q.z / cell) as i64,
         ]
     };
-    let mut order: Vec<(u64, u32)> = blocks
+    // Whether a point lies within `tol` of a face of its cell `k` along axis `ax`: -1
+    // (the lower face), 1 (the upper one) or 0.
+    let near_face = |q: &Vec3, k: &[i64; 3], ax: usize| -> i64 {
+        let inside = q[ax] / cell - k[ax] as f64; // position inside the cell, [0, 1)
+        if inside * cell < tol {
+            -1
+        } else if (1.0 - inside) * cell <= tol {
+            1
+        } else {
+            0
+        }
+    };
+    // (cell, candidate, its corner with [`NEAR_FACE`] set when the point lies that close
+    // to a face of its cell): the candidate breaks ties, so the order is unique.
+    let mut order: Vec<(u64, u32, u32)> = blocks
         .par_iter()
         .zip(&offsets)
         .flat_map_iter(|(b, &o)| {
-            b.iter()
-                .enumerate()
-                .map(move |(i, q)| (pack(key(q)), o + i as u32))
+            b.iter().enumerate().map(move |(i, &c)| {
+                let q = corner(c);
+                let k = key(&q);
+                let near = (0..3).any(|ax| near_face(&q, &k, ax) != 0);
+                (pack(k), o + i as u32, c | if near { NEAR_FACE } else { 0 })
+            })
         })
         .collect();
-    order.par_sort_unstable();
-    // The positions in sorted order (a gather whose loads overlap), so that the scan below
-    // reads memory in order.
-    let sorted: Vec<Vec3> = order.par_iter().map(|&(_, i)| candidate(i)).collect();
     drop(blocks);
+    order.par_sort_unstable();
+    // The position of the candidate at `a` in `order`.
+    let at = |a: usize| corner(order[a].2 & !NEAR_FACE);
 
     // 3. Clusters. Within a cell, in candidate order, the first candidate of a cluster is
     // its representative and every later one within `tol` of a representative joins it;
@@ -461,21 +445,32 @@ fn weld_in_blocks(
     let mut uf = UnionFind::new(count);
     // Positions (in `order`) of the representatives, grouped by cell in key order.
     let mut reps: Vec<u32> = Vec::with_capacity(order.len());
+    // The positions of the current cell's representatives.
+    let mut cell_reps: Vec<(Vec3, u32)> = Vec::new();
     let mut start = 0;
     while start < order.len() {
         let mut end = start + 1;
         while end < order.len() && order[end].0 == order[start].0 {
             end += 1;
         }
-        let first_rep = reps.len();
+        if end == start + 1 {
+            // Alone in its cell (the rule): a representative, its position not needed.
+            reps.push(start as u32);
+            start = end;
+            continue;
+        }
+        cell_reps.clear();
         for a in start..end {
-            let q = sorted[a];
-            match reps[first_rep..]
+            let q = at(a);
+            match cell_reps
                 .iter()
-                .find(|&&r| (sorted[r as usize] - q).norm_squared() <= tol2)
+                .find(|(p, _)| (p - q).norm_squared() <= tol2)
             {
-                Some(&r) => uf.union(order[a].1 as usize, order[r as usize].1 as usize),
-                None => reps.push(a as u32),
+                Some(&(_, r)) => uf.union(order[a].1 as usize, order[r as usize].1 as usize),
+                None => {
+                    reps.push(a as u32);
+                    cell_reps.push((q, a as u32));
+                }
             }
         }
         start = end;
@@ -483,19 +478,19 @@ fn weld_in_blocks(
     // The representatives' keys side by side, for the searches below.
     let rep_keys: Vec<u64> = reps.iter().map(|&r| order[r as usize].0).collect();
     for &a in &reps {
-        let (_, i) = order[a as usize];
-        let q = sorted[a as usize];
+        let (_, i, c) = order[a as usize];
+        if c & NEAR_FACE == 0 {
+            continue; // nothing in another cell is within `tol`
+        }
+        let q = at(a as usize);
         // Neighbour cells worth visiting along each axis.
         let k = key(&q);
         let mut offs = [[0i64; 2]; 3];
         let mut counts = [1usize; 3];
         for ax in 0..3 {
-            let inside = q[ax] / cell - k[ax] as f64; // position inside the cell, [0, 1)
-            if inside * cell < tol {
-                offs[ax][1] = -1;
-                counts[ax] = 2;
-            } else if (1.0 - inside) * cell <= tol {
-                offs[ax][1] = 1;
+            let side = near_face(&q, &k, ax);
+            if side != 0 {
+                offs[ax][1] = side;
                 counts[ax] = 2;
             }
         }
@@ -512,7 +507,7 @@ fn weld_in_blocks(
                             break;
                         }
                         let j = order[r as usize].1;
-                        if (sorted[r as usize] - q).norm_squared() <= tol2 {
+                        if (at(r as usize) - q).norm_squared() <= tol2 {
                             uf.union(i as usize, j as usize);
                         }
                     }
@@ -520,7 +515,7 @@ fn weld_in_blocks(
             }
         }
     }
-    drop((order, sorted, reps, rep_keys));
+    drop((order, reps, rep_keys));
 
     // 4. Number the clusters in order of their first candidate (the union-find keeps the
     // lowest index as the root, and candidates are in order of first appearance).
@@ -539,6 +534,10 @@ fn weld_in_blocks(
     (ids, vertices as usize)
 }
 
+/// Marks a corner index in the weld's sort: the point lies within the tolerance of a
+/// face of its cell. Corner indices stay below 3 × [`crate::limits::FACETS_CEILING`] < 2^30.
+const NEAR_FACE: u32 = 1 << 31;
+
 /// A cell's three indices packed into one key, [`CELL_BITS`] bits each.
 fn pack(k: [i64; 3]) -> u64 {
     let m = (1u64 << CELL_BITS) - 1;
@@ -552,87 +551,314 @@ fn exact_slot(bits: &[u64; 3]) -> usize {
     (h.wrapping_mul(K) >> (64 - EXACT_SLOTS.trailing_zeros())) as usize
 }
 
-/// One directed edge in its lower vertex's bucket: the higher vertex, and the facet with
-/// the direction bit (set when the facet runs from the lower vertex to the higher).
-#[derive(Clone, Copy)]
-struct EdgeEntry {
-    hi: u32,
-    facet_dir: u32,
+/// No neighbour across a facet's edge (an open or non-manifold edge).
+const NO_NEIGHBOUR: u32 = u32::MAX;
+
+/// Vertex ranges, one per thread, for the steps whose every range reads all the facets
+/// and writes only its own vertices' part. The results do not depend on the split.
+fn vertex_ranges(vertices: usize) -> Vec<std::ops::Range<u32>> {
+    let parts = if vertices < 1 << 14 {
+        1
+    } else {
+        rayon::current_num_threads().max(1)
+    };
+    let step = vertices.div_ceil(parts).max(1);
+    (0..parts)
+        .map(|i| ((i * step).min(vertices) as u32)..(((i + 1) * step).min(vertices) as u32))
+        .collect()
 }
 
-impl EdgeEntry {
-    fn facet(self) -> u32 {
-        self.facet_dir >> 1
+/// `s` cut into consecutive pieces of the given lengths (which sum to its length).
+fn split_lengths<T>(mut s: &mut [T], lengths: impl Iterator<Item = usize>) -> Vec<&mut [T]> {
+    let mut out = Vec::new();
+    for len in lengths {
+        let (head, tail) = std::mem::take(&mut s).split_at_mut(len);
+        out.push(head);
+        s = tail;
     }
-    fn forward(self) -> bool {
-        self.facet_dir & 1 == 1
-    }
+    out
 }
 
-/// Every directed edge of the non-degenerate facets, bucketed by lower vertex.
-struct EdgeBuckets {
-    /// `start[v]..start[v + 1]` is vertex v's bucket in `entries`.
-    start: Vec<u32>,
-    entries: Vec<EdgeEntry>,
+/// The non-degenerate facets around every vertex, each vertex's in facet order.
+struct Incidence {
+    /// Where each vertex's facets end in `facets` (and the next vertex's begin).
+    end: Vec<u32>,
+    facets: Vec<u32>,
+    ranges: Vec<std::ops::Range<u32>>,
 }
 
-impl EdgeBuckets {
-    fn new(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize) -> EdgeBuckets {
-        let mut start = vec![0u32; vertices + 1];
-        for (t, _) in ids.iter().zip(degenerate).filter(|(_, d)| !**d) {
-            for (u, v) in [(t[0], t[1]), (t[1], t[2]), (t[2], t[0])] {
-                start[u.min(v) as usize + 1] += 1;
-            }
-        }
-        for v in 0..vertices {
-            start[v + 1] += start[v];
-        }
-        let mut fill = start.clone();
-        let mut entries = vec![
-            EdgeEntry {
-                hi: 0,
-                facet_dir: 0
-            };
-            start[vertices] as usize
-        ];
-        for (f, (t, _)) in ids
-            .iter()
-            .zip(degenerate)
-            .enumerate()
-            .filter(|(_, (_, d))| !**d)
-        {
-            for (u, v) in [(t[0], t[1]), (t[1], t[2]), (t[2], t[0])] {
-                let lo = u.min(v) as usize;
-                entries[fill[lo] as usize] = EdgeEntry {
-                    hi: u.max(v),
-                    facet_dir: ((f as u32) << 1) | u32::from(u < v),
-                };
-                fill[lo] += 1;
-            }
-        }
-        EdgeBuckets { start, entries }
+impl Incidence {
+    /// A counting sort of the facets' corners by vertex, each range of vertices on a
+    /// thread of its own.
+    fn new(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize) -> Incidence {
+        Incidence::in_ranges(ids, degenerate, vertices, vertex_ranges(vertices))
     }
 
-    /// Calls `visit` with each undirected edge's uses, in order of (lower, higher) vertex,
-    /// the uses in facet order.
-    fn for_each_group(mut self, mut visit: impl FnMut(&[EdgeEntry])) {
-        for v in 0..self.start.len() - 1 {
-            let bucket = &mut self.entries[self.start[v] as usize..self.start[v + 1] as usize];
-            // Stable, so the facet order within each edge is kept. Buckets are small (about
-            // six uses), where the standard sort is an insertion sort; a vertex shared by
-            // many facets (a fan's hub, coincident facets) still costs O(k log k).
-            bucket.sort_by_key(|e| e.hi);
-            let mut i = 0;
-            while i < bucket.len() {
-                let mut j = i + 1;
-                while j < bucket.len() && bucket[j].hi == bucket[i].hi {
-                    j += 1;
+    /// [`Incidence::new`] with the vertices split into `ranges` (consecutive, covering
+    /// `0..vertices`).
+    fn in_ranges(
+        ids: &[[u32; 3]],
+        degenerate: &[bool],
+        vertices: usize,
+        ranges: Vec<std::ops::Range<u32>>,
+    ) -> Incidence {
+        use rayon::prelude::*;
+        let lengths = || ranges.iter().map(|r| r.len());
+        let corners = || {
+            ids.iter()
+                .zip(degenerate)
+                .enumerate()
+                .filter(|(_, (_, d))| !**d)
+                .map(|(f, (t, _))| (f as u32, t))
+        };
+        // Facets per vertex.
+        let mut end = vec![0u32; vertices];
+        split_lengths(&mut end, lengths())
+            .into_par_iter()
+            .zip(&ranges)
+            .for_each(|(count, r)| {
+                for (_, t) in corners() {
+                    for &v in t {
+                        if r.contains(&v) {
+                            count[(v - r.start) as usize] += 1;
+                        }
+                    }
                 }
-                visit(&bucket[i..j]);
-                i = j;
+            });
+        // Where each vertex's facets start.
+        let mut total = 0u32;
+        for e in end.iter_mut() {
+            let count = *e;
+            *e = total;
+            total += count;
+        }
+        let first = |r: &std::ops::Range<u32>| end.get(r.start as usize).map_or(total, |&s| s);
+        let bounds: Vec<u32> = ranges.iter().map(first).chain([total]).collect();
+        // Each range fills its own part of `facets`, moving its vertices' starts to ends.
+        let mut facets = vec![0u32; total as usize];
+        let parts = split_lengths(
+            &mut facets,
+            bounds.windows(2).map(|w| (w[1] - w[0]) as usize),
+        );
+        split_lengths(&mut end, lengths())
+            .into_par_iter()
+            .zip(parts)
+            .zip(&ranges)
+            .zip(&bounds)
+            .for_each(|(((cursor, out), r), &base)| {
+                for (f, t) in corners() {
+                    for &v in t {
+                        if r.contains(&v) {
+                            let c = &mut cursor[(v - r.start) as usize];
+                            out[(*c - base) as usize] = f;
+                            *c += 1;
+                        }
+                    }
+                }
+            });
+        Incidence {
+            end,
+            facets,
+            ranges,
+        }
+    }
+
+    /// Vertex `v`'s facets.
+    fn around(&self, v: u32) -> &[u32] {
+        let from = if v == 0 { 0 } else { self.end[v as usize - 1] };
+        &self.facets[from as usize..self.end[v as usize] as usize]
+    }
+
+    /// Every edge, found from its lower vertex with the uses in facet order: the findings
+    /// in order of (lower, higher) vertex, and the manifold neighbours.
+    fn edges(&self, ids: &[[u32; 3]]) -> Edges {
+        use rayon::prelude::*;
+        let neighbours = Neighbours(
+            (0..3 * ids.len())
+                .into_par_iter()
+                .map(|_| AtomicU32::new(NO_NEIGHBOUR))
+                .collect(),
+        );
+        let found: Vec<EdgeFindings> = self
+            .ranges
+            .par_iter()
+            .map(|r| {
+                let mut out = EdgeFindings::default();
+                let mut uses: Vec<EdgeUse> = Vec::new();
+                for u in r.clone() {
+                    uses.clear();
+                    for &f in self.around(u) {
+                        let t = ids[f as usize];
+                        let c = t.iter().position(|&v| v == u).unwrap_or(0);
+                        let (next, prev) = (t[(c + 1) % 3], t[(c + 2) % 3]);
+                        if next > u {
+                            uses.push(EdgeUse::new(next, f, c, true));
+                        }
+                        if prev > u {
+                            uses.push(EdgeUse::new(prev, f, (c + 2) % 3, false));
+                        }
+                    }
+                    // Stable, so the uses of an edge stay in facet order. Usually about
+                    // six uses; a vertex shared by many facets still costs O(k log k).
+                    uses.sort_by_key(|e| e.hi);
+                    for group in uses.chunk_by(|a, b| a.hi == b.hi) {
+                        out.visit(group, &neighbours);
+                    }
+                }
+                out
+            })
+            .collect();
+        let findings = found
+            .into_iter()
+            .reduce(EdgeFindings::append)
+            .unwrap_or_default();
+        Edges {
+            findings,
+            neighbours,
+        }
+    }
+}
+
+/// One facet's use of an edge, seen from the edge's lower vertex.
+#[derive(Clone, Copy)]
+struct EdgeUse {
+    /// The higher vertex.
+    hi: u32,
+    facet: u32,
+    /// Which of the facet's edges: from its corner `slot` to the next corner.
+    slot: u8,
+    /// The facet runs from the lower vertex to the higher.
+    forward: bool,
+}
+
+impl EdgeUse {
+    fn new(hi: u32, facet: u32, slot: usize, forward: bool) -> EdgeUse {
+        EdgeUse {
+            hi,
+            facet,
+            slot: slot as u8,
+            forward,
+        }
+    }
+}
+
+/// What the edges say, for a range of lower vertices or for all.
+#[derive(Default)]
+struct EdgeFindings {
+    open_edges: usize,
+    non_manifold_edges: usize,
+    inconsistent_edges: usize,
+    /// Each finding with the edge's first facet, in order of edge.
+    findings: Vec<(Defect, u32)>,
+    /// Facets on an open or non-manifold edge.
+    bad: Vec<u32>,
+    /// Pairs of facets joined at a non-manifold edge.
+    joins: Vec<(u32, u32)>,
+}
+
+impl EdgeFindings {
+    /// Takes in one edge: its uses in facet order.
+    fn visit(&mut self, group: &[EdgeUse], neighbours: &Neighbours) {
+        let first = group[0].facet;
+        match group {
+            [_] => {
+                self.open_edges += 1;
+                self.findings.push((Defect::OpenEdge, first));
+                self.bad.push(first);
+            }
+            [a, b] => {
+                // Distinct facets: a facet's three edges join three different vertices.
+                let same = a.forward == b.forward;
+                if same {
+                    self.inconsistent_edges += 1;
+                    self.findings.push((Defect::InconsistentEdge, first));
+                }
+                neighbours.set(a, b.facet, same);
+                neighbours.set(b, a.facet, same);
+            }
+            _ => {
+                self.non_manifold_edges += 1;
+                self.findings.push((Defect::NonManifoldEdge, first));
+                for e in group {
+                    self.bad.push(e.facet);
+                    self.joins.push((first, e.facet));
+                }
             }
         }
     }
+
+    /// These findings followed by `later`'s.
+    fn append(mut self, mut later: EdgeFindings) -> EdgeFindings {
+        self.open_edges += later.open_edges;
+        self.non_manifold_edges += later.non_manifold_edges;
+        self.inconsistent_edges += later.inconsistent_edges;
+        self.findings.append(&mut later.findings);
+        self.bad.append(&mut later.bad);
+        self.joins.append(&mut later.joins);
+        self
+    }
+}
+
+struct Edges {
+    findings: EdgeFindings,
+    neighbours: Neighbours,
+}
+
+/// Each facet's neighbour across each of its edges (edge k runs from corner k to the
+/// next): the other facet << 1 | 1 when both traverse the edge in the same direction as
+/// stored, or [`NO_NEIGHBOUR`]. Every entry is written once, by the range of vertices
+/// that holds the edge's lower vertex; atomics let the ranges share the array.
+struct Neighbours(Vec<AtomicU32>);
+
+impl Neighbours {
+    fn set(&self, from: &EdgeUse, to: u32, same: bool) {
+        let at = 3 * from.facet as usize + usize::from(from.slot);
+        self.0[at].store((to << 1) | u32::from(same), Ordering::Relaxed);
+    }
+
+    fn of(&self, f: usize) -> [u32; 3] {
+        [0, 1, 2].map(|k| self.0[3 * f + k].load(Ordering::Relaxed))
+    }
+}
+
+/// Pieces (numbered in order of first facet) joined at non-manifold edges become one
+/// shell, numbered in order of first facet too; `facet_shell` is renumbered.
+fn join_pieces(
+    pieces: Vec<ShellInfo>,
+    joins: &[(u32, u32)],
+    facet_shell: &mut [u32],
+) -> Vec<ShellInfo> {
+    let mut uf = UnionFind::new(pieces.len());
+    for &(a, b) in joins {
+        uf.union(
+            facet_shell[a as usize] as usize,
+            facet_shell[b as usize] as usize,
+        );
+    }
+    // The union keeps the lowest piece as the root, so roots come first in order.
+    let mut number = vec![NO_SHELL; pieces.len()];
+    let mut shells: Vec<ShellInfo> = Vec::new();
+    for (p, piece) in pieces.into_iter().enumerate() {
+        let r = uf.find(p);
+        if r == p {
+            number[p] = shells.len() as u32;
+            shells.push(piece);
+            continue;
+        }
+        number[p] = number[r];
+        let sh = &mut shells[number[r] as usize];
+        sh.facets += piece.facets;
+        sh.facet_span = (
+            sh.facet_span.0.min(piece.facet_span.0),
+            sh.facet_span.1.max(piece.facet_span.1),
+        );
+        sh.closed &= piece.closed;
+        sh.orientable &= piece.orientable;
+    }
+    for s in facet_shell.iter_mut().filter(|s| **s != NO_SHELL) {
+        *s = number[*s as usize];
+    }
+    shells
 }
 
 /// Facets whose three welded vertices repeat an earlier facet's (any order or winding).
@@ -955,6 +1181,111 @@ mod tests {
             sorted.sort_unstable();
             sorted.dedup();
             proptest::prop_assert_eq!(t.duplicate_facets, all - sorted.len());
+
+            // Shells: facets sharing an edge, numbered by first facet; after the flips,
+            // the two uses of every manifold edge of an orientable shell run opposite ways.
+            let (shell_of, uses) = plain_shells(&point_ids);
+            proptest::prop_assert_eq!(&t.facet_shell, &shell_of);
+            for u in uses.values().filter(|u| u.len() == 2) {
+                let ((f, a), (g, b)) = (u[0], u[1]);
+                if t.shells[t.facet_shell[f] as usize].orientable {
+                    proptest::prop_assert_ne!(a ^ t.flip[f], b ^ t.flip[g]);
+                }
+            }
+            for sh in &t.shells {
+                proptest::prop_assert!(!sh.closed || (sh.orientable && sh.volume >= 0.0));
+            }
+        }
+    }
+
+    /// Shells by definition: non-degenerate facets sharing an (undirected) edge are in
+    /// one shell, numbered by first facet; with every edge's uses (facet, runs from lower
+    /// to higher vertex) in facet order.
+    #[allow(clippy::type_complexity)]
+    fn plain_shells(
+        ids: &[[u32; 3]],
+    ) -> (
+        Vec<u32>,
+        std::collections::BTreeMap<(u32, u32), Vec<(usize, bool)>>,
+    ) {
+        let mut uses: std::collections::BTreeMap<(u32, u32), Vec<(usize, bool)>> =
+            Default::default();
+        let ok = |[a, b, c]: &[u32; 3]| a != b && b != c && a != c;
+        for (f, t) in ids.iter().enumerate().filter(|(_, t)| ok(t)) {
+            for (u, v) in [(t[0], t[1]), (t[1], t[2]), (t[2], t[0])] {
+                uses.entry((u.min(v), u.max(v)))
+                    .or_default()
+                    .push((f, u < v));
+            }
+        }
+        let mut uf = UnionFind::new(ids.len());
+        for u in uses.values() {
+            for &(g, _) in &u[1..] {
+                uf.union(u[0].0, g);
+            }
+        }
+        let mut number = vec![NO_SHELL; ids.len()];
+        let mut next = 0;
+        let mut shell_of = vec![NO_SHELL; ids.len()];
+        for (f, t) in ids.iter().enumerate() {
+            if ok(t) {
+                let r = uf.find(f);
+                if number[r] == NO_SHELL {
+                    number[r] = next;
+                    next += 1;
+                }
+                shell_of[f] = number[r];
+            }
+        }
+        (shell_of, uses)
+    }
+
+    #[test]
+    fn edges_found_in_ranges_of_vertices_are_those_found_in_one() {
+        // A torus with holes, a duplicate, a fin (non-manifold) and reversed facets.
+        let mut t = tris(shapes::torus([0.0; 3], 3.0, 1.0, 48, 24));
+        t.retain(|f| f[0].x > -2.5 || f[0].y > 0.0);
+        for f in (0..t.len()).step_by(97) {
+            t[f].swap(1, 2);
+        }
+        t.push(t[10]);
+        t.push([t[20][0], t[20][1], Vec3::new(9.0, 9.0, 9.0)]);
+        let (lo, hi) = bounding_box(t.iter().flatten());
+        let (ids, vertices) = weld(&t, WELD_TOLERANCE_REL * (hi - lo).norm(), (lo, hi));
+        let degenerate = vec![false; ids.len()];
+        let whole = std::iter::once(0..vertices as u32).collect();
+        let one = Incidence::in_ranges(&ids, &degenerate, vertices, whole);
+        let (ref_edges, ref_neighbours) = {
+            let e = one.edges(&ids);
+            let n: Vec<[u32; 3]> = (0..ids.len()).map(|f| e.neighbours.of(f)).collect();
+            (e.findings, n)
+        };
+        assert!(ref_edges.open_edges > 0 && ref_edges.non_manifold_edges > 0);
+        assert!(ref_edges.inconsistent_edges > 0);
+        for parts in [2u32, 3, 7] {
+            let v = vertices as u32;
+            let ranges = (0..parts)
+                .map(|i| i * v / parts..(i + 1) * v / parts)
+                .collect();
+            let split = Incidence::in_ranges(&ids, &degenerate, vertices, ranges);
+            assert_eq!((&split.end, &split.facets), (&one.end, &one.facets));
+            let e = split.edges(&ids);
+            let n: Vec<[u32; 3]> = (0..ids.len()).map(|f| e.neighbours.of(f)).collect();
+            assert_eq!(n, ref_neighbours, "{parts} ranges");
+            let f = e.findings;
+            assert_eq!(
+                (f.open_edges, f.non_manifold_edges, f.inconsistent_edges),
+                (
+                    ref_edges.open_edges,
+                    ref_edges.non_manifold_edges,
+                    ref_edges.inconsistent_edges
+                )
+            );
+            assert_eq!(f.findings, ref_edges.findings);
+            assert_eq!(
+                (f.bad, f.joins),
+                (ref_edges.bad.clone(), ref_edges.joins.clone())
+            );
         }
     }
 
