@@ -16,8 +16,8 @@
 //! * `write`: `report::json::render` and `pipeline::write_atomic` of the result;
 //! * `calc_file`: `pipeline::calc_file` end to end (read the files, parse, compute, write).
 //!
-//! The bench uses the binary's allocator ([`wetload::alloc::HugePageAlloc`]), so the
-//! stages see the same memory behaviour as `wetload calc`.
+//! The bench uses the binary's allocator (mimalloc), so the stages see the same memory
+//! behaviour as `wetload calc`.
 
 use std::fs;
 use std::hint::black_box;
@@ -31,7 +31,7 @@ use wetload::mesh::{self, Mesh};
 use wetload::{compute, pipeline, report, sidecar};
 
 #[global_allocator]
-static ALLOC: wetload::alloc::HugePageAlloc = wetload::alloc::HugePageAlloc;
+static ALLOC: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
 #[path = "../examples/genmesh.rs"]
 #[allow(dead_code)] // its `main` and argument parsing are the example's, unused here

@@ -3,8 +3,6 @@
 //! The data walks one way: command line → pipeline → { mesh readers, sidecar } → the pure
 //! core in [`hydro`] → report writers. See DEVELOPERS.md for the architecture map.
 
-#[allow(unsafe_code)] // the one module with unsafe code: see its documentation
-pub mod alloc;
 pub mod check;
 pub mod cli;
 pub mod compute;

@@ -5,7 +5,7 @@ use std::process::ExitCode;
 use clap::Parser;
 
 #[global_allocator]
-static ALLOC: wetload::alloc::HugePageAlloc = wetload::alloc::HugePageAlloc;
+static ALLOC: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
 fn main() -> ExitCode {
     let cli = wetload::cli::Cli::parse();
