@@ -243,22 +243,26 @@ mod tests {
 
     fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>, normals: bool) -> Mesh {
         let mut m = Mesh::from_parts(parts, Format::StlAscii);
-        let stored_normals = normals.then(|| {
-            m.facets
-                .iter()
-                .map(|t: &[[f64; 3]; 3]| {
-                    let u = [t[1][0] - t[0][0], t[1][1] - t[0][1], t[1][2] - t[0][2]];
-                    let v = [t[2][0] - t[0][0], t[2][1] - t[0][1], t[2][2] - t[0][2]];
-                    [
-                        (u[1] * v[2] - u[2] * v[1]) as f32,
-                        (u[2] * v[0] - u[0] * v[2]) as f32,
-                        (u[0] * v[1] - u[1] * v[0]) as f32,
-                    ]
-                })
-                .collect()
-        });
-        m.stored_normals = stored_normals;
+        if normals {
+            m.set_stored_normals(&winding_normals(&m.facets));
+        }
         m
+    }
+
+    /// The right-hand-rule normal of each facet, as an exporter would store it.
+    fn winding_normals(facets: &[[[f64; 3]; 3]]) -> Vec<[f32; 3]> {
+        facets
+            .iter()
+            .map(|t| {
+                let u = [t[1][0] - t[0][0], t[1][1] - t[0][1], t[1][2] - t[0][2]];
+                let v = [t[2][0] - t[0][0], t[2][1] - t[0][1], t[2][2] - t[0][2]];
+                [
+                    (u[1] * v[2] - u[2] * v[1]) as f32,
+                    (u[2] * v[0] - u[0] * v[2]) as f32,
+                    (u[0] * v[1] - u[1] * v[0]) as f32,
+                ]
+            })
+            .collect()
     }
 
     fn cube(at: f64) -> Vec<shapes::Triangle> {
@@ -282,16 +286,16 @@ mod tests {
         // Part c: a duplicated facet (1 duplicate, 3 non-manifold edges).
         let mut a = cube(0.0);
         a.pop();
-        let mut m = mesh(vec![("a", a), ("b", cube(3.0)), ("c", cube(6.0))], true);
+        let mut m = mesh(vec![("a", a), ("b", cube(3.0)), ("c", cube(6.0))], false);
+        let mut normals = winding_normals(&m.facets);
         let b0 = m.parts[1].facets.start;
         m.facets[b0].swap(1, 2);
         let c0 = m.parts[2].facets.start;
         let dup = m.facets[c0];
         m.facets.push(dup);
-        if let Some(n) = m.stored_normals.as_mut() {
-            n.push(n[c0]);
-        }
+        normals.push(normals[c0]);
         m.parts[2].facets.end += 1;
+        m.set_stored_normals(&normals);
         let h = check("m.stl", &m, None);
         assert!(!h.usable_as_is && !h.closed);
         let counts: Vec<[usize; 6]> = h

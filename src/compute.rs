@@ -13,7 +13,7 @@ use crate::hydro::{
     self, Frame, LineOfAction, Liquid, LiquidError, NO_SHELL, PartAccum, PartInput, Profile,
     Topology, Tri, Vec3, WetSide, Wetting,
 };
-use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG, is_stale_normal};
+use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG};
 use crate::sidecar::{
     AUTO_FIELD_EXPORT_FACETS, Case, FieldExports, Flotation, Sidecar, Sweep, UnassignedPart,
 };
@@ -503,46 +503,39 @@ fn prepare(
         scale_m: sidecar.units.metres(),
         up: sidecar.up,
     };
-    // Min and max are exact, so these parallel passes give the same bits on any thread count.
+    // Stored normals play no part in the loads, but their disagreement with the winding
+    // (judged as the file was read) is reported.
+    let stale = mesh.stale_normals(0..mesh.facets.len());
     let Mesh {
         mut facets,
         parts,
         format,
-        stored_normals,
+        normal_stale: _,
     } = mesh;
-    // One pass for the bounding box and the stored normals, which play no part in the
-    // loads but whose disagreement with the winding is reported.
-    let (lo, hi, stale) = facets
+    // Min and max are exact, so this parallel pass gives the same bits on any thread count.
+    let (lo, hi) = facets
         .par_iter()
-        .enumerate()
         .fold(
-            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3], 0usize),
-            |(mut lo, mut hi, mut stale), (f, t)| {
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(mut lo, mut hi), t| {
                 for p in t {
                     for k in 0..3 {
                         lo[k] = lo[k].min(p[k]);
                         hi[k] = hi[k].max(p[k]);
                     }
                 }
-                if let Some(n) = &stored_normals
-                    && is_stale_normal(t, &n[f])
-                {
-                    stale += 1;
-                }
-                (lo, hi, stale)
+                (lo, hi)
             },
         )
         .reduce(
-            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3], 0),
-            |(a, b, s), (c, d, t)| {
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(a, b), (c, d)| {
                 (
                     [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
                     [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
-                    s + t,
                 )
             },
         );
-    drop(stored_normals);
     if stale > 0 {
         warnings.push(format!(
             "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals and uses the vertex order, but other tools may not"

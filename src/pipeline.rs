@@ -320,7 +320,7 @@ mod tests {
         let (streamed, whole) = both_ways("t.stl", &bytes);
         let (streamed, whole) = (streamed.expect("reads"), whole.expect("reads"));
         assert_eq!(streamed.facets, whole.facets);
-        assert_eq!(streamed.stored_normals, whole.stored_normals);
+        assert_eq!(streamed.normal_stale, whole.normal_stale);
         assert_eq!(streamed.parts, whole.parts);
 
         // Non-finite values in two blocks: the first is reported, as by the whole read.

@@ -16,7 +16,7 @@ fuzz_target!(|data: &[u8]| {
         Err(e) => assert!(e.to_string().contains(NAME), "{e}"),
         Ok(m) => {
             assert_eq!(m.format, Format::Obj);
-            assert!(!m.facets.is_empty() && m.stored_normals.is_none());
+            assert!(!m.facets.is_empty() && m.normal_stale.is_none());
             let mut next = 0;
             for (i, p) in m.parts.iter().enumerate() {
                 assert_eq!(p.facets.start, next);

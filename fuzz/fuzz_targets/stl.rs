@@ -55,7 +55,7 @@ fn check(m: &wetload::mesh::Mesh) {
     assert_eq!(next, m.facets.len());
     assert!(m.facets.iter().flatten().flatten().all(|c| c.is_finite()));
     assert_eq!(
-        m.stored_normals.as_ref().map(Vec::len),
+        m.normal_stale.as_ref().map(Vec::len),
         Some(m.facets.len())
     );
 }

@@ -60,10 +60,12 @@ pub struct Mesh {
     /// At least one part, in order of first appearance in the file; parts that received
     /// no facet are left out.
     pub parts: Vec<Part>,
-    /// STL only: one normal per facet, same order as `facets` (binary: as stored, ASCII:
-    /// parsed and rounded to f32; a facet loop split into several triangles repeats its
-    /// normal). Never used for geometry; `None` for OBJ.
-    pub stored_normals: Option<Vec<[f32; 3]>>,
+    /// STL only: per facet, same order as `facets`, whether its stored normal is stale
+    /// ([`is_stale_normal`]), judged as the file is read (binary: the normal as stored,
+    /// ASCII: parsed and rounded to f32; a facet loop split into several triangles repeats
+    /// its normal). The normals themselves are not kept: they are never used for
+    /// geometry. `None` for OBJ.
+    pub normal_stale: Option<Vec<bool>>,
     /// The format the file was read as.
     pub format: Format,
 }
@@ -96,15 +98,18 @@ impl Mesh {
     /// A zero normal means "not given" (a common export choice) and is not stale; so is
     /// every facet of a mesh without stored normals.
     pub fn stale_normals(&self, range: std::ops::Range<usize>) -> usize {
-        use rayon::prelude::*;
-        let Some(normals) = &self.stored_normals else {
-            return 0;
-        };
-        self.facets[range.clone()]
-            .par_iter()
-            .zip(&normals[range])
-            .filter(|(t, n)| is_stale_normal(t, n))
-            .count()
+        self.normal_stale
+            .as_ref()
+            .map_or(0, |s| s[range].iter().filter(|&&b| b).count())
+    }
+
+    /// Judges `normals` (one per facet, as an STL would store them) against the facets'
+    /// winding and keeps the verdicts in [`Mesh::normal_stale`]: for generated meshes in
+    /// tests and examples.
+    pub fn set_stored_normals(&mut self, normals: &[[f32; 3]]) {
+        assert_eq!(normals.len(), self.facets.len(), "one normal per facet");
+        let stale = self.facets.iter().zip(normals);
+        self.normal_stale = Some(stale.map(|(t, n)| is_stale_normal(t, n)).collect());
     }
 
     /// A mesh built from named groups of facets, in order (each group one part), with no
@@ -123,7 +128,7 @@ impl Mesh {
         Mesh {
             facets,
             parts,
-            stored_normals: None,
+            normal_stale: None,
             format,
         }
     }
@@ -464,13 +469,15 @@ pub(crate) struct PartsBuilder {
     names: Vec<String>,
     index: FxHashMap<String, usize>,
     facets: Vec<Vec<Facet>>,
-    normals: Option<Vec<Vec<[f32; 3]>>>,
+    /// Per part and facet, whether its stored normal is stale (when normals are given).
+    stale: Option<Vec<Vec<bool>>>,
     current: Option<usize>,
 }
 
 impl PartsBuilder {
     /// `default_name` names facets added before any [`select`](Self::select), and
-    /// selections of an empty name. `with_normals` keeps one normal per facet.
+    /// selections of an empty name. `with_normals`: the facets come with stored normals,
+    /// each judged stale or not as it is pushed.
     pub(crate) fn new(default_name: String, with_normals: bool) -> PartsBuilder {
         PartsBuilder {
             default_name,
@@ -479,7 +486,7 @@ impl PartsBuilder {
             names: Vec::new(),
             index: FxHashMap::default(),
             facets: Vec::new(),
-            normals: with_normals.then(Vec::new),
+            stale: with_normals.then(Vec::new),
             current: None,
         }
     }
@@ -530,8 +537,8 @@ impl PartsBuilder {
         self.index.insert(name.clone(), i);
         self.names.push(name);
         self.facets.push(Vec::new());
-        if let Some(normals) = &mut self.normals {
-            normals.push(Vec::new());
+        if let Some(stale) = &mut self.stale {
+            stale.push(Vec::new());
         }
         i
     }
@@ -556,10 +563,10 @@ impl PartsBuilder {
         }
         self.count += 1;
         let i = self.current();
-        self.facets[i].push(facet);
-        if let Some(normals) = &mut self.normals {
-            normals[i].push(normal);
+        if let Some(stale) = &mut self.stale {
+            stale[i].push(is_stale_normal(&facet, &normal));
         }
+        self.facets[i].push(facet);
         Ok(())
     }
 
@@ -573,30 +580,29 @@ impl PartsBuilder {
             // One part holds every facet (the common case): move it, don't copy it.
             let name = self.names.into_iter().nth(only)?;
             let facets = self.facets.into_iter().nth(only)?;
-            let stored_normals = self.normals.and_then(|n| n.into_iter().nth(only));
+            let normal_stale = self.stale.and_then(|s| s.into_iter().nth(only));
             return Some(Mesh {
                 facets,
                 parts: vec![Part {
                     name,
                     facets: 0..total,
                 }],
-                stored_normals,
+                normal_stale,
                 format,
             });
         }
         let mut parts = Vec::new();
         let mut facets: Vec<Facet> = Vec::with_capacity(total);
-        let mut normals: Option<Vec<[f32; 3]>> =
-            self.normals.as_ref().map(|_| Vec::with_capacity(total));
-        let mut part_normals = self.normals.map(Vec::into_iter);
+        let mut stale: Option<Vec<bool>> = self.stale.as_ref().map(|_| Vec::with_capacity(total));
+        let mut part_stale = self.stale.map(Vec::into_iter);
         for (name, part_facets) in self.names.into_iter().zip(self.facets) {
-            let these_normals = part_normals.as_mut().and_then(Iterator::next);
+            let these = part_stale.as_mut().and_then(Iterator::next);
             if part_facets.is_empty() {
                 continue;
             }
             let start = facets.len();
             facets.extend_from_slice(&part_facets);
-            if let (Some(all), Some(these)) = (&mut normals, these_normals) {
+            if let (Some(all), Some(these)) = (&mut stale, these) {
                 all.extend_from_slice(&these);
             }
             parts.push(Part {
@@ -607,7 +613,7 @@ impl PartsBuilder {
         Some(Mesh {
             facets,
             parts,
-            stored_normals: normals,
+            normal_stale: stale,
             format,
         })
     }
@@ -668,18 +674,21 @@ mod tests {
 
     #[test]
     fn parts_builder_regroups_repeated_names_in_order() {
+        // Winding normal (1, k, k), stored normal (k − 1)(1, 1, 1): stale for k = 0 only
+        // (opposite), not for k = 1 (zero: not given) nor above (within 45°).
         let f = |k: f64| [[k, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]];
+        let n = |k: f32| [k - 1.0; 3];
         let mut b = PartsBuilder::new("stem".into(), true);
-        b.push(f(0.0), [0.0; 3]).expect("within the limits");
+        b.push(f(0.0), n(0.0)).expect("within the limits");
         b.select("a").expect("within the limits");
-        b.push(f(1.0), [1.0; 3]).expect("within the limits");
+        b.push(f(1.0), n(1.0)).expect("within the limits");
         b.select("unused").expect("within the limits");
         b.select("b").expect("within the limits");
-        b.push(f(2.0), [2.0; 3]).expect("within the limits");
+        b.push(f(2.0), n(2.0)).expect("within the limits");
         b.select("a").expect("within the limits");
-        b.push(f(3.0), [3.0; 3]).expect("within the limits");
+        b.push(f(3.0), n(3.0)).expect("within the limits");
         b.select("").expect("within the limits");
-        b.push(f(4.0), [4.0; 3]).expect("within the limits");
+        b.push(f(4.0), n(4.0)).expect("within the limits");
         let m = b.finish(Format::Obj).expect("facets were added");
         let names: Vec<_> = m.parts.iter().map(|p| p.name.as_str()).collect();
         assert_eq!(names, ["stem", "a", "b"]);
@@ -688,13 +697,13 @@ mod tests {
         assert_eq!(m.parts[0].facets, 0..2);
         assert_eq!(m.parts[1].facets, 2..4);
         assert_eq!(m.parts[2].facets, 4..5);
-        let nx: Vec<f32> = m
-            .stored_normals
-            .expect("kept")
+        // Judged one by one, in the facets' new order.
+        let want: Vec<bool> = [0.0, 4.0, 1.0, 3.0, 2.0]
             .iter()
-            .map(|n| n[0])
+            .map(|&k| is_stale_normal(&f(k), &n(k as f32)))
             .collect();
-        assert_eq!(nx, [0.0, 4.0, 1.0, 3.0, 2.0]);
+        assert_eq!(want, [true, false, false, false, false]);
+        assert_eq!(m.normal_stale.expect("kept"), want);
     }
 
     /// The real CAD exports kept in `tests/data/cad-exports/` (see its README.md).
@@ -738,7 +747,7 @@ mod tests {
                 }],
                 "{name}"
             );
-            assert_eq!(m.stored_normals.as_ref().map(Vec::len), Some(count));
+            assert_eq!(m.normal_stale.as_ref().map(Vec::len), Some(count));
         }
     }
 
@@ -762,11 +771,12 @@ mod tests {
                 .collect::<Result<_, _>>()
                 .expect("complete");
             assert_eq!(theirs.len(), ours.facets.len(), "{name}");
-            let normals = ours.stored_normals.as_ref().expect("stl");
+            let stale = ours.normal_stale.as_ref().expect("stl");
             for (k, t) in theirs.iter().enumerate() {
                 let widened = t.vertices.map(|v| v.0.map(f64::from));
                 assert_eq!(widened, ours.facets[k], "{name} facet {k}");
-                assert_eq!(t.normal.0, normals[k], "{name} facet {k}");
+                let judged = is_stale_normal(&widened, &t.normal.0);
+                assert_eq!(judged, stale[k], "{name} facet {k}");
             }
         }
     }
@@ -807,10 +817,7 @@ mod tests {
                 .collect();
             let want: Vec<(&str, usize)> = parts.into_iter().zip(per_part).collect();
             assert_eq!(got, want, "{name}");
-            assert_eq!(
-                m.stored_normals.as_ref().map(Vec::len),
-                Some(m.facets.len())
-            );
+            assert_eq!(m.normal_stale.as_ref().map(Vec::len), Some(m.facets.len()));
         }
     }
 

@@ -217,7 +217,7 @@ mod tests {
             m.facets[1],
             [[0.0, 0.0, 0.0], [1.0, 1.0, 0.0], [0.0, 1.0, 0.0]]
         );
-        assert!(m.stored_normals.is_none());
+        assert!(m.normal_stale.is_none());
     }
 
     #[test]

@@ -28,8 +28,8 @@ use rayon::prelude::*;
 
 use super::polygon::Triangulator;
 use super::{
-    Facet, Format, LineError, Mesh, MeshError, Part, PartsBuilder, Problem, parse_coordinate,
-    parse_f64, quote, stem_name,
+    Facet, Format, LineError, Mesh, MeshError, Part, PartsBuilder, Problem, is_stale_normal,
+    parse_coordinate, parse_f64, quote, stem_name,
 };
 
 /// Size of the binary header plus the facet count.
@@ -113,7 +113,8 @@ fn read_binary(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
 /// then [`BinaryStl::finish`]. [`read_stl`] pushes the whole file at once.
 pub struct BinaryStl {
     facets: Vec<Facet>,
-    normals: Vec<[f32; 3]>,
+    /// Whether each facet's stored normal is stale ([`is_stale_normal`]).
+    stale: Vec<bool>,
     /// Facets converted so far.
     done: usize,
     /// The first facet with a non-finite coordinate, and the value.
@@ -166,7 +167,7 @@ impl BinaryStl {
     pub fn new(count: usize) -> BinaryStl {
         BinaryStl {
             facets: vec![[[0.0; 3]; 3]; count],
-            normals: vec![[0.0; 3]; count],
+            stale: vec![false; count],
             done: 0,
             first_bad: None,
         }
@@ -184,13 +185,13 @@ impl BinaryStl {
         let start = self.done;
         let bad = self.facets[start..start + n]
             .par_chunks_mut(CHUNK)
-            .zip(self.normals[start..start + n].par_chunks_mut(CHUNK))
+            .zip(self.stale[start..start + n].par_chunks_mut(CHUNK))
             .zip(records[..n].par_chunks(CHUNK))
             .enumerate()
-            .filter_map(|(c, ((facets, normals), records))| {
+            .filter_map(|(c, ((facets, stale), records))| {
                 let mut bad = None;
-                for (i, ((facet, normal), r)) in
-                    facets.iter_mut().zip(normals).zip(records).enumerate()
+                for (i, ((facet, stale), r)) in
+                    facets.iter_mut().zip(stale).zip(records).enumerate()
                 {
                     for (k, vertex) in facet.iter_mut().enumerate() {
                         for (j, v) in vertex.iter_mut().enumerate() {
@@ -201,7 +202,7 @@ impl BinaryStl {
                             *v = f64::from(value);
                         }
                     }
-                    *normal = [f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)];
+                    *stale = is_stale_normal(facet, &[f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)]);
                 }
                 bad
             })
@@ -237,7 +238,7 @@ impl BinaryStl {
                 name: stem_name(path),
                 facets: 0..count,
             }],
-            stored_normals: Some(self.normals),
+            normal_stale: Some(self.stale),
             format: Format::StlBinary,
         })
     }
@@ -489,7 +490,15 @@ mod tests {
         assert_eq!(m.parts[0].facets, 0..10);
         // f32 widened exactly: 0.1f32 is not 0.1f64.
         assert_eq!(m.facets[3][0][0], f64::from(0.1f32));
-        assert_eq!(m.stored_normals.as_ref().expect("stl")[0], [0.0, 0.0, 1.0]);
+        // Stored normals (0, 0, 1) agree with the winding's +z; one turned over disagrees.
+        assert_eq!(m.normal_stale, Some(vec![false; 10]));
+        let mut bytes = bytes;
+        let z = 84 + 3 * 50 + 8;
+        bytes[z..z + 4].copy_from_slice(&(-1.0f32).to_le_bytes());
+        let m = read_stl(Path::new("dir/gate.stl"), &bytes).expect("binary");
+        let stale = m.normal_stale.expect("stl");
+        assert_eq!(stale.iter().filter(|&&s| s).count(), 1);
+        assert!(stale[3]);
     }
 
     #[test]
@@ -573,11 +582,11 @@ mod tests {
             read_stl(Path::new("none.stl"), &binary(b"", 0, TRI)).expect_err("must be refused");
         assert!(matches!(err, MeshError::Empty { .. }));
         assert!(err.to_string().contains("none.stl"));
-        // A NaN normal is passed on: normals are not geometry.
+        // A NaN normal is no error and not judged stale: normals are not geometry.
         let mut bytes = binary(b"", 1, TRI);
         bytes[84..88].copy_from_slice(&f32::NAN.to_le_bytes());
         let m = read_stl(Path::new("n.stl"), &bytes).expect("normals are not checked");
-        assert!(m.stored_normals.expect("stl")[0][0].is_nan());
+        assert_eq!(m.normal_stale, Some(vec![false]));
     }
 
     fn facet(normal: &str, verts: &[&str]) -> String {
@@ -613,7 +622,8 @@ mod tests {
         assert_eq!(m.facets[0][0], [0.1, 0.2, 0.3]);
         assert_eq!(m.facets[0][1][0], 1e-17);
         assert_eq!(m.facets[0][2][2], 123456.789012345);
-        assert_eq!(m.stored_normals.expect("stl")[0], [0.0, 0.0, 1.0]);
+        // The winding's normal is about (8, 1, 0): (0, 0, 1) is over 45° from it.
+        assert_eq!(m.normal_stale, Some(vec![true]));
     }
 
     #[test]
@@ -652,7 +662,7 @@ mod tests {
         );
         let m = read_stl(Path::new("q.stl"), text.as_bytes()).expect("ascii");
         assert_eq!(m.facets.len(), 2);
-        assert_eq!(m.stored_normals.expect("stl").len(), 2);
+        assert_eq!(m.normal_stale, Some(vec![false, false]));
         // Closed form: the two triangles cover the 2 × 1 rectangle.
         let area: f64 = m
             .facets

@@ -120,7 +120,7 @@ mod tests {
                 },
             ],
             facets,
-            stored_normals: None,
+            normal_stale: None,
             format: Format::Obj,
         };
         let s = parse_sidecar(

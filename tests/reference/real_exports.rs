@@ -351,11 +351,18 @@ fn real_exports_closed_or_open_as_checked() {
 #[test]
 fn busted_export_is_closed_despite_zero_normals() {
     let mesh = read("busted.STL");
-    let normals = mesh.stored_normals.as_ref().expect("an STL");
+    // Read straight from the file's records (50 bytes after the 84-byte header; the
+    // normal is the first 12).
+    let bytes = std::fs::read(data("busted.STL")).expect("readable");
+    let records = bytes[84..].chunks_exact(50);
+    assert_eq!(records.len(), mesh.facets.len());
     assert!(
-        normals.iter().all(|n| *n == [0.0; 3]),
+        records.clone().all(|r| r[..12].iter().all(|&b| b == 0)),
         "every stored normal is zero"
     );
+    // A zero normal means "not given": none is reported stale.
+    let stale = mesh.normal_stale.as_ref().expect("an STL");
+    assert!(stale.iter().all(|s| !s));
     let t = robust_topology("busted.STL", &mesh.facets);
     assert!(t.closed && t.shells == 1, "busted.STL: one closed shell");
     let mut points = std::collections::HashSet::new();
