@@ -187,11 +187,16 @@ impl Topology {
         // across an edge traversed in the same direction must be read reversed relative
         // to this facet. Pieces joined at non-manifold edges are one shell.
         let mut facet_shell = vec![NO_SHELL; n];
-        let mut flip = vec![false; n];
+        // Per facet: not reached yet, reached as stored, or reached reversed (one byte a
+        // facet, so the checks of the neighbours stay in cache).
+        const UNSEEN: u8 = 0;
+        const AS_STORED: u8 = 1;
+        const REVERSED: u8 = 2;
+        let mut reach = vec![UNSEEN; n];
         let mut shells: Vec<ShellInfo> = Vec::new();
         let mut queue: Vec<u32> = Vec::new();
         for f in 0..n {
-            if degenerate[f] || facet_shell[f] != NO_SHELL {
+            if degenerate[f] || reach[f] != UNSEEN {
                 continue;
             }
             let piece = shells.len() as u32;
@@ -207,6 +212,7 @@ impl Topology {
                 children: 0,
             };
             facet_shell[f] = piece;
+            reach[f] = AS_STORED;
             queue.clear();
             queue.push(f as u32);
             let mut head = 0;
@@ -218,17 +224,18 @@ impl Topology {
                 if bad_facet[c] {
                     sh.closed = false;
                 }
+                let reversed = reach[c] == REVERSED;
                 for a in adj.of(c) {
                     if a == NO_NEIGHBOUR {
                         continue;
                     }
                     let (g, same) = ((a >> 1) as usize, a & 1 == 1);
-                    let want = flip[c] ^ same;
-                    if facet_shell[g] == NO_SHELL {
+                    let want = if reversed ^ same { REVERSED } else { AS_STORED };
+                    if reach[g] == UNSEEN {
+                        reach[g] = want;
                         facet_shell[g] = piece;
-                        flip[g] = want;
                         queue.push(g as u32);
-                    } else if flip[g] != want {
+                    } else if reach[g] != want {
                         sh.orientable = false;
                         sh.closed = false;
                     }
@@ -237,21 +244,21 @@ impl Topology {
             shells.push(sh);
         }
         drop((adj, queue, bad_facet));
+        let mut flip: Vec<bool> = {
+            use rayon::prelude::*;
+            reach.par_iter().map(|&r| r == REVERSED).collect()
+        };
+        drop(reach);
         if !joins.is_empty() {
             shells = join_pieces(shells, &joins, &mut facet_shell);
         }
 
         // Signed volume per shell about the box centre (no cancellation far from origin).
-        let mut vol = vec![0.0; shells.len()];
-        for f in 0..n {
-            let s = facet_shell[f];
-            if s == NO_SHELL {
-                continue;
-            }
+        let vol = shell_sums(&facet_shell, shells.len(), |f| {
             let [a, b, c] = tris[f].map(|p| p - centre);
             let v6 = a.dot(&b.cross(&c));
-            vol[s as usize] += if flip[f] { -v6 } else { v6 } / 6.0;
-        }
+            (if flip[f] { -v6 } else { v6 }) / 6.0
+        });
         for (s, sh) in shells.iter_mut().enumerate() {
             sh.volume = vol[s];
             if sh.closed && vol[s] < 0.0 {
@@ -263,17 +270,16 @@ impl Topology {
             .zip(&shells)
             .map(|(v, s)| s.closed && *v < 0.0)
             .collect();
-        for f in 0..n {
-            let s = facet_shell[f];
-            if s != NO_SHELL && turn[s as usize] {
-                flip[f] = !flip[f];
-            }
+        if turn.contains(&true) {
+            use rayon::prelude::*;
+            flip.par_iter_mut()
+                .zip(&facet_shell)
+                .filter(|(_, s)| **s != NO_SHELL && turn[**s as usize])
+                .for_each(|(f, _)| *f = !*f);
         }
-        for f in 0..n {
-            let s = facet_shell[f];
-            if s != NO_SHELL && flip[f] {
-                shells[s as usize].flipped_facets += 1;
-            }
+        let flipped = shell_sums(&facet_shell, shells.len(), |f| usize::from(flip[f]));
+        for (sh, flipped) in shells.iter_mut().zip(flipped) {
+            sh.flipped_facets = flipped;
         }
         for sh in shells.iter_mut() {
             // Inverted as stored: most of its area would have to be reversed.
@@ -477,43 +483,55 @@ fn weld_in_blocks(
     }
     // The representatives' keys side by side, for the searches below.
     let rep_keys: Vec<u64> = reps.iter().map(|&r| order[r as usize].0).collect();
-    for &a in &reps {
-        let (_, i, c) = order[a as usize];
-        if c & NEAR_FACE == 0 {
-            continue; // nothing in another cell is within `tol`
-        }
-        let q = at(a as usize);
-        // Neighbour cells worth visiting along each axis.
-        let k = key(&q);
-        let mut offs = [[0i64; 2]; 3];
-        let mut counts = [1usize; 3];
-        for ax in 0..3 {
-            let side = near_face(&q, &k, ax);
-            if side != 0 {
-                offs[ax][1] = side;
-                counts[ax] = 2;
-            }
-        }
-        for ia in 0..counts[0] {
-            for ib in 0..counts[1] {
-                for ic in 0..counts[2] {
-                    if ia + ib + ic == 0 {
-                        continue; // its own cell, done above
+    // Representatives near a face, in blocks on both threads; the pairs found are joined
+    // after (the clusters do not depend on the order of the joins).
+    let joins: Vec<(u32, u32)> = reps
+        .par_chunks(1 << 12)
+        .flat_map_iter(|block| {
+            let mut found = Vec::new();
+            for &a in block {
+                let (_, i, c) = order[a as usize];
+                if c & NEAR_FACE == 0 {
+                    continue; // nothing in another cell is within `tol`
+                }
+                let q = at(a as usize);
+                // Neighbour cells worth visiting along each axis.
+                let k = key(&q);
+                let mut offs = [[0i64; 2]; 3];
+                let mut counts = [1usize; 3];
+                for ax in 0..3 {
+                    let side = near_face(&q, &k, ax);
+                    if side != 0 {
+                        offs[ax][1] = side;
+                        counts[ax] = 2;
                     }
-                    let other = pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
-                    let from = rep_keys.partition_point(|&k| k < other);
-                    for (&r, &key_r) in reps[from..].iter().zip(&rep_keys[from..]) {
-                        if key_r != other {
-                            break;
-                        }
-                        let j = order[r as usize].1;
-                        if (at(r as usize) - q).norm_squared() <= tol2 {
-                            uf.union(i as usize, j as usize);
+                }
+                for ia in 0..counts[0] {
+                    for ib in 0..counts[1] {
+                        for ic in 0..counts[2] {
+                            if ia + ib + ic == 0 {
+                                continue; // its own cell, done above
+                            }
+                            let other =
+                                pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
+                            let from = rep_keys.partition_point(|&k| k < other);
+                            for (&r, &key_r) in reps[from..].iter().zip(&rep_keys[from..]) {
+                                if key_r != other {
+                                    break;
+                                }
+                                if (at(r as usize) - q).norm_squared() <= tol2 {
+                                    found.push((i, order[r as usize].1));
+                                }
+                            }
                         }
                     }
                 }
             }
-        }
+            found
+        })
+        .collect();
+    for (i, j) in joins {
+        uf.union(i as usize, j as usize);
     }
     drop((order, reps, rep_keys));
 
@@ -819,6 +837,37 @@ impl Neighbours {
     fn of(&self, f: usize) -> [u32; 3] {
         [0, 1, 2].map(|k| self.0[3 * f + k].load(Ordering::Relaxed))
     }
+}
+
+/// Sums of `value(f)` over the facets `f` of each shell: within fixed blocks of facets on
+/// all threads, runs of one shell summed in order, then the blocks' sums added in order,
+/// so the result does not depend on the number of threads.
+fn shell_sums<T>(facet_shell: &[u32], shells: usize, value: impl Fn(usize) -> T + Sync) -> Vec<T>
+where
+    T: Copy + Default + Send + std::ops::AddAssign,
+{
+    use rayon::prelude::*;
+    const BLOCK: usize = 1 << 16;
+    let runs: Vec<Vec<(u32, T)>> = facet_shell
+        .par_chunks(BLOCK)
+        .enumerate()
+        .map(|(b, block)| {
+            let mut runs: Vec<(u32, T)> = Vec::new();
+            for (i, &s) in block.iter().enumerate().filter(|(_, s)| **s != NO_SHELL) {
+                let v = value(b * BLOCK + i);
+                match runs.last_mut() {
+                    Some((last, sum)) if *last == s => *sum += v,
+                    _ => runs.push((s, v)),
+                }
+            }
+            runs
+        })
+        .collect();
+    let mut sums = vec![T::default(); shells];
+    for (s, v) in runs.into_iter().flatten() {
+        sums[s as usize] += v;
+    }
+    sums
 }
 
 /// Pieces (numbered in order of first facet) joined at non-manifold edges become one
