@@ -159,14 +159,22 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
     if is_stl && len >= header_len {
         file.read_exact(&mut header).map_err(io_err)?;
         if let Some(mut builder) = BinaryStl::for_file(path, &header, len, limits.max_facets)? {
+            // Two blocks: the next is read while the last is converted.
             let mut left = (len - header_len) as usize;
-            let mut block = vec![0u8; left.min(STREAM_BLOCK)];
-            while left > 0 {
-                let n = left.min(STREAM_BLOCK);
+            let mut next = vec![0u8; left.min(STREAM_BLOCK)];
+            let mut last = vec![0u8; left.min(STREAM_BLOCK)];
+            let mut read = |buf: &mut Vec<u8>, left: &mut usize| {
+                let n = (*left).min(STREAM_BLOCK);
+                buf.truncate(n);
+                *left -= n;
                 // A file cut short while it is read fails here, naming the file.
-                file.read_exact(&mut block[..n]).map_err(io_err)?;
-                builder.push(&block[..n]);
-                left -= n;
+                file.read_exact(buf)
+            };
+            read(&mut next, &mut left).map_err(io_err)?;
+            while !next.is_empty() {
+                std::mem::swap(&mut next, &mut last);
+                let (got, ()) = rayon::join(|| read(&mut next, &mut left), || builder.push(&last));
+                got.map_err(io_err)?;
             }
             return Ok(builder.finish(path)?);
         }
