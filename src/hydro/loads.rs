@@ -75,6 +75,44 @@ impl Plane {
 /// The set is planar when every vertex lies within `PLANAR_REL ×` the bounding-box
 /// diagonal of that plane. Returns `None` for an empty, degenerate or non-planar set.
 pub fn plane_of<'a>(tris: impl Iterator<Item = &'a Tri> + Clone) -> Option<Plane> {
+    // First a cheap pass that rules most solids out: the bounding box and the vertices
+    // lowest and highest along each axis. Points within `tol` of a plane (a slab 2·tol
+    // thick) span tetrahedra of volume at most tol·D², D the box diagonal (the triple
+    // product of three differences, each at most D across the slab and 2·tol along its
+    // normal, has three terms of at most 2·tol·D² each; divided by 6). A tetrahedron of
+    // extreme vertices with more than twice that volume proves the set is not planar.
+    let mut lo = Vec3::repeat(f64::INFINITY);
+    let mut hi = Vec3::repeat(f64::NEG_INFINITY);
+    let mut extreme = [Vec3::zeros(); 6];
+    for p in tris.clone().flatten() {
+        for k in 0..3 {
+            if p[k] < lo[k] {
+                lo[k] = p[k];
+                extreme[2 * k] = *p;
+            }
+            if p[k] > hi[k] {
+                hi[k] = p[k];
+                extreme[2 * k + 1] = *p;
+            }
+        }
+    }
+    let d2 = (hi - lo).norm_squared();
+    let tol = PLANAR_REL * d2.sqrt();
+    let mut six_v = 0.0f64; // the largest tetrahedron, six times its volume
+    for a in 0..6 {
+        for b in a + 1..6 {
+            for c in b + 1..6 {
+                for d in c + 1..6 {
+                    let [pa, pb, pc, pd] = [a, b, c, d].map(|i| extreme[i]);
+                    six_v = six_v.max((pb - pa).dot(&(pc - pa).cross(&(pd - pa))).abs());
+                }
+            }
+        }
+    }
+    if six_v > 2.0 * 6.0 * tol * d2 {
+        return None;
+    }
+
     let mut largest = Vec3::zeros();
     for t in tris.clone() {
         let a = (t[1] - t[0]).cross(&(t[2] - t[0]));
@@ -88,22 +126,15 @@ pub fn plane_of<'a>(tris: impl Iterator<Item = &'a Tri> + Clone) -> Option<Plane
     let mut normal = Vec3::zeros();
     let mut centroid = Vec3::zeros();
     let mut area = 0.0;
-    let mut lo = Vec3::repeat(f64::INFINITY);
-    let mut hi = Vec3::repeat(f64::NEG_INFINITY);
     for t in tris.clone() {
         let a = (t[1] - t[0]).cross(&(t[2] - t[0]));
         normal += if a.dot(&largest) < 0.0 { -a } else { a };
         let w = a.norm();
         centroid += w * (t[0] + t[1] + t[2]) / 3.0;
         area += w;
-        for p in t {
-            lo = lo.inf(p);
-            hi = hi.sup(p);
-        }
     }
     let normal = normal.try_normalize(0.0)?;
     let point = centroid / area;
-    let tol = PLANAR_REL * (hi - lo).norm();
     let planar = tris
         .flat_map(|t| t.iter())
         .all(|p| normal.dot(&(p - point)).abs() <= tol);
@@ -143,5 +174,39 @@ mod tests {
             [v(0.0, 0.0, 0.0), v(0.0, 1.0, 0.1), v(1.0, 1.0, 0.0)],
         ];
         assert!(plane_of(folded.iter()).is_none());
+    }
+
+    #[test]
+    fn a_tilted_plane_with_noise_under_the_tolerance_is_planar_and_over_it_is_not() {
+        // A 10 × 10 grid on the plane x + 2y + 3z = 4, every vertex pushed off it along
+        // the normal by ±`off` times the planarity tolerance (alternating).
+        let n = Vec3::new(1.0, 2.0, 3.0).normalize();
+        let u = Vec3::new(2.0, -1.0, 0.0).normalize();
+        let v = n.cross(&u);
+        let base = n * 4.0 / Vec3::new(1.0, 2.0, 3.0).norm();
+        let grid = |off: f64| -> Vec<Tri> {
+            let at = |i: usize, j: usize| -> Vec3 {
+                let sign = if (i + j) % 2 == 0 { 1.0 } else { -1.0 };
+                base + u * i as f64 + v * j as f64 + n * sign * off
+            };
+            let mut t = Vec::new();
+            for i in 0..10 {
+                for j in 0..10 {
+                    t.push([at(i, j), at(i + 1, j), at(i + 1, j + 1)]);
+                    t.push([at(i, j), at(i + 1, j + 1), at(i, j + 1)]);
+                }
+            }
+            t
+        };
+        let flat = grid(0.0);
+        let (lo, hi) = flat.iter().flatten().fold(
+            (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY)),
+            |(a, b), p| (a.inf(p), b.sup(p)),
+        );
+        // The pushes change the box by far less than the margins below.
+        let tol = PLANAR_REL * (hi - lo).norm();
+        let p = plane_of(grid(0.5 * tol).iter()).expect("within the tolerance");
+        assert_relative_eq!(p.normal.dot(&n).abs(), 1.0, epsilon = 1e-9);
+        assert!(plane_of(grid(3.0 * tol).iter()).is_none());
     }
 }
