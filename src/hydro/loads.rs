@@ -186,7 +186,7 @@ mod tests {
         let base = n * 4.0 / Vec3::new(1.0, 2.0, 3.0).norm();
         let grid = |off: f64| -> Vec<Tri> {
             let at = |i: usize, j: usize| -> Vec3 {
-                let sign = if (i + j) % 2 == 0 { 1.0 } else { -1.0 };
+                let sign = if (i + j).is_multiple_of(2) { 1.0 } else { -1.0 };
                 base + u * i as f64 + v * j as f64 + n * sign * off
             };
             let mut t = Vec::new();
