@@ -57,6 +57,11 @@ pub enum ComputeError {
     },
     #[error("the mesh has no facets")]
     Empty,
+    #[error(
+        "the mesh has {facets} facets, more than the {} the topology can number",
+        crate::limits::FACETS_CEILING
+    )]
+    TooManyFacets { facets: usize },
     #[error("a result came out non-finite ({what}); check the mesh coordinates and sidecar values")]
     NonFinite { what: String },
 }
@@ -294,6 +299,13 @@ pub fn compute_model(
 ) -> Result<(MeshResult, Model), ComputeError> {
     if mesh.facets.is_empty() {
         return Err(ComputeError::Empty);
+    }
+    // The readers refuse such meshes first (their cap is at most this); a mesh built in
+    // code is checked here.
+    if mesh.facets.len() > crate::limits::FACETS_CEILING {
+        return Err(ComputeError::TooManyFacets {
+            facets: mesh.facets.len(),
+        });
     }
     let mut warnings = Vec::new();
     let (prep, early) = prepare(mesh, sidecar, &mut warnings)?;
