@@ -182,73 +182,10 @@ impl Topology {
         // Edge findings follow, ordered by edge as found (lower vertex, then higher).
         defects.append(&mut groups);
 
-        // Shells and winding in one flood fill over the manifold edges: the facets it
-        // reaches from the lowest facet not yet reached are one piece, and a neighbour
-        // across an edge traversed in the same direction must be read reversed relative
-        // to this facet. Pieces joined at non-manifold edges are one shell.
-        let mut facet_shell = vec![NO_SHELL; n];
-        // Per facet: not reached yet, reached as stored, or reached reversed (one byte a
-        // facet, so the checks of the neighbours stay in cache).
-        const UNSEEN: u8 = 0;
-        const AS_STORED: u8 = 1;
-        const REVERSED: u8 = 2;
-        let mut reach = vec![UNSEEN; n];
-        let mut shells: Vec<ShellInfo> = Vec::new();
-        let mut queue: Vec<u32> = Vec::new();
-        for f in 0..n {
-            if degenerate[f] || reach[f] != UNSEEN {
-                continue;
-            }
-            let piece = shells.len() as u32;
-            let mut sh = ShellInfo {
-                facets: 0,
-                facet_span: (f, f),
-                closed: true,
-                orientable: true,
-                volume: 0.0,
-                inverted: false,
-                flipped_facets: 0,
-                depth: 0,
-                children: 0,
-            };
-            facet_shell[f] = piece;
-            reach[f] = AS_STORED;
-            queue.clear();
-            queue.push(f as u32);
-            let mut head = 0;
-            while head < queue.len() {
-                let c = queue[head] as usize;
-                head += 1;
-                sh.facets += 1;
-                sh.facet_span.1 = sh.facet_span.1.max(c);
-                if bad_facet[c] {
-                    sh.closed = false;
-                }
-                let reversed = reach[c] == REVERSED;
-                for a in adj.of(c) {
-                    if a == NO_NEIGHBOUR {
-                        continue;
-                    }
-                    let (g, same) = ((a >> 1) as usize, a & 1 == 1);
-                    let want = if reversed ^ same { REVERSED } else { AS_STORED };
-                    if reach[g] == UNSEEN {
-                        reach[g] = want;
-                        facet_shell[g] = piece;
-                        queue.push(g as u32);
-                    } else if reach[g] != want {
-                        sh.orientable = false;
-                        sh.closed = false;
-                    }
-                }
-            }
-            shells.push(sh);
-        }
-        drop((adj, queue, bad_facet));
-        let mut flip: Vec<bool> = {
-            use rayon::prelude::*;
-            reach.par_iter().map(|&r| r == REVERSED).collect()
-        };
-        drop(reach);
+        // Shells and winding in one flood fill over the manifold edges; pieces joined at
+        // non-manifold edges are one shell.
+        let (mut facet_shell, mut flip, mut shells) = flood(&degenerate, &adj, &bad_facet);
+        drop((adj, bad_facet));
         if !joins.is_empty() {
             shells = join_pieces(shells, &joins, &mut facet_shell);
         }
@@ -837,6 +774,79 @@ impl Neighbours {
     fn of(&self, f: usize) -> [u32; 3] {
         [0, 1, 2].map(|k| self.0[3 * f + k].load(Ordering::Relaxed))
     }
+}
+
+/// Shells and winding in one flood fill over the manifold edges: the facets it reaches
+/// from the lowest facet not yet reached are one piece (numbered in that order), and a
+/// neighbour across an edge traversed in the same direction must be read reversed
+/// relative to this facet. Returns each facet's piece ([`NO_SHELL`] if degenerate), whether
+/// it is read reversed, and the pieces.
+fn flood(
+    degenerate: &[bool],
+    adj: &Neighbours,
+    bad_facet: &[bool],
+) -> (Vec<u32>, Vec<bool>, Vec<ShellInfo>) {
+    use rayon::prelude::*;
+    let n = degenerate.len();
+    let mut facet_shell = vec![NO_SHELL; n];
+    // Per facet: not reached yet, reached as stored, or reached reversed (one byte a facet,
+    // so the checks of the neighbours stay in cache).
+    const UNSEEN: u8 = 0;
+    const AS_STORED: u8 = 1;
+    const REVERSED: u8 = 2;
+    let mut reach = vec![UNSEEN; n];
+    let mut shells: Vec<ShellInfo> = Vec::new();
+    let mut queue: Vec<u32> = Vec::new();
+    for f in 0..n {
+        if degenerate[f] || reach[f] != UNSEEN {
+            continue;
+        }
+        let piece = shells.len() as u32;
+        let mut sh = ShellInfo {
+            facets: 0,
+            facet_span: (f, f),
+            closed: true,
+            orientable: true,
+            volume: 0.0,
+            inverted: false,
+            flipped_facets: 0,
+            depth: 0,
+            children: 0,
+        };
+        facet_shell[f] = piece;
+        reach[f] = AS_STORED;
+        queue.clear();
+        queue.push(f as u32);
+        let mut head = 0;
+        while head < queue.len() {
+            let c = queue[head] as usize;
+            head += 1;
+            sh.facets += 1;
+            sh.facet_span.1 = sh.facet_span.1.max(c);
+            if bad_facet[c] {
+                sh.closed = false;
+            }
+            let reversed = reach[c] == REVERSED;
+            for a in adj.of(c) {
+                if a == NO_NEIGHBOUR {
+                    continue;
+                }
+                let (g, same) = ((a >> 1) as usize, a & 1 == 1);
+                let want = if reversed ^ same { REVERSED } else { AS_STORED };
+                if reach[g] == UNSEEN {
+                    reach[g] = want;
+                    facet_shell[g] = piece;
+                    queue.push(g as u32);
+                } else if reach[g] != want {
+                    sh.orientable = false;
+                    sh.closed = false;
+                }
+            }
+        }
+        shells.push(sh);
+    }
+    let flip = reach.par_iter().map(|&r| r == REVERSED).collect();
+    (facet_shell, flip, shells)
 }
 
 /// Sums of `value(f)` over the facets `f` of each shell: within fixed blocks of facets on
