@@ -1322,7 +1322,8 @@ fn loads_of(
             couple: l.couple,
         }),
         centre_of_pressure,
-        horizontal_force: acc.force.xy().norm(),
+        // `hypot`: no overflow while the components themselves are finite.
+        horizontal_force: acc.force.x.hypot(acc.force.y),
         vertical_force: acc.force.z,
         max_pressure: if acc.max_pressure.is_finite() {
             acc.max_pressure
@@ -1370,18 +1371,66 @@ fn check_finite(r: &MeshResult) -> Result<(), ComputeError> {
         let sets = std::iter::once(("the whole mesh", &c.loads))
             .chain(c.parts.iter().map(|p| (p.name.as_str(), &p.loads)));
         for (who, l) in sets {
-            let scalars = [l.wetted_area, l.uplift, l.downthrust, l.max_pressure];
+            let scalars = [
+                l.wetted_area,
+                l.uplift,
+                l.downthrust,
+                l.max_pressure,
+                l.horizontal_force,
+                l.vertical_force,
+            ];
+            let optional = l
+                .submerged_volume
+                .into_iter()
+                .chain(l.centre_of_buoyancy.into_iter().flatten())
+                .chain(l.centre_of_pressure.into_iter().flatten())
+                .chain(
+                    l.line_of_action
+                        .iter()
+                        .flat_map(|a| a.point.into_iter().chain(a.direction).chain([a.couple])),
+                )
+                .chain(
+                    l.axis_moments
+                        .values()
+                        .flat_map(|a| std::iter::once(a.moment).chain(a.miss_distance)),
+                );
             if l.force
                 .iter()
                 .chain(&l.moment)
                 .chain(&scalars)
-                .any(|&x| bad(x))
-                || l.submerged_volume.is_some_and(bad)
+                .copied()
+                .chain(optional)
+                .any(bad)
             {
                 return Err(ComputeError::NonFinite {
                     what: format!("case \"{}\", {who}", c.name),
                 });
             }
+        }
+        for step in c.sweep.iter().flatten() {
+            let mut values = [step.level, step.uplift, step.downthrust, step.wetted_area]
+                .into_iter()
+                .chain(step.force)
+                .chain(step.moment)
+                .chain(step.submerged_volume)
+                .chain(step.flotation_factor.flatten())
+                .chain(
+                    step.axis_moments
+                        .values()
+                        .flat_map(|a| std::iter::once(a.moment).chain(a.miss_distance)),
+                );
+            if values.any(bad) {
+                return Err(ComputeError::NonFinite {
+                    what: format!("case \"{}\", the sweep at level {}", c.name, step.level),
+                });
+            }
+        }
+        if let Some(f) = &c.flotation
+            && [f.uplift, f.resisting].into_iter().chain(f.factor).any(bad)
+        {
+            return Err(ComputeError::NonFinite {
+                what: format!("case \"{}\", the flotation check", c.name),
+            });
         }
     }
     Ok(())
@@ -1519,6 +1568,29 @@ mod tests {
             }
             assert_relative_eq!(a.uplift, b.uplift, max_relative = 1e-12);
             assert!(!other.warnings.is_empty(), "the repair is reported");
+        }
+    }
+
+    #[test]
+    fn huge_loads_stay_finite_or_are_refused_never_written_as_nulls() {
+        // Found by fuzzing: a plate 10^78 ft tall, wetted to its top, carries about
+        // 10^161 N, finite; its horizontal component was the norm of (Fx, Fy), whose
+        // square overflowed, and non-finite values reached the result as nulls.
+        let obj = "v 0 0 0\nv 1 0 0\nv 1 0 1e78\nv 0 0 1e78\nf 1 2 3 4\n";
+        let mesh = crate::mesh::read_mesh(Path::new("tall.obj"), obj.as_bytes()).expect("reads");
+        let json = |level: &str| {
+            format!(
+                r#"{{"units": "ft", "wet_side": "front", "liquid": {{"level": {level}, "density": 1000}}}}"#
+            )
+        };
+        let r = compute("tall.obj", &mesh, &side(&json("1e80"))).expect("finite loads");
+        let l = &r.cases[0].loads;
+        assert!(l.force[1].abs() > 1e160 && l.force[0] == 0.0);
+        assert_eq!(l.horizontal_force, l.force[1].abs());
+        // A level 10^300 ft up: pressures near 10^304 Pa times 10^76 m² overflow.
+        match compute("tall.obj", &mesh, &side(&json("1e300"))) {
+            Err(ComputeError::NonFinite { what }) => assert!(what.contains("case"), "{what}"),
+            other => panic!("expected a refusal, got {other:?}"),
         }
     }
 
