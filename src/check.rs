@@ -10,7 +10,7 @@ use std::collections::BTreeSet;
 
 use serde::Serialize;
 
-use crate::hydro::{Defect, NO_SHELL, Topology, Tri, Vec3};
+use crate::hydro::{Defect, NO_SHELL, Topology, Tri};
 use crate::mesh::Mesh;
 pub use crate::mesh::STALE_NORMAL_DEG;
 
@@ -54,12 +54,10 @@ pub struct PartHealth {
 /// Checks `mesh`; `scale` converts mesh units to metres when known.
 pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
     let s = scale.unwrap_or(1.0);
-    let tris: Vec<Tri> = mesh
-        .facets
-        .iter()
-        .map(|t| t.map(|p| Vec3::new(p[0] * s, p[1] * s, p[2] * s)))
-        .collect();
-    let topo = Topology::build(&tris);
+    // The topology in the file's units (its tolerance is relative to the size, so the
+    // scale does not matter to it), read in place; sizes are scaled when reported.
+    let tris: &[Tri] = bytemuck::cast_slice(&mesh.facets);
+    let topo = Topology::build(tris);
     let mut parts = Vec::with_capacity(mesh.parts.len());
     for part in &mesh.parts {
         let range = part.facets.clone();
@@ -90,7 +88,10 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
                         -sh.volume
                     }
                 })
-                .sum()
+                .sum::<f64>()
+                * s
+                * s
+                * s
         });
         let mut lo = [f64::INFINITY; 3];
         let mut hi = [f64::NEG_INFINITY; 3];
@@ -107,6 +108,7 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
             let a = (t[1] - t[0]).cross(&(t[2] - t[0]));
             area += 0.5 * a.norm();
         }
+        let (lo, hi, area) = (lo.map(|v| v * s), hi.map(|v| v * s), area * s * s);
         parts.push(PartHealth {
             name: part.name.clone(),
             facets: range.len(),
@@ -277,6 +279,18 @@ mod tests {
         assert_eq!((p.shells, p.open_edges, p.stale_normals), (1, 0, 0));
         assert!((p.surface_area - 6.0).abs() < 1e-12);
         assert!((p.volume.expect("closed") - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn sizes_are_reported_in_metres_for_a_mesh_in_millimetres() {
+        // A 1000 mm cube: 1 m³, 6 m², a box from 0 to 1 m; the same counts as in metres.
+        let cube = shapes::box_solid([0.0; 3], [1000.0; 3], 2);
+        let h = check("mm.stl", &mesh(vec![("c", cube)], true), Some(1e-3));
+        let p = &h.parts[0];
+        assert!(h.usable_as_is && p.closed && p.shells == 1);
+        assert!((p.volume.expect("closed") - 1.0).abs() < 1e-12);
+        assert!((p.surface_area - 6.0).abs() < 1e-12);
+        assert_eq!(p.bounding_box, [[0.0; 3], [1.0; 3]]);
     }
 
     #[test]

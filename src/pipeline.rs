@@ -190,11 +190,11 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
     Ok(mesh::read_mesh_with(path, &bytes, &limits)?)
 }
 
-/// Reads and parses a mesh file alone, under the limits of [`crate::limits::current`].
+/// Reads and parses a mesh file alone, under the limits of [`crate::limits::current`]
+/// (a binary STL a block at a time, as in [`calc_file`]).
 pub fn read_mesh_file(path: &Path) -> Result<Mesh, RunError> {
-    let limits = crate::limits::current();
-    let bytes = read_file(path, limits.max_file_bytes, false)?;
-    Ok(mesh::read_mesh_with(path, &bytes, &limits)?)
+    let (file, len) = open_capped(path, crate::limits::current().max_file_bytes)?;
+    read_mesh_streamed(path, file, len)
 }
 
 /// Parses and computes inputs already read (no file system access).
