@@ -147,15 +147,16 @@ impl Topology {
             open_edges,
             non_manifold_edges,
             inconsistent_edges,
-            findings: mut groups,
+            findings: groups,
             bad,
             joins,
         } = edges.findings;
         let adj = edges.neighbours;
         let mut bad_facet = vec![false; n]; // touches an open or non-manifold edge
-        for f in bad {
+        for &f in bad.iter() {
             bad_facet[f as usize] = true;
         }
+        drop(bad);
 
         // Duplicate facets. Two facets with the same three vertices share all three edges:
         // when every edge is manifold, they are each other's only neighbours; otherwise
@@ -178,16 +179,19 @@ impl Topology {
         };
         drop(ids);
         let duplicate_facets = duplicates.len();
+        defects.reserve_exact(duplicates.len() + groups.iter().count());
         defects.extend(duplicates.into_iter().map(|f| (Defect::Duplicate, f)));
         // Edge findings follow, ordered by edge as found (lower vertex, then higher).
-        defects.append(&mut groups);
+        for block in groups.0 {
+            defects.extend(block);
+        }
 
         // Shells and winding in one flood fill over the manifold edges; pieces joined at
         // non-manifold edges are one shell.
         let (mut facet_shell, mut flip, mut shells) = flood(&degenerate, &adj, &bad_facet);
         drop((adj, bad_facet));
         if !joins.is_empty() {
-            shells = join_pieces(shells, &joins, &mut facet_shell);
+            shells = join_pieces(shells, &joins.into_vec(), &mut facet_shell);
         }
 
         // Signed volume per shell about the box centre (no cancellation far from origin).
@@ -663,10 +667,7 @@ impl Incidence {
                 out
             })
             .collect();
-        let findings = found
-            .into_iter()
-            .reduce(EdgeFindings::append)
-            .unwrap_or_default();
+        let findings = EdgeFindings::concat(found);
         Edges {
             findings,
             neighbours,
@@ -704,11 +705,11 @@ struct EdgeFindings {
     non_manifold_edges: usize,
     inconsistent_edges: usize,
     /// Each finding with the edge's first facet, in order of edge.
-    findings: Vec<(Defect, u32)>,
+    findings: Blocks<(Defect, u32)>,
     /// Facets on an open or non-manifold edge.
-    bad: Vec<u32>,
+    bad: Blocks<u32>,
     /// Pairs of facets joined at a non-manifold edge.
-    joins: Vec<(u32, u32)>,
+    joins: Blocks<(u32, u32)>,
 }
 
 impl EdgeFindings {
@@ -742,15 +743,60 @@ impl EdgeFindings {
         }
     }
 
-    /// These findings followed by `later`'s.
-    fn append(mut self, mut later: EdgeFindings) -> EdgeFindings {
-        self.open_edges += later.open_edges;
-        self.non_manifold_edges += later.non_manifold_edges;
-        self.inconsistent_edges += later.inconsistent_edges;
-        self.findings.append(&mut later.findings);
-        self.bad.append(&mut later.bad);
-        self.joins.append(&mut later.joins);
-        self
+    /// The findings of consecutive ranges as one (their blocks in order, none copied).
+    fn concat(parts: Vec<EdgeFindings>) -> EdgeFindings {
+        let mut all = EdgeFindings::default();
+        for p in parts {
+            all.open_edges += p.open_edges;
+            all.non_manifold_edges += p.non_manifold_edges;
+            all.inconsistent_edges += p.inconsistent_edges;
+            all.findings.0.extend(p.findings.0);
+            all.bad.0.extend(p.bad.0);
+            all.joins.0.extend(p.joins.0);
+        }
+        all
+    }
+}
+
+/// A list grown in blocks of a fixed size: it never copies or frees a block as it grows,
+/// so a mesh with many findings leaves no trail of outgrown buffers behind.
+struct Blocks<T>(Vec<Vec<T>>);
+
+impl<T> Default for Blocks<T> {
+    fn default() -> Self {
+        Blocks(Vec::new())
+    }
+}
+
+impl<T> Blocks<T> {
+    const SIZE: usize = 1 << 14;
+
+    fn push(&mut self, value: T) {
+        match self.0.last_mut() {
+            Some(block) if block.len() < Self::SIZE => block.push(value),
+            _ => {
+                let mut block = Vec::with_capacity(Self::SIZE);
+                block.push(value);
+                self.0.push(block);
+            }
+        }
+    }
+
+    /// Every value in order, in one vector of exactly their number.
+    fn into_vec(self) -> Vec<T> {
+        let mut all = Vec::with_capacity(self.0.iter().map(Vec::len).sum());
+        for block in self.0 {
+            all.extend(block);
+        }
+        all
+    }
+
+    fn is_empty(&self) -> bool {
+        self.0.iter().all(Vec::is_empty)
+    }
+
+    fn iter(&self) -> impl Iterator<Item = &T> {
+        self.0.iter().flatten()
     }
 }
 
@@ -1300,6 +1346,19 @@ mod tests {
     }
 
     #[test]
+    fn blocks_keep_their_order_across_blocks() {
+        let mut b = Blocks::default();
+        assert!(b.is_empty());
+        let n = 2 * Blocks::<u32>::SIZE + 7;
+        for i in 0..n as u32 {
+            b.push(i);
+        }
+        assert_eq!(b.0.len(), 3);
+        assert!(b.iter().copied().eq(0..n as u32));
+        assert_eq!(b.into_vec(), (0..n as u32).collect::<Vec<_>>());
+    }
+
+    #[test]
     fn edges_found_in_ranges_of_vertices_are_those_found_in_one() {
         // A torus with holes, a duplicate, a fin (non-manifold) and reversed facets.
         let mut t = tris(shapes::torus([0.0; 3], 3.0, 1.0, 48, 24));
@@ -1340,11 +1399,12 @@ mod tests {
                     ref_edges.inconsistent_edges
                 )
             );
-            assert_eq!(f.findings, ref_edges.findings);
-            assert_eq!(
-                (f.bad, f.joins),
-                (ref_edges.bad.clone(), ref_edges.joins.clone())
-            );
+            fn list<T: Copy>(b: &Blocks<T>) -> Vec<T> {
+                b.iter().copied().collect()
+            }
+            assert_eq!(list(&f.findings), list(&ref_edges.findings));
+            assert_eq!(list(&f.bad), list(&ref_edges.bad));
+            assert_eq!(f.joins.into_vec(), list(&ref_edges.joins));
         }
     }
 
