@@ -168,9 +168,7 @@ impl Topology {
                 .filter(|&f| {
                     let a = adj.of(f);
                     let g = a[0] >> 1;
-                    a[0] != NO_NEIGHBOUR
-                        && (g as usize) < f
-                        && a.iter().all(|&x| x != NO_NEIGHBOUR && x >> 1 == g)
+                    (g as usize) < f && a.iter().all(|&x| x != NO_NEIGHBOUR && x >> 1 == g)
                 })
                 .map(|f| f as u32)
                 .collect()
@@ -179,7 +177,7 @@ impl Topology {
         };
         drop(ids);
         let duplicate_facets = duplicates.len();
-        defects.reserve_exact(duplicates.len() + groups.iter().count());
+        defects.reserve_exact(duplicates.len() + groups.len());
         defects.extend(duplicates.into_iter().map(|f| (Defect::Duplicate, f)));
         // Edge findings follow, ordered by edge as found (lower vertex, then higher).
         for block in groups.0 {
@@ -784,15 +782,19 @@ impl<T> Blocks<T> {
 
     /// Every value in order, in one vector of exactly their number.
     fn into_vec(self) -> Vec<T> {
-        let mut all = Vec::with_capacity(self.0.iter().map(Vec::len).sum());
+        let mut all = Vec::with_capacity(self.len());
         for block in self.0 {
             all.extend(block);
         }
         all
     }
 
+    fn len(&self) -> usize {
+        self.0.iter().map(Vec::len).sum()
+    }
+
     fn is_empty(&self) -> bool {
-        self.0.iter().all(Vec::is_empty)
+        self.len() == 0
     }
 
     fn iter(&self) -> impl Iterator<Item = &T> {
