@@ -22,7 +22,6 @@ use std::thread;
 use std::time::{Duration, Instant};
 
 use criterion::{Criterion, SamplingMode, criterion_group, criterion_main};
-use wetload::shapes;
 
 /// The watcher's default debounce window (`--debounce-ms`), which the bench keeps.
 const DEBOUNCE: Duration = Duration::from_millis(500);

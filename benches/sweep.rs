@@ -26,7 +26,6 @@ use wetload::hydro::{
     Wetting,
 };
 use wetload::mesh::{Format, Mesh};
-use wetload::shapes;
 use wetload::sidecar::parse_sidecar;
 
 const G: f64 = 9.80665;

@@ -2,7 +2,7 @@
 //! folder: five meshes, a sidecar `<stem>.json` beside each, and a README.
 //!
 //! `cargo run --example demo_meshes -- meshes/` regenerates `meshes/` byte for byte: the
-//! shapes come from `wetload::shapes`, which uses no randomness, and the sidecars are
+//! shapes come from `shapes`, which uses no randomness, and the sidecars are
 //! written as fixed text. Every value is invented for the demo.
 //!
 //! It does not compute loads; the README lists closed-form values to compare against.
@@ -12,8 +12,8 @@ use std::path::Path;
 use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
-use wetload::shapes::encode::{obj, stl_ascii, stl_binary};
-use wetload::shapes::{Triangle, box_solid, cylinder_patch, rectangle, rectangular_tube, scale};
+use shapes::encode::{obj, stl_ascii, stl_binary};
+use shapes::{Triangle, box_solid, cylinder_patch, rectangle, rectangular_tube, scale};
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();

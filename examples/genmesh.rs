@@ -11,7 +11,7 @@
 //!
 //! Either has about N facets (the nearest grid the shape allows), every vertex moved by a
 //! seeded pseudo-random offset of at most a tenth of the shortest grid edge
-//! ([`wetload::shapes::perturb`]: shared vertices move alike, so the torus stays closed).
+//! ([`shapes::perturb`]: shared vertices move alike, so the torus stays closed).
 //! The sidecar puts the free surface at `z = 0` through the middle of the shape, so it is
 //! partly submerged: units m, density 1000 kg/m³, and `wet_side` front for the open one.
 //! The output depends only on the arguments, byte for byte.
@@ -26,8 +26,8 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
 use clap::Parser;
-use wetload::shapes::encode::stl_binary;
-use wetload::shapes::{cylinder_patch, perturb, torus};
+use shapes::encode::stl_binary;
+use shapes::{cylinder_patch, perturb, torus};
 
 /// Write a perturbed test mesh of about N facets as binary STL, with its sidecar.
 #[derive(Parser)]

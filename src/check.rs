@@ -241,7 +241,6 @@ pub fn render(h: &Health) -> String {
 mod tests {
     use super::*;
     use crate::mesh::Format;
-    use crate::shapes;
 
     fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>, normals: bool) -> Mesh {
         let mut m = Mesh::from_parts(parts, Format::StlAscii);

@@ -1442,7 +1442,7 @@ fn check_finite(r: &MeshResult) -> Result<(), ComputeError> {
 mod tests {
     use super::*;
     use crate::mesh::Format;
-    use crate::shapes;
+
     use crate::sidecar::parse_sidecar;
     use approx::assert_relative_eq;
     use std::path::Path;

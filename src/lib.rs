@@ -12,7 +12,6 @@ pub mod mesh;
 pub mod outputs;
 pub mod pipeline;
 pub mod report;
-pub mod shapes;
 pub mod sidecar;
 pub mod watch;
 

@@ -259,7 +259,7 @@ fn read_log(dir: &Path) -> Vec<Value> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::shapes::{self, encode};
+    use shapes::encode;
 
     #[test]
     fn names_never_leave_the_folder() {

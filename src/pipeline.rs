@@ -306,7 +306,7 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), RunError> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::shapes::{self, encode};
+    use shapes::encode;
 
     /// Reads `bytes`, written to a file named `name`, both ways.
     fn both_ways(name: &str, bytes: &[u8]) -> (Result<Mesh, String>, Result<Mesh, String>) {

@@ -585,7 +585,6 @@ fn combine(d: &Deep, h: &High, c: f64, p_s: f64, l: f64, column: &Column) -> Par
 mod tests {
     use super::*;
     use crate::hydro::{Layer, PartInput, integrate};
-    use crate::shapes;
 
     const G: f64 = 9.80665;
 

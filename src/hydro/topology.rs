@@ -1099,7 +1099,6 @@ impl UnionFind {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::shapes;
 
     fn tris(t: Vec<shapes::Triangle>) -> Vec<Tri> {
         t.into_iter()

@@ -71,7 +71,7 @@ mod tests {
     use super::*;
     use crate::compute::{compute, field};
     use crate::mesh::{Format, Mesh, Part};
-    use crate::shapes;
+
     use crate::sidecar::parse_sidecar;
     use approx::assert_relative_eq;
     use std::path::Path;

@@ -555,8 +555,7 @@ mod tests {
         // A vertical plate 2 m wide, sill at 0, top at 3 m; the level swept 0 → 3 m.
         // Closed form at the top level: F = ½ρgH²w = ½·1000·9.80665·9·2 = 88.25985 kN,
         // moment about the sill line ρgwH³/6 = 88.25985 kN·m.
-        let plate =
-            crate::shapes::rectangle([0.0, 0.0, 0.0], [0.0, 0.0, 3.0], [0.0, 2.0, 0.0], 3, 2);
+        let plate = shapes::rectangle([0.0, 0.0, 0.0], [0.0, 0.0, 3.0], [0.0, 2.0, 0.0], 3, 2);
         let mesh = Mesh::from_parts(vec![("plate", plate)], Format::Obj);
         let side = crate::sidecar::parse_sidecar(
             Path::new("p.json"),

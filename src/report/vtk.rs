@@ -242,7 +242,7 @@ mod tests {
     use super::*;
     use crate::compute::{self, field};
     use crate::mesh::{Format, Mesh};
-    use crate::shapes;
+
     use crate::sidecar::parse_sidecar;
     use approx::assert_relative_eq;
     use std::path::Path;

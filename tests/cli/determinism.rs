@@ -3,8 +3,6 @@
 
 use std::fs;
 
-use wetload::shapes;
-
 use crate::{Folder, binary_stl};
 
 /// A stratified liquid and a plain one, so clipping at several planes is exercised.

@@ -405,7 +405,7 @@ fn truncated_binary_stl() {
 #[test]
 fn truncated_binary_stl_whose_header_starts_with_solid() {
     // Some CAD systems write `solid` into a binary header; cut short, it is neither format.
-    let bytes = wetload::shapes::encode::stl_binary(&box_tris(), "solid exported by a CAD");
+    let bytes = shapes::encode::stl_binary(&box_tris(), "solid exported by a CAD");
     mesh_refused("stl", &bytes[..bytes.len() - 25], None);
 }
 

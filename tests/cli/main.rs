@@ -14,8 +14,8 @@ use std::path::{Path, PathBuf};
 use std::process::Output;
 
 use assert_cmd::cargo::cargo_bin_cmd;
+use shapes::{self, Triangle, encode};
 use tempfile::TempDir;
-use wetload::shapes::{self, Triangle, encode};
 
 /// Standard gravity, the sidecar's default, m/s².
 const G: f64 = 9.80665;

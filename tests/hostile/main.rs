@@ -15,8 +15,8 @@ use std::fs;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
+use shapes::{self, Triangle, encode};
 use tempfile::TempDir;
-use wetload::shapes::{self, Triangle, encode};
 
 /// Address-space limit of every run, KiB.
 const MEMORY_LIMIT_KIB: u64 = 1 << 20;

@@ -6,8 +6,6 @@
 
 use std::f64::consts::PI;
 
-use wetload::shapes;
-
 use crate::support::*;
 
 const RHO: f64 = 1000.0;

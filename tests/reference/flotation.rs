@@ -6,7 +6,6 @@
 //! factor and the verdict with the reference.
 
 use wetload::compute::FlotationCheck;
-use wetload::shapes;
 
 use crate::support::*;
 

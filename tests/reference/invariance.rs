@@ -14,8 +14,8 @@
 //! * 1e-11 when the mesh is moved 5 km away, where each coordinate carries an absolute
 //!   rounding of about 5000 m × 2⁻⁵³ ≈ 6e-13 m.
 
+use shapes::{self, Triangle};
 use wetload::compute::{Loads, MeshResult};
-use wetload::shapes::{self, Triangle};
 
 use crate::support::*;
 

@@ -17,7 +17,7 @@ use parry3d_f64::math::Vector;
 use parry3d_f64::query::SplitResult;
 use parry3d_f64::shape::{TriMesh, TriMeshFlags};
 use rustc_hash::FxHashMap;
-use wetload::shapes::{self, Triangle};
+use shapes::{self, Triangle};
 
 use crate::support::*;
 

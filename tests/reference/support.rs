@@ -12,9 +12,9 @@
 
 use std::path::Path;
 
+use shapes::Triangle;
 use wetload::compute::{self, ComputeError, Loads, MeshResult};
 use wetload::mesh::{Format, Mesh};
-use wetload::shapes::Triangle;
 use wetload::sidecar::parse_sidecar;
 
 /// Standard gravity, m/s² (exact by definition, 3rd CGPM 1901).

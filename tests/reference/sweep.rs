@@ -10,7 +10,6 @@
 use serde_json::Value;
 use wetload::compute::{MeshResult, SweepStep};
 use wetload::mesh::Mesh;
-use wetload::shapes;
 
 use crate::support::{G, abs, parts, rel, run, single};
 

@@ -15,7 +15,6 @@
 use std::f64::consts::{FRAC_PI_2, PI};
 
 use wetload::compute::Loads;
-use wetload::shapes;
 
 use crate::support::*;
 

@@ -10,8 +10,6 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::thread;
 use std::time::{Duration, Instant};
 
-use wetload::shapes;
-
 use crate::support::*;
 
 const MESHES: [&str; 3] = ["ring_a", "ring_b", "ring_c"];

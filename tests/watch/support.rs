@@ -15,7 +15,6 @@ use std::time::{Duration, Instant};
 
 use serde_json::Value;
 use tempfile::TempDir;
-use wetload::shapes;
 
 /// Debounce window given to every watcher in these tests (short, to keep them fast).
 pub const DEBOUNCE_MS: u64 = 150;

@@ -140,7 +140,7 @@ pub fn obj(groups: &[(&str, &[Triangle])]) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::shapes::{box_solid, icosphere, rectangle};
+    use crate::{box_solid, icosphere, rectangle};
 
     fn f32_at(bytes: &[u8], at: usize) -> f32 {
         f32::from_le_bytes(bytes[at..at + 4].try_into().expect("4 bytes"))

@@ -6,8 +6,8 @@
 //! noise). The encoders in [`encode`] turn such lists into STL and OBJ bytes. Tests,
 //! benchmarks and the demo generator (`examples/demo_meshes.rs`) build their meshes here.
 //!
-//! It does not read files, compute loads or check topology; the hydrostatic core lives in
-//! [`crate::hydro`].
+//! It does not read files, compute loads or check topology; that is wetload's own work,
+//! and this crate never depends on it.
 //!
 //! # Conventions shared by every function here
 //!
