@@ -13,7 +13,7 @@
 //!   edge counts, shells and orientation, i.e. every mesh check `calc` makes;
 //! * `integrate`: `hydro::integrate` with the wetting and volume signs `compute` derives
 //!   (the bench checks it gives `compute`'s force and wetted area bit for bit);
-//! * `write`: `report::json::render` and `pipeline::write_atomic` of the result;
+//! * `write`: `report::json::render` and `results::write_atomic` of the result;
 //! * `calc_file`: `pipeline::calc_file` end to end (read the files, parse, compute, write).
 //!
 //! The bench uses the binary's allocator (mimalloc), so the stages see the same memory
@@ -28,7 +28,7 @@ use wetload::hydro::{
     self, Frame, Liquid, PartAccum, PartInput, Profile, Topology, Tri, UpAxis, Vec3, Wetting,
 };
 use wetload::mesh::{self, Mesh};
-use wetload::{compute, pipeline, report, sidecar};
+use wetload::{compute, pipeline, report, results, sidecar};
 
 #[global_allocator]
 static ALLOC: mimalloc::MiMalloc = mimalloc::MiMalloc;
@@ -147,7 +147,7 @@ fn stages(c: &mut Criterion) {
             // Partly submerged: some facets dry, some wet.
             assert!(acc.loaded_facets > g.facets / 4 && acc.loaded_facets < g.facets * 3 / 4);
             drop(mesh);
-            let out = pipeline::results_dir(&path).join(format!("{shape}_{label}.json"));
+            let out = results::dir_of(&path).join(format!("{shape}_{label}.json"));
 
             let mut group = c.benchmark_group(format!("calc_{shape}_{label}"));
             group.throughput(Throughput::Elements(g.facets as u64));
@@ -175,7 +175,7 @@ fn stages(c: &mut Criterion) {
             group.bench_function("write", |b| {
                 b.iter(|| {
                     let bytes = report::json::render(black_box(&result));
-                    pipeline::write_atomic(&out, &bytes)
+                    results::write_atomic(&out, &bytes)
                 })
             });
             group.bench_function("calc_file", |b| {

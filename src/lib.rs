@@ -9,9 +9,9 @@ pub mod compute;
 pub mod hydro;
 pub mod limits;
 pub mod mesh;
-pub mod outputs;
 pub mod pipeline;
 pub mod report;
+pub mod results;
 pub mod sidecar;
 pub mod watch;
 

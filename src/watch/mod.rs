@@ -29,7 +29,6 @@
 //!   quiet window (and then noted as removed); one that changes while it is read is read
 //!   again.
 
-pub mod changelog;
 pub mod record;
 pub mod schedule;
 
@@ -47,11 +46,12 @@ use notify::{RecursiveMode, Watcher};
 use serde_json::{Value, json};
 use thiserror::Error;
 
-use crate::pipeline::{self, RESULTS_DIR, RunError};
+use crate::pipeline::{self, RunError, outputs};
+use crate::results::changelog::{ChangeLog, LogError};
+use crate::results::{self, Layout};
 
 /// How often a result that could not be written is tried again.
 pub const WRITE_RETRY: Duration = Duration::from_secs(2);
-use changelog::{ChangeLog, LogError};
 pub use schedule::Schedule;
 
 /// Settings of a watch run.
@@ -128,7 +128,7 @@ struct Watch<'a> {
     opts: &'a WatchOptions,
     /// The watched folder, canonical, so event paths compare equal to scanned ones.
     dir: PathBuf,
-    results: PathBuf,
+    results: Layout,
     log: ChangeLog,
     meshes: BTreeMap<PathBuf, MeshState>,
     out: Box<dyn Write + 'a>,
@@ -150,11 +150,13 @@ pub fn run(
     };
     let dir = fs::canonicalize(&opts.dir).map_err(folder_err)?;
     fs::read_dir(&dir).map_err(folder_err)?;
-    let results = dir.join(RESULTS_DIR);
-    if fs::symlink_metadata(&results).is_ok_and(|m| m.file_type().is_symlink()) {
-        return Err(WatchError::ResultsLink { path: results });
+    let results = Layout::new(dir.join(results::DIR_NAME));
+    if fs::symlink_metadata(results.dir()).is_ok_and(|m| m.file_type().is_symlink()) {
+        return Err(WatchError::ResultsLink {
+            path: results.dir().to_owned(),
+        });
     }
-    let (log, recovered) = ChangeLog::open(&results)?;
+    let (log, recovered) = ChangeLog::open(results.dir())?;
     let mut w = Watch {
         opts,
         dir: dir.clone(),
@@ -370,16 +372,16 @@ impl Watch<'_> {
         if !is_json {
             return Vec::new();
         }
-        let stem = pipeline::stem(p);
+        let stem = results::stem(p);
         let mut out: BTreeSet<PathBuf> = scan(&self.dir)
             .into_iter()
-            .filter(|m| pipeline::stem(m) == stem)
+            .filter(|m| results::stem(m) == stem)
             .collect();
         // A mesh that was known but has gone is still worth a look (it will be noted).
         out.extend(
             self.meshes
                 .keys()
-                .filter(|m| pipeline::stem(m) == stem)
+                .filter(|m| results::stem(m) == stem)
                 .cloned(),
         );
         out.into_iter().collect()
@@ -460,8 +462,8 @@ impl Watch<'_> {
             Ok(c) => c,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
         };
-        let out = self.results.join(format!("{}.json", pipeline::stem(mesh)));
-        if let Err(e) = pipeline::write_atomic(&out, &crate::report::json::render(&result)) {
+        let out = self.results.result(mesh);
+        if let Err(e) = results::write_atomic(&out, &crate::report::json::render(&result)) {
             // A full or read-only results folder: say so once, keep running, try again
             // every WRITE_RETRY (and on the next save).
             let st = self.meshes.entry(mesh.to_owned()).or_default();
@@ -483,7 +485,7 @@ impl Watch<'_> {
             return Ok(false);
         }
         // Pictures and exports: the result is written, so a failure here is only reported.
-        if let Err(e) = crate::outputs::write_outputs(mesh, &model, &sidecar, &result) {
+        if let Err(e) = outputs::write_outputs(mesh, &model, &sidecar, &result) {
             self.say(&format!("{} {name} · note: {e}\n", clock()));
         }
         let st = self.meshes.entry(mesh.to_owned()).or_default();
@@ -563,7 +565,7 @@ impl Watch<'_> {
 
     /// Rewrites the folder's page (`live`: it reloads itself); a failure is only reported.
     fn refresh_page(&mut self, live: bool) {
-        match crate::outputs::write_folder_page(&self.results, live) {
+        match outputs::write_folder_page(self.results.dir(), live) {
             Ok(_) => self.page_note = None,
             Err(e) => {
                 // Said once while it keeps failing the same way.
@@ -578,7 +580,7 @@ impl Watch<'_> {
 
     /// Marks `results/<stem>.json` stale with a reason; returns whether one existed.
     fn mark_stale(&mut self, mesh: &Path, reason: &str) -> bool {
-        let path = self.results.join(format!("{}.json", pipeline::stem(mesh)));
+        let path = self.results.result(mesh);
         let Ok(bytes) = fs::read(&path) else {
             return false;
         };
@@ -593,7 +595,7 @@ impl Watch<'_> {
         }
         let mut text = serde_json::to_vec_pretty(&doc).expect("a JSON value always serializes");
         text.push(b'\n');
-        if let Err(e) = pipeline::write_atomic(&path, &text) {
+        if let Err(e) = results::write_atomic(&path, &text) {
             self.say(&format!("note: {e}\n"));
         }
         true

@@ -1,22 +1,26 @@
 //! One recomputation: read a mesh and its sidecar, compute, write the result file.
 //!
-//! `calc`, `watch --once` and the watcher all call [`calc_file`]; the watcher adds only
-//! events and state. This is the only layer that reads inputs and writes results.
+//! `calc`, `watch --once` and the watcher all call into here; the watcher adds only
+//! events and state. This is the only layer that reads inputs; what it writes goes
+//! through [`outputs`] (which writer for which file) into the places that
+//! [`crate::results`] names.
+//!
+//! It does not parse, integrate or render: the mesh readers, the sidecar's validation,
+//! [`crate::compute`] and [`crate::report`] do.
+
+pub mod outputs;
 
 use std::fs;
-use std::io::{self, Read, Write};
+use std::io::{self, Read};
 use std::path::{Path, PathBuf};
 
 use thiserror::Error;
 
 use crate::compute::{self, ComputeError, MeshResult, Model};
 use crate::mesh::{self, BinaryStl, Mesh, MeshError};
-use crate::outputs;
 use crate::report;
+use crate::results::{self, Layout, WriteError};
 use crate::sidecar::{self, Sidecar, SidecarError};
-
-/// Name of the folder, beside the meshes, that receives every output.
-pub const RESULTS_DIR: &str = "results";
 
 /// Why one mesh could not be computed. Every message names the file.
 #[derive(Debug, Error)]
@@ -39,8 +43,8 @@ pub enum RunError {
         sidecar: PathBuf,
         source: Box<ComputeError>,
     },
-    #[error("cannot write {}: {source}", path.display())]
-    Write { path: PathBuf, source: io::Error },
+    #[error(transparent)]
+    Write(#[from] WriteError),
     #[error(
         "{}: the file is {}, more than the {} wetload reads{}",
         path.display(),
@@ -86,19 +90,6 @@ fn read_error(path: &Path, e: crate::limits::ReadError, sidecar: bool) -> RunErr
 /// The sidecar of a mesh: `<stem>.json` beside it.
 pub fn sidecar_path(mesh: &Path) -> PathBuf {
     mesh.with_extension("json")
-}
-
-/// The results folder of a mesh: `results/` beside it.
-pub fn results_dir(mesh: &Path) -> PathBuf {
-    mesh.parent()
-        .map_or_else(|| PathBuf::from(RESULTS_DIR), |d| d.join(RESULTS_DIR))
-}
-
-/// The file stem of a path as text (lossy for names that are not UTF-8).
-pub fn stem(path: &Path) -> String {
-    path.file_stem()
-        .map(|s| s.to_string_lossy().into_owned())
-        .unwrap_or_default()
 }
 
 /// The inputs of one computation as read from disk.
@@ -251,56 +242,19 @@ pub fn calc_file(mesh_path: &Path) -> Result<MeshResult, RunError> {
     let sidecar = sidecar::parse_sidecar(&sidecar_path(mesh_path), &sidecar_text)?;
     let mesh = read_mesh_streamed(mesh_path, file, len)?;
     let computed = compute_mesh(mesh_path, mesh, sidecar)?;
-    let dir = results_dir(mesh_path);
-    let out = dir.join(format!("{}.json", stem(mesh_path)));
-    write_atomic(&out, &report::json::render(&computed.result))?;
+    let layout = Layout::of_mesh(mesh_path);
+    results::write_atomic(
+        &layout.result(mesh_path),
+        &report::json::render(&computed.result),
+    )?;
     outputs::write_outputs(
         mesh_path,
         &computed.model,
         &computed.sidecar,
         &computed.result,
     )?;
-    outputs::write_folder_page(&dir, false)?;
+    outputs::write_folder_page(layout.dir(), false)?;
     Ok(computed.result)
-}
-
-/// Writes `bytes` to `path` so that readers see the old file or the new one, never a
-/// part: a temporary file in the same folder, flushed to disk, renamed over the target,
-/// then the folder flushed. Creates the folder if needed.
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), RunError> {
-    let err = |source| RunError::Write {
-        path: path.to_owned(),
-        source,
-    };
-    let dir = path.parent().unwrap_or(Path::new("."));
-    // Never write through a link: results stay inside the folder they belong to.
-    if fs::symlink_metadata(dir).is_ok_and(|m| m.file_type().is_symlink()) {
-        return Err(err(io::Error::other(
-            "the folder is a symbolic link, and wetload writes results only into a real folder; replace the link with a folder",
-        )));
-    }
-    fs::create_dir_all(dir).map_err(err)?;
-    let mut tmp = tempfile::Builder::new()
-        .prefix(".wetload-")
-        .suffix(".tmp")
-        .tempfile_in(dir)
-        .map_err(err)?;
-    tmp.write_all(bytes).map_err(err)?;
-    // Temporary files are created private (0600); results are meant to be shared.
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::PermissionsExt;
-        tmp.as_file()
-            .set_permissions(fs::Permissions::from_mode(0o644))
-            .map_err(err)?;
-    }
-    tmp.as_file().sync_all().map_err(err)?;
-    tmp.persist(path).map_err(|e| err(e.error))?;
-    // Make the rename itself durable; a folder that cannot be opened for this is no error.
-    if let Ok(d) = fs::File::open(dir) {
-        let _ = d.sync_all();
-    }
-    Ok(())
 }
 
 #[cfg(test)]

@@ -28,6 +28,8 @@ use std::path::{Path, PathBuf};
 use serde_json::Value;
 use thiserror::Error;
 
+use super::Layout;
+
 /// File name of the change log inside `results/`.
 pub const LOG_NAME: &str = "changes.jsonl";
 /// File name of the lock inside `results/`.
@@ -67,13 +69,14 @@ impl ChangeLog {
     /// Opens (creating) `dir/changes.jsonl` for appending, takes the folder lock, repairs
     /// a torn last line and returns the complete lines.
     pub fn open(dir: &Path) -> Result<(ChangeLog, Recovered), LogError> {
-        let path = dir.join(LOG_NAME);
+        let layout = Layout::new(dir.to_owned());
+        let path = layout.change_log();
         let io_err = |source| LogError::Io {
             path: path.clone(),
             source,
         };
         fs::create_dir_all(dir).map_err(io_err)?;
-        let lock_path = dir.join(LOCK_NAME);
+        let lock_path = layout.lock();
         let lock = OpenOptions::new()
             .create(true)
             .truncate(false)
@@ -98,7 +101,7 @@ impl ChangeLog {
         let complete = bytes.iter().rposition(|&b| b == b'\n').map_or(0, |i| i + 1);
         if complete < bytes.len() {
             let torn = &bytes[complete..];
-            let aside = dir.join(format!("{LOG_NAME}.torn"));
+            let aside = layout.torn_lines();
             let mut f = OpenOptions::new()
                 .create(true)
                 .append(true)
@@ -157,6 +160,19 @@ impl ChangeLog {
     pub fn path(&self) -> &Path {
         &self.path
     }
+}
+
+/// The complete, parseable lines of the change log in the results folder `dir` (none when
+/// there is no log); lines that are not JSON, and a torn last line, are skipped. For
+/// readers such as the page; the watcher's own reading is [`ChangeLog::open`].
+pub fn read_lines(dir: &Path) -> Vec<Value> {
+    let Ok(bytes) = fs::read(Layout::new(dir.to_owned()).change_log()) else {
+        return Vec::new();
+    };
+    bytes
+        .split(|&b| b == b'\n')
+        .filter_map(|line| serde_json::from_slice(line).ok())
+        .collect()
 }
 
 #[cfg(test)]

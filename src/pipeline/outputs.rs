@@ -2,97 +2,27 @@
 //! the facet loads (`.csv`) and the sweep charts (`.sweep.svg`); per folder the page
 //! `report.html` and each mesh's load history (`.history.svg`).
 //!
-//! Owns the file names and which writer runs for which file; the writers themselves live
-//! in [`crate::report`] and render bytes, and every file is written through
-//! [`pipeline::write_atomic`]. It computes nothing of its own beyond asking
+//! Owns which writer runs for which file, and when an export is written or removed. The
+//! names and places of the files are [`crate::results`]'s (its module doc draws the tree),
+//! and so is writing them ([`results::write_atomic`]); the writers themselves live in
+//! [`crate::report`] and render bytes. It computes nothing of its own beyond asking
 //! [`Model::field`] for the pressure field.
-//!
-//! # File names (all under `results/` beside the mesh)
-//!
-//! | file | what |
-//! |---|---|
-//! | `<stem>.vtp` | pressure field, VTK XML PolyData ([`crate::report::vtk`]) |
-//! | `<stem>.csv` | load per facet ([`crate::report::csv`]) |
-//! | `<stem>.sweep.svg` | loads against level, when the sidecar has a `sweep` ([`crate::report::svg`]) |
-//! | `<stem>.history.svg` | headline loads at every computation in the change log |
-//! | `report.html` | the folder's page ([`crate::report::html`]) |
 //!
 //! The `.vtp` and `.csv` are written for meshes of at most
 //! [`crate::sidecar::AUTO_FIELD_EXPORT_FACETS`] facets unless the sidecar's
 //! `field_exports` says `always` or `never`; when they are not written, those of an earlier
 //! iteration are removed so that no export disagrees with the result beside it.
-//!
-//! When the sidecar has several cases, the per-case files carry the case name before the
-//! extension: `radial_gate.flood.vtp`, `radial_gate.flood.sweep.svg`. Names from files and
-//! sidecars pass through [`file_part`] before they become part of a path, so no name can
-//! leave `results/` or make a hidden file.
 
 use std::fs;
 use std::path::{Path, PathBuf};
 
 use serde_json::Value;
 
+use super::{RunError, sidecar_path};
 use crate::compute::{self, MeshResult, Model};
-use crate::pipeline::{self, RunError};
 use crate::report::{csv, html, svg, vtk};
+use crate::results::{self, Layout, changelog};
 use crate::sidecar::Sidecar;
-use crate::watch::changelog::LOG_NAME;
-
-/// File name of the folder's page inside `results/`.
-pub const PAGE_NAME: &str = "report.html";
-
-/// The longest a sanitised name may be in a file name, bytes (file systems allow 255 for
-/// the whole name, which also holds the mesh's stem and the extension).
-pub const MAX_FILE_PART_BYTES: usize = 100;
-
-/// `name` made safe as one component of a file name: path separators, characters that
-/// Windows refuses (`< > : " | ? *`) and control characters become `_`, a leading `.`
-/// becomes `_` (no hidden files, no `..`), an empty name becomes `_`, and a long name is
-/// cut to [`MAX_FILE_PART_BYTES`] (at a character boundary). Everything else, spaces and
-/// non-ASCII letters included, is kept.
-pub fn file_part(name: &str) -> String {
-    let mut out: String = name
-        .char_indices()
-        .take_while(|(i, c)| i + c.len_utf8() <= MAX_FILE_PART_BYTES)
-        .map(|(_, c)| c)
-        .map(|c| match c {
-            '/' | '\\' | '<' | '>' | ':' | '"' | '|' | '?' | '*' => '_',
-            c if c.is_control() => '_',
-            c => c,
-        })
-        .collect();
-    if out.starts_with('.') {
-        out.replace_range(0..1, "_");
-    }
-    if out.is_empty() {
-        out.push('_');
-    }
-    out
-}
-
-/// The name part of each case in file names: `None` for a sidecar with one case, else the
-/// sanitised case names, made unique with `-2`, `-3` … should two sanitise alike.
-fn case_parts(result: &MeshResult) -> Vec<Option<String>> {
-    if result.cases.len() <= 1 {
-        return vec![None; result.cases.len()];
-    }
-    let mut seen: Vec<String> = Vec::new();
-    result
-        .cases
-        .iter()
-        .map(|c| {
-            let base = file_part(&c.name);
-            let mut name = base.clone();
-            let mut n = 1;
-            while seen.contains(&name) {
-                n += 1;
-                name = format!("{base}-{n}");
-            }
-            seen.push(name.clone());
-            Some(name)
-        })
-        .collect()
-}
 
 /// Writes the pressure field, the facet loads and the sweep charts of every case of a
 /// computed mesh under `results/` beside it; returns the paths written.
@@ -104,41 +34,28 @@ pub fn write_outputs(
     sidecar: &Sidecar,
     result: &MeshResult,
 ) -> Result<Vec<PathBuf>, RunError> {
-    let dir = pipeline::results_dir(mesh_path);
-    let stem = file_part(&pipeline::stem(mesh_path));
+    let layout = Layout::of_mesh(mesh_path);
+    let parts = results::case_parts(result.cases.iter().map(|c| c.name.as_str()));
     let mut written = Vec::new();
-    for (i, (case, part)) in result.cases.iter().zip(case_parts(result)).enumerate() {
-        let base = match &part {
-            Some(p) => format!("{stem}.{p}"),
-            None => stem.clone(),
-        };
-        let vtp = dir.join(format!("{base}.vtp"));
-        let csv_path = dir.join(format!("{base}.csv"));
+    for (i, (case, part)) in result.cases.iter().zip(parts).enumerate() {
+        let files = layout.exports(mesh_path, part.as_deref());
         if sidecar.field_exports.writes(model.facets()) {
             let field = model
                 .field(sidecar, i)
                 .map_err(|source| RunError::Compute {
                     mesh: mesh_path.to_owned(),
-                    sidecar: pipeline::sidecar_path(mesh_path),
+                    sidecar: sidecar_path(mesh_path),
                     source: Box::new(source),
                 })?;
-            pipeline::write_atomic(&vtp, &vtk::render(&field, &result.mesh, &case.name))?;
-            written.push(vtp);
-            pipeline::write_atomic(&csv_path, &csv::render(&field))?;
-            written.push(csv_path);
+            let vtp = vtk::render(&field, &result.mesh, &case.name);
+            results::write_atomic(&files.field, &vtp)?;
+            written.push(files.field);
+            results::write_atomic(&files.facet_loads, &csv::render(&field))?;
+            written.push(files.facet_loads);
         } else {
             // Exports of an earlier iteration would no longer match the result: remove them.
-            for stale in [vtp, csv_path] {
-                match fs::remove_file(&stale) {
-                    Ok(()) => {}
-                    Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
-                    Err(source) => {
-                        return Err(RunError::Write {
-                            path: stale,
-                            source,
-                        });
-                    }
-                }
+            for stale in [&files.field, &files.facet_loads] {
+                results::remove_if_present(stale)?;
             }
         }
         if let Some(steps) = &case.sweep {
@@ -150,9 +67,8 @@ pub fn write_outputs(
                 .and_then(|s| sidecar.liquids.get(s.liquid))
                 .map(|l| l.name.as_str());
             let chart = svg::sweep_chart(&result.mesh, &case.name, swept, &points);
-            let path = dir.join(format!("{base}.sweep.svg"));
-            pipeline::write_atomic(&path, &svg::render(&chart))?;
-            written.push(path);
+            results::write_atomic(&files.sweep_chart, &svg::render(&chart))?;
+            written.push(files.sweep_chart);
         }
     }
     Ok(written)
@@ -165,7 +81,8 @@ pub fn write_outputs(
 /// Result files that cannot be read or are not result documents are left out; lines of
 /// the change log that are not JSON are skipped.
 pub fn write_folder_page(results_dir: &Path, live: bool) -> Result<Vec<PathBuf>, RunError> {
-    let log = read_log(results_dir);
+    let layout = Layout::new(results_dir.to_owned());
+    let log = changelog::read_lines(results_dir);
     let mut meshes = read_results(results_dir);
     // Meshes that never computed but are in the log (their last event failed).
     let mut only_logged: Vec<&str> = Vec::new();
@@ -181,7 +98,7 @@ pub fn write_folder_page(results_dir: &Path, live: bool) -> Result<Vec<PathBuf>,
         let last = log.iter().rev().find(|l| l["mesh"] == name);
         if last.is_some_and(|l| l["event"] == "failed") {
             meshes.push(html::MeshEntry {
-                stem: pipeline::stem(Path::new(name)),
+                stem: results::stem(Path::new(name)),
                 mesh: name.to_owned(),
                 result: None,
             });
@@ -192,8 +109,8 @@ pub fn write_folder_page(results_dir: &Path, live: bool) -> Result<Vec<PathBuf>,
     let mut written = Vec::new();
     for m in &meshes {
         if let Some(chart) = svg::history_chart(&m.mesh, &log) {
-            let path = results_dir.join(format!("{}.history.svg", file_part(&m.stem)));
-            pipeline::write_atomic(&path, &svg::render(&chart))?;
+            let path = layout.history_chart(&m.stem);
+            results::write_atomic(&path, &svg::render(&chart))?;
             written.push(path);
         }
     }
@@ -213,8 +130,8 @@ pub fn write_folder_page(results_dir: &Path, live: bool) -> Result<Vec<PathBuf>,
         log: &log,
         caution: compute::CAUTION,
     };
-    let path = results_dir.join(PAGE_NAME);
-    pipeline::write_atomic(&path, &html::render(&page))?;
+    let path = layout.page();
+    results::write_atomic(&path, &html::render(&page))?;
     written.push(path);
     Ok(written)
 }
@@ -237,7 +154,7 @@ fn read_results(dir: &Path) -> Vec<html::MeshEntry> {
             let doc: Value = serde_json::from_slice(&fs::read(&p).ok()?).ok()?;
             let mesh = doc.get("mesh")?.as_str()?.to_owned();
             (doc.get("schema").is_some() && doc["cases"].is_array()).then(|| html::MeshEntry {
-                stem: pipeline::stem(&p),
+                stem: results::stem(&p),
                 mesh,
                 result: Some(doc),
             })
@@ -245,44 +162,10 @@ fn read_results(dir: &Path) -> Vec<html::MeshEntry> {
         .collect()
 }
 
-/// The complete, parseable lines of the change log (none when there is no log).
-fn read_log(dir: &Path) -> Vec<Value> {
-    let Ok(bytes) = fs::read(dir.join(LOG_NAME)) else {
-        return Vec::new();
-    };
-    bytes
-        .split(|&b| b == b'\n')
-        .filter_map(|line| serde_json::from_slice(line).ok())
-        .collect()
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
     use shapes::encode;
-
-    #[test]
-    fn names_never_leave_the_folder() {
-        assert_eq!(file_part("flood"), "flood");
-        assert_eq!(file_part("high water"), "high water");
-        assert_eq!(file_part("../x"), "_._x");
-        assert_eq!(file_part(".."), "_.");
-        assert_eq!(file_part("a/b\\c:d*e?"), "a_b_c_d_e_");
-        assert_eq!(file_part(""), "_");
-        assert_eq!(file_part("crue\u{7}"), "crue_");
-        // Long names are cut at a character boundary (é is 2 bytes).
-        assert_eq!(file_part(&"x".repeat(500)), "x".repeat(MAX_FILE_PART_BYTES));
-        let cut = file_part(&format!("a{}", "é".repeat(300)));
-        assert_eq!(cut.len(), MAX_FILE_PART_BYTES - 1);
-        assert!(cut.ends_with('é'));
-        for n in ["..", "../x", "/etc/passwd", ".hidden", "a\\..\\b"] {
-            let p = file_part(n);
-            assert!(
-                !p.contains('/') && !p.contains('\\') && !p.starts_with('.'),
-                "{p}"
-            );
-        }
-    }
 
     fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
         let p = dir.join(name);
@@ -306,7 +189,7 @@ mod tests {
                 "cases": [{"name": "normal", "level": -1.0}, {"name": "..:flood", "level": 0.0}],
                 "sweep": {"liquid": "liquid", "from": -3.0, "to": 0.0, "step": 1.0}}"#,
         );
-        pipeline::calc_file(&mesh).expect("computes");
+        super::super::calc_file(&mesh).expect("computes");
         let results = tmp.path().join("results");
         let mut names: Vec<String> = fs::read_dir(&results)
             .expect("results")
@@ -326,7 +209,7 @@ mod tests {
                 "wall.normal.vtp",
             ]
         );
-        let page = fs::read_to_string(results.join(PAGE_NAME)).expect("page");
+        let page = fs::read_to_string(results.join(results::PAGE_NAME)).expect("page");
         assert!(page.contains("wall.stl") && page.contains("Case ..:flood"));
         assert!(!page.contains("http-equiv=\"refresh\""));
         let sweep = fs::read_to_string(results.join("wall.normal.sweep.svg")).expect("svg");
@@ -348,7 +231,7 @@ mod tests {
             line(1, 1000.0),
             line(2, 1200.0)
         );
-        write(&results, LOG_NAME, log.as_bytes());
+        write(&results, changelog::LOG_NAME, log.as_bytes());
         write(
             &results,
             "a.json",
@@ -361,7 +244,7 @@ mod tests {
             .map(|p| p.file_name().expect("name").to_string_lossy().into_owned())
             .collect();
         assert_eq!(names, ["a.history.svg", "report.html"]);
-        let page = fs::read_to_string(results.join(PAGE_NAME)).expect("page");
+        let page = fs::read_to_string(results.join(results::PAGE_NAME)).expect("page");
         assert!(page.contains("http-equiv=\"refresh\""));
         assert!(page.contains("b.obj: no facets"));
         let svg = fs::read_to_string(results.join("a.history.svg")).expect("svg");
