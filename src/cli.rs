@@ -36,11 +36,23 @@ pub struct CheckArgs {
     pub json: bool,
 }
 
-/// Unit system of the terminal output.
+/// Unit system of the terminal output and the page (result files are SI either way).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
 pub enum Units {
+    /// kN, kN·m, m, m², m³, kPa, kg/m³, m/s².
     Si,
+    /// kip, kip·ft, ft, ft², ft³, psi, lb/ft³, ft/s².
     Us,
+}
+
+impl Units {
+    /// The presentation's unit system.
+    pub fn system(self) -> crate::report::units::UnitSystem {
+        match self {
+            Units::Si => crate::report::units::UnitSystem::Si,
+            Units::Us => crate::report::units::UnitSystem::Us,
+        }
+    }
 }
 
 #[derive(Debug, clap::Args)]
@@ -62,6 +74,10 @@ pub struct WatchArgs {
     /// Show every force and moment component and every warning.
     #[arg(long, short)]
     pub verbose: bool,
+    /// Units of the terminal lines: `si` (kN, kN·m, m, kPa) or `us` (kip, kip·ft, ft, psi),
+    /// in any case. The result files are SI either way.
+    #[arg(long, value_enum, ignore_case = true, default_value_t = Units::Si)]
+    pub units: Units,
 }
 
 #[derive(Debug, clap::Args)]
@@ -73,8 +89,8 @@ pub struct CalcArgs {
     /// meshes). The result files are written either way.
     #[arg(long)]
     pub json: bool,
-    /// Units of the summary: `si` (kN, kN·m, m, kPa) or `us` (kip, kip·ft, ft, psi). The
-    /// result files are SI either way.
-    #[arg(long, value_enum, default_value_t = Units::Si)]
+    /// Units of the summary: `si` (kN, kN·m, m, kPa) or `us` (kip, kip·ft, ft, psi), in
+    /// any case. The result files are SI either way.
+    #[arg(long, value_enum, ignore_case = true, default_value_t = Units::Si)]
     pub units: Units,
 }

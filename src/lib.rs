@@ -89,6 +89,7 @@ fn watch(args: &WatchArgs) -> ExitCode {
     opts.debounce = std::time::Duration::from_millis(args.debounce_ms);
     opts.poll = args.poll_ms.map(std::time::Duration::from_millis);
     opts.verbose = args.verbose;
+    opts.units = args.units.system();
     let stop = std::sync::Arc::new(std::sync::atomic::AtomicBool::new(false));
     let flag = stop.clone();
     if let Err(e) =
@@ -128,10 +129,7 @@ fn calc(args: &CalcArgs) -> ExitCode {
                 if !args.json {
                     let opts = SummaryOptions {
                         no_caution: true,
-                        units: match args.units {
-                            cli::Units::Si => summary::UnitSystem::Si,
-                            cli::Units::Us => summary::UnitSystem::Us,
-                        },
+                        units: args.units.system(),
                     };
                     if !results.is_empty() {
                         let _ = writeln!(out);

@@ -6,4 +6,5 @@ pub mod html;
 pub mod json;
 pub mod summary;
 pub mod svg;
+pub mod units;
 pub mod vtk;

@@ -69,6 +69,8 @@ pub struct WatchOptions {
     pub verbose: bool,
     /// How many times a file that looks half-written is retried before it counts as broken.
     pub retries: u32,
+    /// The units of the terminal lines (result files are SI either way).
+    pub units: crate::report::units::UnitSystem,
 }
 
 impl WatchOptions {
@@ -81,6 +83,7 @@ impl WatchOptions {
             poll: None,
             verbose: false,
             retries: 2,
+            units: crate::report::units::UnitSystem::Si,
         }
     }
 }
@@ -511,6 +514,7 @@ impl Watch<'_> {
             iteration,
             cases.as_array().map_or(&[][..], Vec::as_slice),
             self.opts.verbose,
+            &crate::report::units::Units::of(self.opts.units),
         );
         if recovered {
             self.say(&format!("{} {name} · results written again\n", clock()));

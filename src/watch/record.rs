@@ -4,6 +4,7 @@
 use serde_json::{Map, Value, json};
 
 use crate::compute::{CaseResult, MeshResult};
+use crate::report::units::{Unit, Units};
 
 /// The headline figures of one case, as written to the change log (absolute SI values).
 pub fn headline(c: &CaseResult) -> Value {
@@ -86,12 +87,14 @@ pub fn cases_with_changes(
         .collect()
 }
 
-/// A compact terminal block for one recomputation.
+/// A compact terminal block for one recomputation, in the units of `u`.
 ///
 /// ```text
 /// 14:02:07 radial_gate.stl · iteration 3 · 256 facets
-///   normal   |F| 568.71 kN ▲ +1.2%   Fz +288.10 kN ▲ +0.8%   uplift 288.24 kN   M 0.69 kN·m
+///   normal     horizontal 490.33 kN ▲ grows 1.2%   vertical +288.10 kN ▲ grows 0.8%   uplift 288.24 kN =   |F| 568.71 kN   |M| 0.69 kN·m
 /// ```
+/// The horizontal force leads (the headline figure of a gate). Markers compare
+/// magnitudes ([`marker`]), so a moment that goes from −364 to −399 kN·m *grows*.
 /// With `verbose`, every force and moment component and the warnings follow.
 pub fn block(
     clock: &str,
@@ -99,33 +102,43 @@ pub fn block(
     iteration: u64,
     cases: &[Value],
     verbose: bool,
+    u: &Units,
 ) -> String {
     let mut s = format!(
         "{clock} {} · iteration {iteration} · {} facets\n",
         r.mesh, r.inputs.facets
     );
+    let (fu, mu) = (u.force.name, u.moment.name);
     for (c, line) in r.cases.iter().zip(cases) {
         let l = &c.loads;
-        let norm = |v: [f64; 3]| (v[0] * v[0] + v[1] * v[1] + v[2] * v[2]).sqrt();
+        let norm = |v: [f64; 3]| v[0].hypot(v[1]).hypot(v[2]);
         let change = &line["change"];
-        let dmag = change["force"].as_array().map(|d| {
-            let old = [0, 1, 2].map(|k| l.force[k] - d[k].as_f64().unwrap_or(0.0));
-            norm(l.force) - norm(old)
-        });
+        // The force of the previous iteration, from the change of its components.
+        let old_force = change["force"]
+            .as_array()
+            .map(|d| [0, 1, 2].map(|k| l.force[k] - d[k].as_f64().unwrap_or(0.0)));
+        let up = up_unit(&r.inputs.up);
+        let horizontal = |f: [f64; 3]| {
+            let v = f[0] * up[0] + f[1] * up[1] + f[2] * up[2];
+            norm([f[0] - v * up[0], f[1] - v * up[1], f[2] - v * up[2]])
+        };
+        let dh = old_force.map(|o| l.horizontal_force - horizontal(o));
         let dv = change["vertical_force"].as_f64();
         let du = change["uplift"].as_f64();
         let _ = std::fmt::Write::write_fmt(
             &mut s,
             format_args!(
-                "  {:<10} |F| {:>10.2} kN{}   vertical {:>+10.2} kN{}   uplift {:.2} kN{}   |M| {:.2} kN·m\n",
+                "  {:<10} horizontal {} {fu}{}   vertical {}{} {fu}{}   uplift {} {fu}{}   |F| {} {fu}   |M| {} {mu}\n",
                 c.name,
-                norm(l.force) / 1e3,
-                marker(dmag, norm(l.force)),
-                l.vertical_force / 1e3,
+                u.force.fmt(l.horizontal_force),
+                marker(dh, l.horizontal_force),
+                if l.vertical_force > 0.0 { "+" } else { "" },
+                u.force.fmt(l.vertical_force),
                 marker(dv, l.vertical_force),
-                l.uplift / 1e3,
+                u.force.fmt(l.uplift),
                 marker(du, l.uplift),
-                norm(l.moment) / 1e3,
+                u.force.fmt(norm(l.force)),
+                u.moment.fmt(norm(l.moment)),
             ),
         );
         for (name, a) in &l.axis_moments {
@@ -133,9 +146,10 @@ pub fn block(
             let _ = std::fmt::Write::write_fmt(
                 &mut s,
                 format_args!(
-                    "  {:<10} axis {name}: {:+.3} kN·m{}\n",
+                    "  {:<10} axis {name}: {}{} {mu}{}\n",
                     "",
-                    a.moment / 1e3,
+                    if a.moment > 0.0 { "+" } else { "" },
+                    u.moment.fmt(a.moment),
                     marker(d, a.moment)
                 ),
             );
@@ -157,14 +171,10 @@ pub fn block(
             let _ = std::fmt::Write::write_fmt(
                 &mut s,
                 format_args!(
-                    "  {:<10} F ({:.2}, {:.2}, {:.2}) kN   M ({:.2}, {:.2}, {:.2}) kN·m\n",
+                    "  {:<10} F {} {fu}   M {} {mu}\n",
                     "",
-                    l.force[0] / 1e3,
-                    l.force[1] / 1e3,
-                    l.force[2] / 1e3,
-                    l.moment[0] / 1e3,
-                    l.moment[1] / 1e3,
-                    l.moment[2] / 1e3
+                    triple(&u.force, l.force),
+                    triple(&u.moment, l.moment),
                 ),
             );
         }
@@ -186,7 +196,30 @@ pub fn block(
     s
 }
 
-/// ` ▲ +1.2%` / ` ▼ −0.4%` / ` = ` for a change `d` of a value now `now`; empty without one.
+/// `(a, b, c)` in one unit, without its name.
+fn triple(unit: &Unit, v: [f64; 3]) -> String {
+    format!(
+        "({}, {}, {})",
+        unit.fmt(v[0]),
+        unit.fmt(v[1]),
+        unit.fmt(v[2])
+    )
+}
+
+/// The unit vector of an up axis as the result echoes it (`"+z"`, `"-y"`, …).
+fn up_unit(up: &str) -> [f64; 3] {
+    let sign = if up.starts_with('-') { -1.0 } else { 1.0 };
+    match up.trim_start_matches(['+', '-']) {
+        "x" => [sign, 0.0, 0.0],
+        "y" => [0.0, sign, 0.0],
+        _ => [0.0, 0.0, sign],
+    }
+}
+
+/// How a value changed by `d` to `now`, judged by its magnitude: ` ▲ grows 9.6%` when
+/// |now| > |old|, ` ▼ eases 3.2%` when it fell, ` ⇅ reverses` when the sign flipped,
+/// ` ▲ new` from zero, ` =` when unchanged (within 1e-9 relative); empty without a
+/// previous value. The value itself is printed with its sign beside the marker.
 fn marker(d: Option<f64>, now: f64) -> String {
     let Some(d) = d else {
         return String::new();
@@ -196,11 +229,17 @@ fn marker(d: Option<f64>, now: f64) -> String {
     if d.abs() <= 1e-9 * scale.max(1e-30) {
         return " =".to_owned();
     }
-    let arrow = if d > 0.0 { "▲" } else { "▼" };
-    if old.abs() > 1e-12 * scale {
-        format!(" {arrow} {:+.1}%", 100.0 * d / old.abs())
+    if old.abs() <= 1e-12 * scale {
+        return " ▲ new".to_owned();
+    }
+    if now.abs() > 1e-12 * scale && now.signum() != old.signum() {
+        return " ⇅ reverses".to_owned();
+    }
+    let rel = 100.0 * (now.abs() - old.abs()) / old.abs();
+    if rel >= 0.0 {
+        format!(" ▲ grows {rel:.1}%")
     } else {
-        format!(" {arrow} new")
+        format!(" ▼ eases {:.1}%", -rel)
     }
 }
 
@@ -219,11 +258,22 @@ mod tests {
     }
 
     #[test]
-    fn markers_show_direction_and_percentage() {
-        assert_eq!(marker(Some(10.0), 110.0), " ▲ +10.0%");
-        assert_eq!(marker(Some(-10.0), 90.0), " ▼ -10.0%");
+    fn markers_judge_by_magnitude() {
+        assert_eq!(marker(Some(10.0), 110.0), " ▲ grows 10.0%");
+        assert_eq!(marker(Some(-10.0), 90.0), " ▼ eases 10.0%");
+        // A moment going from −364 to −399 kN·m grows by 9.6 %, though its value fell.
+        assert_eq!(marker(Some(-35.0), -399.0), " ▲ grows 9.6%");
+        assert_eq!(marker(Some(35.0), -364.0), " ▼ eases 8.8%");
+        assert_eq!(marker(Some(-20.0), -10.0), " ⇅ reverses");
         assert_eq!(marker(Some(0.0), 90.0), " =");
         assert_eq!(marker(None, 90.0), "");
         assert_eq!(marker(Some(5.0), 5.0), " ▲ new");
+    }
+
+    #[test]
+    fn up_axes_give_their_unit_vectors() {
+        assert_eq!(up_unit("+z"), [0.0, 0.0, 1.0]);
+        assert_eq!(up_unit("-y"), [0.0, -1.0, 0.0]);
+        assert_eq!(up_unit("+x"), [1.0, 0.0, 0.0]);
     }
 }

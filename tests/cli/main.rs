@@ -8,6 +8,7 @@
 mod calc;
 mod determinism;
 mod errors;
+mod presentation;
 
 use std::fs;
 use std::path::{Path, PathBuf};

@@ -1,0 +1,105 @@
+//! What the reports show: one unit and one number of decimals per quantity, the unit
+//! system chosen on the command line for every report, the horizontal force first in the
+//! watcher's line.
+
+use super::*;
+
+/// A vertical wall 2 m wide and 3 m high, sill at z = 0, facing +x (front), with the
+/// liquid up to its top: F = ½ ρ g H² w = ½ · 1000 · 9.80665 · 9 · 2 = 88 259.85 N
+/// horizontally (closed form of a rectangular wall).
+fn wall(f: &Folder) -> f64 {
+    let tris = shapes::rectangle([0.0, 0.0, 0.0], [0.0, 2.0, 0.0], [0.0, 0.0, 3.0], 2, 3);
+    f.write("wall.stl", encode::stl_ascii(&[("wall", &tris[..])]));
+    f.write(
+        "wall.json",
+        r#"{"units": "m", "wet_side": "front", "liquid": {"level": 3.0, "density": 1000}}"#,
+    );
+    0.5 * 1000.0 * G * 9.0 * 2.0
+}
+
+/// Newtons in kips (1 kip = 1000 lbf = 4448.2216152605 N, exact by definition).
+fn kip(n: f64) -> f64 {
+    n / 4_448.221_615_260_5
+}
+
+#[test]
+fn calc_in_us_units_shows_density_and_gravity_in_us_units_too() {
+    let f = Folder::new();
+    let force = wall(&f);
+    for flag in ["us", "US", "Us"] {
+        let run = f.calc(&["wall.stl", "--units", flag]);
+        run.expect_code(0);
+        let out = &run.stdout;
+        // 1000 kg/m³ = 62.43 lb/ft³; 9.80665 m/s² = 32.174 ft/s² (exact definitions).
+        assert!(out.contains("62.43 lb/ft³"), "{out}");
+        assert!(out.contains("32.174 ft/s²"), "{out}");
+        assert!(out.contains(&format!("{:.2} kip", kip(force))), "{out}");
+        assert!(!out.contains("kg/m³") && !out.contains(" kN"), "{out}");
+    }
+}
+
+#[test]
+fn the_watch_line_leads_with_the_horizontal_force_in_the_chosen_units() {
+    let f = Folder::new();
+    let force = wall(&f);
+    let run = Run::from(
+        f.wetload()
+            .args(["watch", ".", "--once", "--units", "US"])
+            .output(),
+    );
+    run.expect_code(0);
+    let line = run
+        .stdout
+        .lines()
+        .find(|l| l.trim_start().starts_with("default"))
+        .unwrap_or_else(|| panic!("no case line:\n{}", run.stdout));
+    assert!(
+        line.contains(&format!("horizontal {:.2} kip", kip(force))),
+        "{line}"
+    );
+    assert!(line.find("horizontal") < line.find("vertical"), "{line}");
+
+    let g = Folder::new();
+    wall(&g);
+    let run = Run::from(g.wetload().args(["watch", ".", "--once"]).output());
+    run.expect_code(0);
+    assert!(
+        run.stdout
+            .contains(&format!("horizontal {:.2} kN", force / 1e3)),
+        "{}",
+        run.stdout
+    );
+}
+
+#[test]
+fn a_moment_that_grows_in_magnitude_is_marked_as_growth_with_its_sign() {
+    let f = Folder::new();
+    // Moments about the sill line (the y axis) of the wall above: the liquid on its +x
+    // face pushes it towards −x at heights z > 0, so (z ẑ) × (−F x̂) = −z F ŷ: the moment
+    // about +y is −ρ g w H³ / 6, and its magnitude grows with the level (H = 2 m, then 3 m).
+    wall(&f);
+    f.write(
+        "wall.json",
+        r#"{"units": "m", "wet_side": "front", "liquid": {"level": 2.0, "density": 1000},
+            "axes": {"sill": {"point": [0, 0, 0], "direction": [0, 1, 0]}}}"#,
+    );
+    Run::from(f.wetload().args(["watch", ".", "--once"]).output()).expect_code(0);
+    f.write(
+        "wall.json",
+        r#"{"units": "m", "wet_side": "front", "liquid": {"level": 3.0, "density": 1000},
+            "axes": {"sill": {"point": [0, 0, 0], "direction": [0, 1, 0]}}}"#,
+    );
+    let run = Run::from(f.wetload().args(["watch", ".", "--once"]).output());
+    run.expect_code(0);
+    let axis = run
+        .stdout
+        .lines()
+        .find(|l| l.contains("axis sill"))
+        .unwrap_or_else(|| panic!("no axis line:\n{}", run.stdout));
+    // |M| = ρ g w H³ / 6: 2 → 3 m multiplies it by 27/8, a growth of 237.5 %.
+    let m3 = 1000.0 * G * 2.0 * 27.0 / 6.0;
+    assert!(
+        axis.contains(&format!("-{:.2} kN·m ▲ grows 237.5%", m3 / 1e3)),
+        "{axis}"
+    );
+}
