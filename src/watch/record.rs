@@ -117,7 +117,7 @@ pub fn block(
         let old_force = change["force"]
             .as_array()
             .map(|d| [0, 1, 2].map(|k| l.force[k] - d[k].as_f64().unwrap_or(0.0)));
-        let up = up_unit(&r.inputs.up);
+        let up = up_unit(r.inputs.up);
         let horizontal = |f: [f64; 3]| {
             let v = f[0] * up[0] + f[1] * up[1] + f[2] * up[2];
             norm([f[0] - v * up[0], f[1] - v * up[1], f[2] - v * up[2]])
