@@ -13,6 +13,7 @@ use serde::Serialize;
 use crate::hydro::{Defect, NO_SHELL, Topology, Tri};
 use crate::mesh::Mesh;
 pub use crate::mesh::STALE_NORMAL_DEG;
+use crate::report::units::{UnitSystem, Units};
 
 /// The health report of one mesh (`check --json`).
 #[derive(Clone, Debug, Serialize, PartialEq)]
@@ -141,6 +142,17 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
             topo.inconsistent_edges
         ));
     }
+    let open_alone: Vec<&str> = parts
+        .iter()
+        .filter(|p| !p.closed)
+        .map(|p| p.name.as_str())
+        .collect();
+    if closed && !open_alone.is_empty() {
+        warnings.push(format!(
+            "the parts {} are open by themselves and close the hull only together: calc treats the whole mesh as one closed body, and reports no volume for those parts alone",
+            quoted(&open_alone)
+        ));
+    }
     let inverted: usize = parts.iter().map(|p| p.inverted_shells).sum();
     if inverted > 0 {
         warnings.push(format!(
@@ -181,7 +193,19 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
     }
 }
 
-/// The health report as text for the terminal.
+/// Names in quotes, joined with commas and a final "and".
+fn quoted(names: &[&str]) -> String {
+    let q: Vec<String> = names.iter().map(|n| format!("\"{n}\"")).collect();
+    match q.as_slice() {
+        [] => String::new(),
+        [one] => one.clone(),
+        [rest @ .., last] => format!("{} and {last}", rest.join(", ")),
+    }
+}
+
+/// The health report as text for the terminal: sizes in metres with the decimals of
+/// [`crate::report::units`] when a sidecar gave the units, else in the file's own units
+/// (said so) with the same decimals.
 pub fn render(h: &Health) -> String {
     use std::fmt::Write;
     let mut s = String::new();
@@ -219,16 +243,23 @@ pub fn render(h: &Health) -> String {
             p.stale_normals
         );
         let [lo, hi] = p.bounding_box;
-        let vol = p
-            .volume
-            .map_or_else(|| "—".to_owned(), |v| format!("{v:.6}"));
+        let si = Units::of(UnitSystem::Si);
+        let (l, a, v) = if h.length_unit == "m" {
+            (si.length.name, si.area.name, si.volume.name)
+        } else {
+            ("file units", "file units²", "file units³")
+        };
+        let vol = p.volume.map_or_else(
+            || "— (not closed by itself)".to_owned(),
+            |x| format!("{} {v}", si.volume.fmt(x)),
+        );
         let _ = writeln!(
             s,
-            "    size {:.4} × {:.4} × {:.4}, surface area {:.6}, volume {vol}",
-            hi[0] - lo[0],
-            hi[1] - lo[1],
-            hi[2] - lo[2],
-            p.surface_area
+            "    size {} × {} × {} {l}, surface area {} {a}, volume {vol}",
+            si.length.fmt(hi[0] - lo[0]),
+            si.length.fmt(hi[1] - lo[1]),
+            si.length.fmt(hi[2] - lo[2]),
+            si.area.fmt(p.surface_area),
         );
     }
     for w in &h.warnings {
@@ -330,6 +361,38 @@ mod tests {
             vec![[3, 0, 0, 0, 0, 0], [0, 3, 1, 0, 0, 1], [0, 0, 0, 1, 3, 0]]
         );
         assert_eq!(h.length_unit, "file units");
+    }
+
+    #[test]
+    fn parts_that_close_only_together_are_said_plainly_and_sizes_carry_units() {
+        // A 2 × 1 × 1 m box cut into two halves at x = 1 m: each half is an open box (an
+        // end and half of each of the four sides), the two together a closed hull.
+        let whole = shapes::box_solid([0.0; 3], [2.0, 1.0, 1.0], 2);
+        let centroid_x = |t: &shapes::Triangle| (t[0][0] + t[1][0] + t[2][0]) / 3.0;
+        let (left, right): (Vec<_>, Vec<_>) = whole.iter().partition(|t| centroid_x(t) < 1.0);
+        let h = check(
+            "hull.obj",
+            &mesh(vec![("left", left), ("right", right)], false),
+            Some(1.0),
+        );
+        assert!(h.closed && h.parts.iter().all(|p| !p.closed));
+        let text = render(&h);
+        assert!(
+            text.contains("the parts \"left\" and \"right\" are open by themselves and close the hull only together"),
+            "{text}"
+        );
+        // Each half: 1 × 1 × 1 m, surface 1 + 4 × 1 = 5 m² (its end and four half-sides).
+        assert!(text.contains("size 1.000 × 1.000 × 1.000 m, surface area 5.000 m², volume — (not closed by itself)"), "{text}");
+        let h = check(
+            "hull.obj",
+            &mesh(
+                vec![("all", shapes::box_solid([0.0; 3], [2.0, 1.0, 1.0], 2))],
+                false,
+            ),
+            None,
+        );
+        let text = render(&h);
+        assert!(text.contains("size 2.000 × 1.000 × 1.000 file units, surface area 10.000 file units², volume 2.000 file units³"), "{text}");
     }
 
     #[test]
