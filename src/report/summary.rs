@@ -76,9 +76,19 @@ pub fn render(r: &MeshResult, opts: SummaryOptions) -> String {
         u.length.fmt(bb[1][2] - bb[0][2]),
         u.length.name
     );
+    // A sweep that comes out the same in every case (the cases differ only in the swept
+    // level) is shown once, after the cases.
+    let shared = shared_sweep(r);
     for c in &r.cases {
         s.push('\n');
-        case_block(&mut s, c, i.parts.len() > 1, &u);
+        case_block(&mut s, c, i.parts.len() > 1, shared.is_none(), &u);
+    }
+    if let Some(c) = shared {
+        s.push('\n');
+        let _ = writeln!(s, "  every case");
+        if let Some(sw) = &c.sweep {
+            sweep_block(&mut s, sw, c.sweep_governing.as_ref(), &u, true);
+        }
     }
     if !r.warnings.is_empty() {
         s.push('\n');
@@ -123,7 +133,19 @@ fn plural(n: usize) -> &'static str {
     if n == 1 { "" } else { "s" }
 }
 
-fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, u: &Units) {
+/// The case whose sweep stands for every case, when there are several cases and their
+/// sweeps (steps and governing values) are all equal.
+pub fn shared_sweep(r: &MeshResult) -> Option<&CaseResult> {
+    let first = r.cases.first()?;
+    (r.cases.len() > 1
+        && first.sweep.is_some()
+        && r.cases
+            .iter()
+            .all(|c| c.sweep == first.sweep && c.sweep_governing == first.sweep_governing))
+    .then_some(first)
+}
+
+fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, sweep: bool, u: &Units) {
     let liquids: Vec<String> = c
         .liquids
         .iter()
@@ -180,8 +202,8 @@ fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, u: &Units) {
             );
         }
     }
-    if let Some(sw) = &c.sweep {
-        sweep_block(s, sw, c.sweep_governing.as_ref(), u);
+    if let Some(sw) = c.sweep.as_ref().filter(|_| sweep) {
+        sweep_block(s, sw, c.sweep_governing.as_ref(), u, false);
     }
     if let Some(f) = &c.flotation {
         flotation_block(s, f, &c.loads, u);
@@ -253,15 +275,26 @@ fn flotation_block(s: &mut String, f: &FlotationCheck, l: &Loads, u: &Units) {
 /// the result file.
 const SWEEP_ROWS: usize = 30;
 
-fn sweep_block(s: &mut String, sw: &[SweepStep], g: Option<&Governing>, u: &Units) {
+fn sweep_block(
+    s: &mut String,
+    sw: &[SweepStep],
+    g: Option<&Governing>,
+    u: &Units,
+    every_case: bool,
+) {
     let (fu, mu, lu) = (u.force.name, u.moment.name, u.length.name);
     let liquid = g.map_or("the liquid", |g| g.liquid.as_str());
     let _ = writeln!(
         s,
-        "    sweep of {liquid}: {} levels from {} to {} {lu}, the other inputs as in this case",
+        "    sweep of {liquid}: {} levels from {} to {} {lu}, {}",
         sw.len(),
         u.length.fmt(sw.first().map_or(0.0, |x| x.level)),
         u.length.fmt(sw.last().map_or(0.0, |x| x.level)),
+        if every_case {
+            "the same in every case"
+        } else {
+            "the other inputs as in this case"
+        }
     );
     let axes: Vec<&String> = sw
         .first()
@@ -473,6 +506,38 @@ fn truncate(s: &str, n: usize) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_sweep_the_same_in_every_case_is_shown_once() {
+        use crate::mesh::{Format, Mesh};
+        use std::path::Path;
+        let plate = shapes::rectangle([0.0, 0.0, 0.0], [0.0, 0.0, 3.0], [0.0, 2.0, 0.0], 3, 2);
+        let mesh = Mesh::from_parts(vec![("plate", plate)], Format::Obj);
+        let sweep = r#""sweep": {"from": 0.0, "to": 3.0, "step": 0.5}"#;
+        let sidecar = |cases: &str| {
+            crate::sidecar::parse_sidecar(
+                Path::new("p.json"),
+                &format!(
+                    r#"{{"units": "m", "wet_side": "front", "liquid": {{"level": 1.0, "density": 1000}},
+                        {sweep}, "cases": [{cases}]}}"#
+                ),
+            )
+            .expect("valid")
+        };
+        // Two cases that differ only in the swept level: the same sweep, shown once.
+        let same = sidecar(r#"{"name": "low", "level": 1.0}, {"name": "high", "level": 2.5}"#);
+        let r = crate::compute::compute("p.obj", &mesh, &same).expect("computes");
+        let text = render(&r, SummaryOptions::default());
+        assert_eq!(text.matches("sweep of liquid").count(), 1, "{text}");
+        assert!(text.contains("the same in every case"), "{text}");
+        // Two cases of different densities: two sweeps.
+        let differ =
+            sidecar(r#"{"name": "fresh", "density": 1000}, {"name": "sea", "density": 1025}"#);
+        let r = crate::compute::compute("p.obj", &mesh, &differ).expect("computes");
+        let text = render(&r, SummaryOptions::default());
+        assert_eq!(text.matches("sweep of liquid").count(), 2, "{text}");
+        assert!(!text.contains("the same in every case"), "{text}");
+    }
 
     #[test]
     fn a_sweep_prints_its_steps_and_governing_values_in_si_and_us() {
