@@ -1,0 +1,384 @@
+//! One computation: a read mesh and a validated sidecar in, the result document out.
+//!
+//! Pure (no files, clock or environment): it maps units and the up axis into the core's
+//! frame, works out topology and which side of every facet the liquid is on, integrates
+//! every case (and sweep step), and maps the sums back to mesh axes as the result fields
+//! pinned by CONTRACT.md. The document's layout is specified on [`MeshResult`].
+//!
+//! This file holds the entry points ([`compute`], [`compute_model`], [`Model`]) and their
+//! errors, and runs the steps in order; each step lives in a file of its own:
+//!
+//! - `result.rs`: the types of the result document, as serialized.
+//! - `prepare.rs`: what does not change between cases: the internal frame, the bounding
+//!   box, the topology, the planes of the parts, and the mesh-health warnings.
+//! - `wet.rs`: which side of every part and facet the liquid is on, and the guess of it
+//!   made before the topology is known.
+//! - `cases.rs`: the integration of one case and its sums turned into result fields.
+//! - `sweep.rs`: the steps of a level sweep and the governing value of each quantity.
+//! - `flotation.rs`: the flotation check of a case or a sweep step.
+//! - `field.rs`: the per-facet pressure field that the exports write.
+//! - `finite.rs`: the refusal of coordinates and results that overflow f64.
+
+mod cases;
+mod field;
+mod finite;
+mod flotation;
+mod prepare;
+mod result;
+mod sweep;
+mod wet;
+
+pub use field::{FacetRow, Field, FieldPiece, field};
+pub use result::{
+    AxisMoment, CaseResult, FlotationCheck, Inputs, LineOut, LiquidEcho, Loads, MeshResult,
+    PartInputs, PartResult, PresetEcho, SweepStep,
+};
+pub use sweep::{Extreme, Governing, governing};
+
+use thiserror::Error;
+
+use crate::hydro::{LiquidError, WetSide};
+use crate::mesh::Mesh;
+use crate::sidecar::{AUTO_FIELD_EXPORT_FACETS, FieldExports, Sidecar, UnassignedPart};
+use cases::{assemble, echo, run};
+use finite::check_finite;
+use flotation::flotation_check;
+use prepare::{Prepared, prepare};
+use sweep::{diagonal, sweep_steps};
+
+/// Version of the result document's layout.
+pub const SCHEMA: u32 = 1;
+
+/// The caution printed with every result.
+pub const CAUTION: &str = "Hydrostatic loads only: static liquid pressure on rigid surfaces. \
+Not included: waves, surge, seiche, currents, seismic or sloshing effects, wind, ice, debris, \
+impact, soil pressure, seepage or any dynamic effect. Results are only as good as the mesh, \
+units, levels and densities given. Check them against the codes that apply where the \
+structure is built, and have a licensed engineer review any design that relies on them.";
+
+/// Why a mesh and its sidecar cannot be computed together.
+#[derive(Debug, Error)]
+pub enum ComputeError {
+    #[error(
+        "the mesh is open ({open} open edges, {non_manifold} non-manifold edges), so \"outside\"/\"inside\" have no meaning for part \"{part}\": set \"wet_side\": \"front\" (liquid on the side the right-hand-rule normals point to) or \"back\""
+    )]
+    OpenWithClosedSide {
+        part: String,
+        open: usize,
+        non_manifold: usize,
+    },
+    #[error(
+        "the mesh is open ({open} open edges, {non_manifold} non-manifold edges) and no wet_side is given for part \"{part}\": add \"wet_side\": \"front\" (liquid on the side the right-hand-rule facet normals point to) or \"back\""
+    )]
+    OpenWithoutSide {
+        part: String,
+        open: usize,
+        non_manifold: usize,
+    },
+    #[error(transparent)]
+    Unassigned(#[from] UnassignedPart),
+    #[error("case \"{case}\", liquid \"{liquid}\": {source}")]
+    Liquid {
+        case: String,
+        liquid: String,
+        source: LiquidError,
+    },
+    #[error("the mesh has no facets")]
+    Empty,
+    #[error(
+        "the mesh has {facets} facets, more than the {} the topology can number",
+        crate::limits::FACETS_CEILING
+    )]
+    TooManyFacets { facets: usize },
+    #[error("a result came out non-finite ({what}); check the mesh coordinates and sidecar values")]
+    NonFinite { what: String },
+}
+
+/// Computes every case of `sidecar` on `mesh`; `mesh_name` is the file name to report.
+///
+/// Works on a copy of the facets; [`compute_model`] takes the mesh and keeps what the
+/// exports need.
+pub fn compute(
+    mesh_name: &str,
+    mesh: &Mesh,
+    sidecar: &Sidecar,
+) -> Result<MeshResult, ComputeError> {
+    compute_model(mesh_name, mesh.clone(), sidecar).map(|(result, _)| result)
+}
+
+/// A mesh taken into the computation: its facets moved into the internal frame in place
+/// (the mesh's own copy is not kept), its topology, and which side of every facet is wet.
+/// Everything that does not change between cases; [`Model::field`] reads it again.
+pub struct Model {
+    prep: Prepared,
+}
+
+impl Model {
+    /// Number of facets.
+    pub fn facets(&self) -> usize {
+        self.prep.tris.len()
+    }
+}
+
+/// [`compute`] on a mesh given up to it, returning the [`Model`] beside the result. The
+/// mesh's facet storage is reused for the internal frame, so no second copy is made.
+pub fn compute_model(
+    mesh_name: &str,
+    mesh: Mesh,
+    sidecar: &Sidecar,
+) -> Result<(MeshResult, Model), ComputeError> {
+    if mesh.facets.is_empty() {
+        return Err(ComputeError::Empty);
+    }
+    // The readers refuse such meshes first (their cap is at most this); a mesh built in
+    // code is checked here.
+    if mesh.facets.len() > crate::limits::FACETS_CEILING {
+        return Err(ComputeError::TooManyFacets {
+            facets: mesh.facets.len(),
+        });
+    }
+    let mut warnings = Vec::new();
+    let (prep, early) = prepare(mesh, sidecar, &mut warnings)?;
+    let facets = prep.tris.len();
+    if sidecar.field_exports == FieldExports::Auto && !sidecar.field_exports.writes(facets) {
+        warnings.push(format!(
+            "per-facet exports (.vtp, .csv) not written: the mesh has {facets} facets, over the {AUTO_FIELD_EXPORT_FACETS} for which \"field_exports\": \"auto\" writes them; set \"field_exports\": \"always\" in the sidecar to write them (about 550 bytes of text a facet)"
+        ));
+    }
+
+    let mut cases = Vec::with_capacity(sidecar.cases.len());
+    let ahead = early.profiles.into_iter().zip(early.accs);
+    for (case, (profiles, ahead)) in sidecar.cases.iter().zip(ahead) {
+        let profiles = profiles?;
+        let accs = match ahead {
+            Some(accs) => accs,
+            None => run(&prep.tris, &prep.parts, &prep.wet, &profiles),
+        };
+        let (loads, parts) = assemble(&prep, &accs);
+        let sweep = match &sidecar.sweep {
+            None => None,
+            Some(sw) => Some(sweep_steps(&prep, sidecar, case, sw, &accs)?),
+        };
+        let sweep_governing = sweep
+            .as_deref()
+            .zip(sidecar.sweep.as_ref())
+            .map(|(steps, sw)| governing(&sidecar.liquids[sw.liquid].name, steps, diagonal(&prep)));
+        let flotation = sidecar
+            .flotation
+            .as_ref()
+            .map(|f| flotation_check(f, &loads, 1e-12 * (loads.uplift + loads.downthrust)));
+        cases.push(CaseResult {
+            name: case.name.clone(),
+            liquids: sidecar
+                .liquids
+                .iter()
+                .zip(&case.liquids)
+                .map(|(n, l)| echo(&n.name, l))
+                .collect(),
+            loads,
+            parts,
+            sweep,
+            sweep_governing,
+            flotation,
+        });
+    }
+
+    let (lo, hi) = prep.local_box;
+    let (lo, hi) = (lo + prep.centre, hi + prep.centre);
+    let a = prep.frame.vector_out(lo);
+    let b = prep.frame.vector_out(hi);
+    let bounding_box = [
+        [a[0].min(b[0]), a[1].min(b[1]), a[2].min(b[2])],
+        [a[0].max(b[0]), a[1].max(b[1]), a[2].max(b[2])],
+    ];
+    let result = MeshResult {
+        schema: SCHEMA,
+        mesh: mesh_name.to_owned(),
+        inputs: Inputs {
+            format: prep.format.as_str(),
+            units: sidecar.units.as_str(),
+            up: sidecar.up.as_str(),
+            gravity: sidecar.gravity_m_s2,
+            wet_side: sidecar.wet_side.map(WetSide::as_str),
+            closed: prep.wet.closed,
+            facets: prep.tris.len(),
+            shells: prep.topology.shells.len(),
+            parts: prep
+                .parts
+                .iter()
+                .zip(&prep.wet.part_setup)
+                .zip(&prep.part_closed)
+                .map(|((p, (liquid, side)), closed)| PartInputs {
+                    name: p.name.clone(),
+                    facets: p.facets.len(),
+                    liquid: liquid.map(|i| sidecar.liquids[i].name.clone()),
+                    wet_side: side.as_str(),
+                    closed: *closed,
+                })
+                .collect(),
+            bounding_box,
+        },
+        cases,
+        warnings,
+        caution: CAUTION,
+    };
+    check_finite(&result)?;
+    Ok((result, Model { prep }))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::mesh::Format;
+
+    use crate::sidecar::parse_sidecar;
+    use approx::assert_relative_eq;
+    use std::path::Path;
+
+    const G: f64 = 9.80665;
+
+    pub(super) fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>) -> Mesh {
+        Mesh::from_parts(parts, Format::Obj)
+    }
+
+    pub(super) fn side(json: &str) -> Sidecar {
+        parse_sidecar(Path::new("t.json"), json).expect("valid sidecar")
+    }
+
+    pub(super) fn block() -> Vec<shapes::Triangle> {
+        shapes::box_solid([-1.0, -1.5, 0.0], [1.0, 1.5, 2.0], 3)
+    }
+
+    #[test]
+    fn a_box_in_water_carries_its_buoyancy_through_its_centre_of_buoyancy() {
+        // Archimedes: F = ρ g V_sub upward, through the centroid of the submerged box.
+        let s = side(r#"{"units": "m", "liquid": {"level": 1.5, "density": 1025}}"#);
+        let r = compute("b", &mesh(vec![("b", block())]), &s).expect("computes");
+        let c = &r.cases[0].loads;
+        let v = 2.0 * 3.0 * 1.5;
+        assert_relative_eq!(c.force[2], 1025.0 * G * v, max_relative = 1e-13);
+        assert_relative_eq!(c.force[0], 0.0, epsilon = 1e-8);
+        assert_relative_eq!(c.submerged_volume.expect("closed"), v, max_relative = 1e-13);
+        let cob = c.centre_of_buoyancy.expect("closed");
+        assert_relative_eq!(cob[2], 0.75, epsilon = 1e-12);
+        let line = c.line_of_action.expect("non-zero");
+        assert_relative_eq!(line.point[0], 0.0, epsilon = 1e-12);
+        assert_relative_eq!(line.point[1], 0.0, epsilon = 1e-12);
+        // Uplift on the underside: ρ g h A = the whole buoyancy, walls add nothing vertical.
+        assert_relative_eq!(c.uplift, 1025.0 * G * 1.5 * 6.0, max_relative = 1e-13);
+        assert_relative_eq!(c.downthrust, 0.0, epsilon = 1e-9);
+    }
+
+    #[test]
+    fn reversed_or_mixed_winding_gives_the_same_loads_after_repair() {
+        let s = side(
+            r#"{"units": "m", "moment_about": [0.3, 0.2, 0.1], "liquid": {"level": 1.2, "density": 1000}}"#,
+        );
+        let clean = compute("b", &mesh(vec![("b", block())]), &s).expect("computes");
+        let reversed = compute(
+            "b",
+            &mesh(vec![("b", shapes::reverse_winding(&block()))]),
+            &s,
+        )
+        .expect("computes");
+        let mut half = block();
+        for (i, t) in half.iter_mut().enumerate() {
+            // A fixed pseudo-random half: the bits of a Weyl sequence.
+            if (i as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 63 == 1 {
+                t.swap(1, 2);
+            }
+        }
+        let mixed = compute("b", &mesh(vec![("b", half)]), &s).expect("computes");
+        for other in [&reversed, &mixed] {
+            let (a, b) = (&clean.cases[0].loads, &other.cases[0].loads);
+            for k in 0..3 {
+                assert_relative_eq!(a.force[k], b.force[k], epsilon = 1e-9 * a.uplift);
+                assert_relative_eq!(a.moment[k], b.moment[k], epsilon = 1e-9 * a.uplift);
+            }
+            assert_relative_eq!(a.uplift, b.uplift, max_relative = 1e-12);
+            assert!(!other.warnings.is_empty(), "the repair is reported");
+        }
+    }
+
+    #[test]
+    fn a_sealed_cavity_is_dry_and_its_volume_belongs_to_the_body() {
+        let mut inner = shapes::box_solid([-0.5, -0.5, 0.5], [0.5, 0.5, 1.5], 1);
+        inner = shapes::reverse_winding(&inner); // as a CAD solid stores a void
+        let s = side(r#"{"units": "m", "liquid": {"level": 5.0, "density": 1000}}"#);
+        let r =
+            compute("b", &mesh(vec![("outer", block()), ("void", inner)]), &s).expect("computes");
+        let c = &r.cases[0];
+        assert_relative_eq!(
+            c.loads.submerged_volume.expect("closed"),
+            12.0,
+            max_relative = 1e-13
+        );
+        assert_relative_eq!(c.loads.force[2], 1000.0 * G * 12.0, max_relative = 1e-13);
+        let void = &c.parts[1].loads;
+        assert_eq!(void.force, [0.0; 3]);
+        assert_eq!(void.submerged_volume, Some(0.0));
+        assert_eq!(void.centre_of_buoyancy, None);
+    }
+
+    #[test]
+    fn inside_loads_the_walls_of_a_tank_outward() {
+        // A 2 × 3 tank filled to 1.2 m: the floor carries ρ g h A downward, the side walls
+        // ρ g h²/2 per metre outward, and the net horizontal force is zero.
+        let s = side(
+            r#"{"units": "m", "wet_side": "inside", "liquid": {"level": 1.2, "density": 1000}}"#,
+        );
+        let r = compute("t", &mesh(vec![("t", block())]), &s).expect("computes");
+        let l = &r.cases[0].loads;
+        assert_relative_eq!(l.force[2], -1000.0 * G * 1.2 * 6.0, max_relative = 1e-13);
+        assert_relative_eq!(l.downthrust, 1000.0 * G * 1.2 * 6.0, max_relative = 1e-13);
+        assert_relative_eq!(
+            l.submerged_volume.expect("closed"),
+            7.2,
+            max_relative = 1e-13
+        );
+        assert_relative_eq!(l.horizontal_force, 0.0, epsilon = 1e-8);
+    }
+
+    #[test]
+    fn an_open_plate_needs_a_wet_side_and_back_is_front_reversed() {
+        let plate = shapes::rectangle([0.0, 0.0, -3.0], [2.0, 0.0, 0.0], [0.0, 0.0, 2.0], 2, 2);
+        let m = mesh(vec![("p", plate.clone())]);
+        let none = side(r#"{"units": "m", "liquid": {"level": 0.0, "density": 1000}}"#);
+        assert!(matches!(
+            compute("p", &m, &none),
+            Err(ComputeError::OpenWithoutSide { .. })
+        ));
+        let out = side(
+            r#"{"units": "m", "wet_side": "outside", "liquid": {"level": 0.0, "density": 1000}}"#,
+        );
+        assert!(matches!(
+            compute("p", &m, &out),
+            Err(ComputeError::OpenWithClosedSide { .. })
+        ));
+        let front = side(
+            r#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000}}"#,
+        );
+        let back = side(
+            r#"{"units": "m", "wet_side": "back", "liquid": {"level": 0.0, "density": 1000}}"#,
+        );
+        let f = compute("p", &m, &front).expect("computes");
+        let b = compute(
+            "p",
+            &mesh(vec![("p", shapes::reverse_winding(&plate))]),
+            &back,
+        )
+        .expect("computes");
+        assert_eq!(f.cases[0].loads.force, b.cases[0].loads.force);
+        // Closed form: vertical plate 2 m wide from 1 m to 3 m deep, F = ρ g b (h2² − h1²)/2,
+        // centre of pressure depth (h2³ − h1³)/(3 · (h2² − h1²)/2) = 2.1667 m.
+        let l = &f.cases[0].loads;
+        assert_relative_eq!(
+            l.horizontal_force,
+            1000.0 * G * 2.0 * 4.0,
+            max_relative = 1e-14
+        );
+        let cp = l.centre_of_pressure.expect("planar");
+        assert_relative_eq!(-cp[2], 26.0 / 12.0, max_relative = 1e-13);
+        assert_relative_eq!(cp[0], 1.0, epsilon = 1e-12);
+    }
+}

@@ -1,0 +1,310 @@
+//! Everything about a mesh that does not change between its cases: the facets moved into
+//! the internal frame about a local origin, their bounding box, the topology, the planes
+//! of the parts, and the warnings about the mesh's health and its probable unit.
+//!
+//! It integrates nothing itself; while the topology is being built it lets the cases be
+//! computed on the guess that the mesh is clean ([`Wet::clean_guess`]), and keeps those
+//! loads only when the topology confirms the guess.
+
+use rayon::prelude::*;
+
+use super::ComputeError;
+use super::cases::{profiles_of, run};
+use super::finite::check_extent;
+use super::wet::Wet;
+use crate::hydro::{self, Frame, PartAccum, Profile, Topology, Tri, Vec3, WetSide};
+use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG};
+use crate::sidecar::Sidecar;
+
+/// Everything about the mesh that does not change between cases.
+pub(super) struct Prepared {
+    /// The mesh's parts (facet ranges into `tris`) and format.
+    pub(super) parts: Vec<Part>,
+    pub(super) format: Format,
+    pub(super) frame: Frame,
+    /// Local origin (bounding-box centre), internal frame.
+    pub(super) centre: Vec3,
+    pub(super) tris: Vec<Tri>,
+    /// Bounding box of `tris`.
+    pub(super) local_box: (Vec3, Vec3),
+    pub(super) topology: Topology,
+    /// Which side of every part and facet is wet.
+    pub(super) wet: Wet,
+    /// Per part: closed by itself (volumes reported).
+    pub(super) part_closed: Vec<bool>,
+    /// Per part and for the whole mesh: the plane, when planar (internal, local).
+    pub(super) part_plane: Vec<Option<hydro::Plane>>,
+    pub(super) mesh_plane: Option<hydro::Plane>,
+    pub(super) moment_about: Vec3,
+    pub(super) axes: Vec<(String, Vec3, Vec3)>,
+}
+
+/// What [`prepare`] finds for the cases before their loop: each case's liquid profiles
+/// (or the error to report when the case comes), and the loads of the cases it could
+/// compute while the topology was being built (see [`Wet::clean_guess`]).
+pub(super) struct Early {
+    pub(super) profiles: Vec<Result<Vec<Profile>, ComputeError>>,
+    pub(super) accs: Vec<Option<Vec<PartAccum>>>,
+}
+
+pub(super) fn prepare(
+    mesh: Mesh,
+    sidecar: &Sidecar,
+    warnings: &mut Vec<String>,
+) -> Result<(Prepared, Early), ComputeError> {
+    let frame = Frame {
+        scale_m: sidecar.units.metres(),
+        up: sidecar.up,
+    };
+    // Stored normals play no part in the loads, but their disagreement with the winding
+    // (judged as the file was read) is reported.
+    let stale = mesh.stale_normals(0..mesh.facets.len());
+    let Mesh {
+        mut facets,
+        parts,
+        format,
+        normal_stale: _,
+    } = mesh;
+    // Min and max are exact, so this parallel pass gives the same bits on any thread count.
+    let (lo, hi) = facets
+        .par_iter()
+        .fold(
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(mut lo, mut hi), t| {
+                for p in t {
+                    for k in 0..3 {
+                        lo[k] = lo[k].min(p[k]);
+                        hi[k] = hi[k].max(p[k]);
+                    }
+                }
+                (lo, hi)
+            },
+        )
+        .reduce(
+            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(a, b), (c, d)| {
+                (
+                    [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
+                    [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
+                )
+            },
+        );
+    if stale > 0 {
+        warnings.push(format!(
+            "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals and uses the vertex order, but other tools may not"
+        ));
+    }
+    check_extent(&lo, &hi, sidecar.units.metres())?;
+    let mid = [
+        (lo[0] + hi[0]) / 2.0,
+        (lo[1] + hi[1]) / 2.0,
+        (lo[2] + hi[2]) / 2.0,
+    ];
+    let centre = frame.point_in(mid);
+    // Into the internal frame about the local origin, in place; then the same storage is
+    // read as `Tri`s (three f64 a vertex either way, so the cast cannot fail).
+    facets.par_iter_mut().for_each(|t| {
+        for p in t.iter_mut() {
+            let q = frame.point_in(*p) - centre;
+            *p = [q.x, q.y, q.z];
+        }
+    });
+    let tris: Vec<Tri> = bytemuck::cast_vec(facets);
+    // The box of `tris`, from the mesh's box: each internal coordinate is one mesh
+    // coordinate times ±1 and the (positive) scale, less the centre, and each of those steps
+    // keeps the order of values under rounding, so the corners map to corners exactly.
+    let local_box = {
+        let (a, b) = (frame.point_in(lo) - centre, frame.point_in(hi) - centre);
+        (a.inf(&b), a.sup(&b))
+    };
+    let profiles: Vec<_> = sidecar
+        .cases
+        .iter()
+        .map(|c| profiles_of(sidecar, &c.name, &c.liquids, centre.z))
+        .collect();
+    // The topology is mostly one thread's work. Meanwhile the other thread finds the
+    // planes of the parts, which need only the facets, and computes the cases on the guess
+    // that the mesh is clean; the guess is kept only if the topology confirms it exactly.
+    let (topology, (part_plane, mesh_plane, guess)) = rayon::join(
+        || Topology::build_in_box(&tris, local_box),
+        || {
+            let part_plane: Vec<Option<hydro::Plane>> = parts
+                .iter()
+                .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
+                .collect();
+            let mesh_plane = match &part_plane[..] {
+                [one] if parts.len() == 1 => *one,
+                _ => hydro::plane_of(tris.iter()),
+            };
+            let guess = Wet::clean_guess(&parts, sidecar, tris.len()).map(|wet| {
+                let accs: Vec<Option<Vec<PartAccum>>> = profiles
+                    .iter()
+                    .map(|p| p.as_ref().ok().map(|p| run(&tris, &parts, &wet, p)))
+                    .collect();
+                (wet, accs)
+            });
+            (part_plane, mesh_plane, guess)
+        },
+    );
+    let wet = Wet::of(&parts, sidecar, &topology)?;
+    let accs = match guess {
+        Some((guessed, accs)) if guessed == wet => accs,
+        _ => vec![None; sidecar.cases.len()],
+    };
+    let closed = wet.closed;
+
+    let part_closed: Vec<bool> = parts
+        .iter()
+        .map(|p| closed && topology.closed_within(p.facets.clone()))
+        .collect();
+    describe_topology(&topology, &wet.part_setup, closed, warnings);
+    units_hint(sidecar, &lo, &hi, warnings);
+
+    let axes = sidecar
+        .axes
+        .iter()
+        .map(|a| {
+            (
+                a.name.clone(),
+                frame.vector_in(a.point_m),
+                frame.vector_in(a.direction),
+            )
+        })
+        .collect();
+    let prepared = Prepared {
+        parts,
+        format,
+        frame,
+        centre,
+        tris,
+        local_box,
+        moment_about: frame.vector_in(sidecar.moment_about_m),
+        topology,
+        wet,
+        part_closed,
+        part_plane,
+        mesh_plane,
+        axes,
+    };
+    Ok((prepared, Early { profiles, accs }))
+}
+
+fn describe_topology(
+    t: &Topology,
+    setup: &[(Option<usize>, WetSide)],
+    closed: bool,
+    w: &mut Vec<String>,
+) {
+    let uses_shells = setup
+        .iter()
+        .any(|(_, s)| matches!(s, WetSide::Outside | WetSide::Inside));
+    if uses_shells {
+        let flipped: usize = t.shells.iter().map(|s| s.flipped_facets).sum();
+        let inverted = t.shells.iter().filter(|s| s.inverted).count();
+        if inverted > 0 {
+            w.push(format!(
+                "{inverted} closed shell(s) were wound inward as stored; they were turned outward for the computation (the file is unchanged)"
+            ));
+        }
+        if flipped > 0 {
+            w.push(format!(
+                "winding repaired: {flipped} facet(s) are read reversed so that every closed shell is consistently wound and faces outward"
+            ));
+        }
+    } else if !closed && setup.iter().any(|(l, _)| l.is_some()) {
+        let side = setup
+            .iter()
+            .find(|(l, _)| l.is_some())
+            .map_or("front", |(_, s)| s.as_str());
+        w.push(format!(
+            "open surface: the liquid is taken on the \"{side}\" side, i.e. the side {} the right-hand-rule normals (vertex order) point to; if the loads act the wrong way, set \"wet_side\": \"{}\"",
+            if side == "front" { "that" } else { "opposite to the one" },
+            if side == "front" { "back" } else { "front" }
+        ));
+        if t.inconsistent_edges > 0 {
+            w.push(format!(
+                "{} edge(s) join facets wound in opposite senses: with front/back the winding is used as stored, so parts of the surface may be loaded from the wrong side; fix the export or close the mesh",
+                t.inconsistent_edges
+            ));
+        }
+    }
+    let cavities = t.shells.iter().filter(|s| s.closed && s.depth > 0).count();
+    if closed && cavities > 0 {
+        w.push(format!(
+            "{cavities} closed shell(s) lie sealed inside another: with \"outside\" they are dry cavities and their volume belongs to the enclosing body"
+        ));
+    }
+    if t.degenerate_facets > 0 {
+        w.push(format!(
+            "{} degenerate facet(s) (a repeated vertex within the weld tolerance) were ignored for topology",
+            t.degenerate_facets
+        ));
+    }
+    if t.duplicate_facets > 0 {
+        w.push(format!(
+            "{} duplicate facet(s): each carries load again, so the loads on them are counted twice",
+            t.duplicate_facets
+        ));
+    }
+    if !closed && t.non_manifold_edges > 0 {
+        w.push(format!(
+            "{} non-manifold edge(s) (shared by more than two facets)",
+            t.non_manifold_edges
+        ));
+    }
+}
+
+/// Warns when the mesh's size in metres suggests a different unit was meant.
+fn units_hint(sidecar: &Sidecar, lo: &[f64; 3], hi: &[f64; 3], w: &mut Vec<String>) {
+    let extent = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max) * sidecar.units.metres();
+    let unit = sidecar.units.as_str();
+    if extent > 2000.0 {
+        let likely = if unit == "m" { "mm" } else { "a smaller unit" };
+        w.push(format!(
+            "the mesh is {:.0} m across in \"{unit}\": for a hydraulic structure that is implausibly large; is \"units\" really \"{unit}\"? (perhaps \"{likely}\")",
+            extent
+        ));
+    } else if extent > 0.0 && extent < 0.05 {
+        let likely = if unit == "mm" { "m" } else { "a larger unit" };
+        w.push(format!(
+            "the mesh is {:.4} m across in \"{unit}\": for a hydraulic structure that is implausibly small; is \"units\" really \"{unit}\"? (perhaps \"{likely}\")",
+            extent
+        ));
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::compute::compute_model;
+    use crate::mesh::Format;
+    use crate::sidecar::parse_sidecar;
+    use std::path::Path;
+
+    #[test]
+    fn the_local_box_derived_from_the_mesh_box_is_that_of_the_facets() {
+        // Off-centre, noisy coordinates in every up axis and unit: the box taken from the
+        // mesh's box must equal, bit for bit, the box of the transformed facets.
+        let tris = shapes::perturb(
+            &shapes::torus([12.3, -4.56, 7.89], 3.0, 1.0, 20, 9),
+            0.05,
+            3,
+        );
+        for up in ["+x", "-x", "+y", "-y", "+z", "-z"] {
+            for units in ["m", "mm", "ft"] {
+                let side = parse_sidecar(
+                    Path::new("t.json"),
+                    &format!(
+                        r#"{{"units": "{units}", "up": "{up}", "liquid": {{"level": 0, "density": 1000}}}}"#
+                    ),
+                )
+                .expect("valid");
+                let mesh = Mesh::from_parts(vec![("t", tris.clone())], Format::Obj);
+                let (_, model) = compute_model("t.obj", mesh, &side).expect("computes");
+                let prep = &model.prep;
+                let facet_box = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+                assert_eq!(prep.local_box, facet_box, "up {up}, units {units}");
+            }
+        }
+    }
+}

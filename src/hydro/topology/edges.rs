@@ -1,0 +1,419 @@
+//! Edges, found from the welded vertex ids: the facets around every vertex, every edge
+//! with its uses in facet order and what it says (open, non-manifold, or traversed the
+//! same way by its two facets), each facet's neighbour across each edge, and the facets
+//! that repeat another's vertices.
+//!
+//! It groups no facets into shells and turns none; the flood fill in `shells.rs` reads
+//! the neighbours found here.
+
+use std::sync::atomic::{AtomicU32, Ordering};
+
+use super::Defect;
+
+/// No neighbour across a facet's edge (an open or non-manifold edge).
+pub(super) const NO_NEIGHBOUR: u32 = u32::MAX;
+
+/// Vertex ranges, one per thread, for the steps whose every range reads all the facets
+/// and writes only its own vertices' part. The results do not depend on the split.
+fn vertex_ranges(vertices: usize) -> Vec<std::ops::Range<u32>> {
+    let parts = if vertices < 1 << 14 {
+        1
+    } else {
+        rayon::current_num_threads().max(1)
+    };
+    let step = vertices.div_ceil(parts).max(1);
+    (0..parts)
+        .map(|i| ((i * step).min(vertices) as u32)..(((i + 1) * step).min(vertices) as u32))
+        .collect()
+}
+
+/// `s` cut into consecutive pieces of the given lengths (which sum to its length).
+fn split_lengths<T>(mut s: &mut [T], lengths: impl Iterator<Item = usize>) -> Vec<&mut [T]> {
+    let mut out = Vec::new();
+    for len in lengths {
+        let (head, tail) = std::mem::take(&mut s).split_at_mut(len);
+        out.push(head);
+        s = tail;
+    }
+    out
+}
+
+/// The non-degenerate facets around every vertex, each vertex's in facet order.
+pub(super) struct Incidence {
+    /// Where each vertex's facets end in `facets` (and the next vertex's begin).
+    end: Vec<u32>,
+    facets: Vec<u32>,
+    ranges: Vec<std::ops::Range<u32>>,
+}
+
+impl Incidence {
+    /// A counting sort of the facets' corners by vertex, each range of vertices on a
+    /// thread of its own.
+    pub(super) fn new(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize) -> Incidence {
+        Incidence::in_ranges(ids, degenerate, vertices, vertex_ranges(vertices))
+    }
+
+    /// [`Incidence::new`] with the vertices split into `ranges` (consecutive, covering
+    /// `0..vertices`).
+    fn in_ranges(
+        ids: &[[u32; 3]],
+        degenerate: &[bool],
+        vertices: usize,
+        ranges: Vec<std::ops::Range<u32>>,
+    ) -> Incidence {
+        use rayon::prelude::*;
+        let lengths = || ranges.iter().map(|r| r.len());
+        let corners = || {
+            ids.iter()
+                .zip(degenerate)
+                .enumerate()
+                .filter(|(_, (_, d))| !**d)
+                .map(|(f, (t, _))| (f as u32, t))
+        };
+        // Facets per vertex.
+        let mut end = vec![0u32; vertices];
+        split_lengths(&mut end, lengths())
+            .into_par_iter()
+            .zip(&ranges)
+            .for_each(|(count, r)| {
+                for (_, t) in corners() {
+                    for &v in t {
+                        if r.contains(&v) {
+                            count[(v - r.start) as usize] += 1;
+                        }
+                    }
+                }
+            });
+        // Where each vertex's facets start.
+        let mut total = 0u32;
+        for e in end.iter_mut() {
+            let count = *e;
+            *e = total;
+            total += count;
+        }
+        let first = |r: &std::ops::Range<u32>| end.get(r.start as usize).map_or(total, |&s| s);
+        let bounds: Vec<u32> = ranges.iter().map(first).chain([total]).collect();
+        // Each range fills its own part of `facets`, moving its vertices' starts to ends.
+        let mut facets = vec![0u32; total as usize];
+        let parts = split_lengths(
+            &mut facets,
+            bounds.windows(2).map(|w| (w[1] - w[0]) as usize),
+        );
+        split_lengths(&mut end, lengths())
+            .into_par_iter()
+            .zip(parts)
+            .zip(&ranges)
+            .zip(&bounds)
+            .for_each(|(((cursor, out), r), &base)| {
+                for (f, t) in corners() {
+                    for &v in t {
+                        if r.contains(&v) {
+                            let c = &mut cursor[(v - r.start) as usize];
+                            out[(*c - base) as usize] = f;
+                            *c += 1;
+                        }
+                    }
+                }
+            });
+        Incidence {
+            end,
+            facets,
+            ranges,
+        }
+    }
+
+    /// Vertex `v`'s facets.
+    fn around(&self, v: u32) -> &[u32] {
+        let from = if v == 0 { 0 } else { self.end[v as usize - 1] };
+        &self.facets[from as usize..self.end[v as usize] as usize]
+    }
+
+    /// Every edge, found from its lower vertex with the uses in facet order: the findings
+    /// in order of (lower, higher) vertex, and the manifold neighbours.
+    pub(super) fn edges(&self, ids: &[[u32; 3]]) -> Edges {
+        use rayon::prelude::*;
+        let neighbours = Neighbours(
+            (0..3 * ids.len())
+                .into_par_iter()
+                .map(|_| AtomicU32::new(NO_NEIGHBOUR))
+                .collect(),
+        );
+        let found: Vec<EdgeFindings> = self
+            .ranges
+            .par_iter()
+            .map(|r| {
+                let mut out = EdgeFindings::default();
+                let mut uses: Vec<EdgeUse> = Vec::new();
+                for u in r.clone() {
+                    uses.clear();
+                    for &f in self.around(u) {
+                        let t = ids[f as usize];
+                        let c = t.iter().position(|&v| v == u).unwrap_or(0);
+                        let (next, prev) = (t[(c + 1) % 3], t[(c + 2) % 3]);
+                        if next > u {
+                            uses.push(EdgeUse::new(next, f, c, true));
+                        }
+                        if prev > u {
+                            uses.push(EdgeUse::new(prev, f, (c + 2) % 3, false));
+                        }
+                    }
+                    // Stable, so the uses of an edge stay in facet order. Usually about
+                    // six uses; a vertex shared by many facets still costs O(k log k).
+                    uses.sort_by_key(|e| e.hi);
+                    for group in uses.chunk_by(|a, b| a.hi == b.hi) {
+                        out.visit(group, &neighbours);
+                    }
+                }
+                out
+            })
+            .collect();
+        let findings = EdgeFindings::concat(found);
+        Edges {
+            findings,
+            neighbours,
+        }
+    }
+}
+
+/// One facet's use of an edge, seen from the edge's lower vertex.
+#[derive(Clone, Copy)]
+struct EdgeUse {
+    /// The higher vertex.
+    hi: u32,
+    facet: u32,
+    /// Which of the facet's edges: from its corner `slot` to the next corner.
+    slot: u8,
+    /// The facet runs from the lower vertex to the higher.
+    forward: bool,
+}
+
+impl EdgeUse {
+    fn new(hi: u32, facet: u32, slot: usize, forward: bool) -> EdgeUse {
+        EdgeUse {
+            hi,
+            facet,
+            slot: slot as u8,
+            forward,
+        }
+    }
+}
+
+/// What the edges say, for a range of lower vertices or for all.
+#[derive(Default)]
+pub(super) struct EdgeFindings {
+    pub(super) open_edges: usize,
+    pub(super) non_manifold_edges: usize,
+    pub(super) inconsistent_edges: usize,
+    /// Each finding with the edge's first facet, in order of edge.
+    pub(super) findings: Blocks<(Defect, u32)>,
+    /// Facets on an open or non-manifold edge.
+    pub(super) bad: Blocks<u32>,
+    /// Pairs of facets joined at a non-manifold edge.
+    pub(super) joins: Blocks<(u32, u32)>,
+}
+
+impl EdgeFindings {
+    /// Takes in one edge: its uses in facet order.
+    fn visit(&mut self, group: &[EdgeUse], neighbours: &Neighbours) {
+        let first = group[0].facet;
+        match group {
+            [_] => {
+                self.open_edges += 1;
+                self.findings.push((Defect::OpenEdge, first));
+                self.bad.push(first);
+            }
+            [a, b] => {
+                // Distinct facets: a facet's three edges join three different vertices.
+                let same = a.forward == b.forward;
+                if same {
+                    self.inconsistent_edges += 1;
+                    self.findings.push((Defect::InconsistentEdge, first));
+                }
+                neighbours.set(a, b.facet, same);
+                neighbours.set(b, a.facet, same);
+            }
+            _ => {
+                self.non_manifold_edges += 1;
+                self.findings.push((Defect::NonManifoldEdge, first));
+                for e in group {
+                    self.bad.push(e.facet);
+                    self.joins.push((first, e.facet));
+                }
+            }
+        }
+    }
+
+    /// The findings of consecutive ranges as one (their blocks in order, none copied).
+    fn concat(parts: Vec<EdgeFindings>) -> EdgeFindings {
+        let mut all = EdgeFindings::default();
+        for p in parts {
+            all.open_edges += p.open_edges;
+            all.non_manifold_edges += p.non_manifold_edges;
+            all.inconsistent_edges += p.inconsistent_edges;
+            all.findings.0.extend(p.findings.0);
+            all.bad.0.extend(p.bad.0);
+            all.joins.0.extend(p.joins.0);
+        }
+        all
+    }
+}
+
+/// A list grown in blocks of a fixed size: it never copies or frees a block as it grows,
+/// so a mesh with many findings leaves no trail of outgrown buffers behind.
+pub(super) struct Blocks<T>(pub(super) Vec<Vec<T>>);
+
+impl<T> Default for Blocks<T> {
+    fn default() -> Self {
+        Blocks(Vec::new())
+    }
+}
+
+impl<T> Blocks<T> {
+    const SIZE: usize = 1 << 14;
+
+    fn push(&mut self, value: T) {
+        match self.0.last_mut() {
+            Some(block) if block.len() < Self::SIZE => block.push(value),
+            _ => {
+                let mut block = Vec::with_capacity(Self::SIZE);
+                block.push(value);
+                self.0.push(block);
+            }
+        }
+    }
+
+    /// Every value in order, in one vector of exactly their number.
+    pub(super) fn into_vec(self) -> Vec<T> {
+        let mut all = Vec::with_capacity(self.len());
+        for block in self.0 {
+            all.extend(block);
+        }
+        all
+    }
+
+    pub(super) fn len(&self) -> usize {
+        self.0.iter().map(Vec::len).sum()
+    }
+
+    pub(super) fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    pub(super) fn iter(&self) -> impl Iterator<Item = &T> {
+        self.0.iter().flatten()
+    }
+}
+
+pub(super) struct Edges {
+    pub(super) findings: EdgeFindings,
+    pub(super) neighbours: Neighbours,
+}
+
+/// Each facet's neighbour across each of its edges (edge k runs from corner k to the
+/// next): the other facet << 1 | 1 when both traverse the edge in the same direction as
+/// stored, or [`NO_NEIGHBOUR`]. Every entry is written once, by the range of vertices
+/// that holds the edge's lower vertex; atomics let the ranges share the array.
+pub(super) struct Neighbours(Vec<AtomicU32>);
+
+impl Neighbours {
+    fn set(&self, from: &EdgeUse, to: u32, same: bool) {
+        let at = 3 * from.facet as usize + usize::from(from.slot);
+        self.0[at].store((to << 1) | u32::from(same), Ordering::Relaxed);
+    }
+
+    pub(super) fn of(&self, f: usize) -> [u32; 3] {
+        [0, 1, 2].map(|k| self.0[3 * f + k].load(Ordering::Relaxed))
+    }
+}
+
+/// Facets whose three welded vertices repeat an earlier facet's (any order or winding).
+pub(super) fn duplicate_facet_list(ids: &[[u32; 3]], degenerate: &[bool]) -> Vec<u32> {
+    let mut keys: Vec<([u32; 3], u32)> = ids
+        .iter()
+        .zip(degenerate)
+        .enumerate()
+        .filter(|(_, (_, d))| !**d)
+        .map(|(f, (t, _))| {
+            let mut k = *t;
+            k.sort_unstable();
+            (k, f as u32)
+        })
+        .collect();
+    keys.sort_unstable();
+    keys.windows(2)
+        .filter(|w| w[0].0 == w[1].0)
+        .map(|w| w[1].1)
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::hydro::Vec3;
+    use crate::hydro::topology::tests::tris;
+    use crate::hydro::topology::weld::weld;
+    use crate::hydro::topology::{WELD_TOLERANCE_REL, bounding_box};
+
+    #[test]
+    fn blocks_keep_their_order_across_blocks() {
+        let mut b = Blocks::default();
+        assert!(b.is_empty());
+        let n = 2 * Blocks::<u32>::SIZE + 7;
+        for i in 0..n as u32 {
+            b.push(i);
+        }
+        assert_eq!(b.0.len(), 3);
+        assert!(b.iter().copied().eq(0..n as u32));
+        assert_eq!(b.into_vec(), (0..n as u32).collect::<Vec<_>>());
+    }
+
+    #[test]
+    fn edges_found_in_ranges_of_vertices_are_those_found_in_one() {
+        // A torus with holes, a duplicate, a fin (non-manifold) and reversed facets.
+        let mut t = tris(shapes::torus([0.0; 3], 3.0, 1.0, 48, 24));
+        t.retain(|f| f[0].x > -2.5 || f[0].y > 0.0);
+        for f in (0..t.len()).step_by(97) {
+            t[f].swap(1, 2);
+        }
+        t.push(t[10]);
+        t.push([t[20][0], t[20][1], Vec3::new(9.0, 9.0, 9.0)]);
+        let (lo, hi) = bounding_box(t.iter().flatten());
+        let (ids, vertices) = weld(&t, WELD_TOLERANCE_REL * (hi - lo).norm(), (lo, hi));
+        let degenerate = vec![false; ids.len()];
+        let whole = std::iter::once(0..vertices as u32).collect();
+        let one = Incidence::in_ranges(&ids, &degenerate, vertices, whole);
+        let (ref_edges, ref_neighbours) = {
+            let e = one.edges(&ids);
+            let n: Vec<[u32; 3]> = (0..ids.len()).map(|f| e.neighbours.of(f)).collect();
+            (e.findings, n)
+        };
+        assert!(ref_edges.open_edges > 0 && ref_edges.non_manifold_edges > 0);
+        assert!(ref_edges.inconsistent_edges > 0);
+        for parts in [2u32, 3, 7] {
+            let v = vertices as u32;
+            let ranges = (0..parts)
+                .map(|i| i * v / parts..(i + 1) * v / parts)
+                .collect();
+            let split = Incidence::in_ranges(&ids, &degenerate, vertices, ranges);
+            assert_eq!((&split.end, &split.facets), (&one.end, &one.facets));
+            let e = split.edges(&ids);
+            let n: Vec<[u32; 3]> = (0..ids.len()).map(|f| e.neighbours.of(f)).collect();
+            assert_eq!(n, ref_neighbours, "{parts} ranges");
+            let f = e.findings;
+            assert_eq!(
+                (f.open_edges, f.non_manifold_edges, f.inconsistent_edges),
+                (
+                    ref_edges.open_edges,
+                    ref_edges.non_manifold_edges,
+                    ref_edges.inconsistent_edges
+                )
+            );
+            fn list<T: Copy>(b: &Blocks<T>) -> Vec<T> {
+                b.iter().copied().collect()
+            }
+            assert_eq!(list(&f.findings), list(&ref_edges.findings));
+            assert_eq!(list(&f.bad), list(&ref_edges.bad));
+            assert_eq!(f.joins.into_vec(), list(&ref_edges.joins));
+        }
+    }
+}

@@ -1,0 +1,158 @@
+//! Shells and winding: one flood fill over the manifold edges that numbers the connected
+//! pieces and reads every facet as stored or reversed so that each piece is consistently
+//! wound; pieces joined at non-manifold edges become one shell; sums per shell that do
+//! not depend on the number of threads.
+//!
+//! Turning closed shells outward (by the sign of their volume) is done by the caller from
+//! these sums; nesting is `nest.rs`'s.
+
+use super::edges::{NO_NEIGHBOUR, Neighbours};
+use super::{NO_SHELL, ShellInfo, UnionFind};
+
+/// Shells and winding in one flood fill over the manifold edges: the facets it reaches
+/// from the lowest facet not yet reached are one piece (numbered in that order), and a
+/// neighbour across an edge traversed in the same direction must be read reversed
+/// relative to this facet. Returns each facet's piece ([`NO_SHELL`] if degenerate), whether
+/// it is read reversed, and the pieces.
+pub(super) fn flood(
+    degenerate: &[bool],
+    adj: &Neighbours,
+    bad_facet: &[bool],
+) -> (Vec<u32>, Vec<bool>, Vec<ShellInfo>) {
+    use rayon::prelude::*;
+    let n = degenerate.len();
+    let mut facet_shell = vec![NO_SHELL; n];
+    // Per facet: not reached yet, reached as stored, or reached reversed (one byte a facet,
+    // so the checks of the neighbours stay in cache).
+    const UNSEEN: u8 = 0;
+    const AS_STORED: u8 = 1;
+    const REVERSED: u8 = 2;
+    let mut reach = vec![UNSEEN; n];
+    let mut shells: Vec<ShellInfo> = Vec::new();
+    let mut queue: Vec<u32> = Vec::new();
+    for f in 0..n {
+        if degenerate[f] || reach[f] != UNSEEN {
+            continue;
+        }
+        let piece = shells.len() as u32;
+        let mut sh = ShellInfo {
+            facets: 0,
+            facet_span: (f, f),
+            closed: true,
+            orientable: true,
+            volume: 0.0,
+            inverted: false,
+            flipped_facets: 0,
+            depth: 0,
+            children: 0,
+        };
+        facet_shell[f] = piece;
+        reach[f] = AS_STORED;
+        queue.clear();
+        queue.push(f as u32);
+        let mut head = 0;
+        while head < queue.len() {
+            let c = queue[head] as usize;
+            head += 1;
+            sh.facets += 1;
+            sh.facet_span.1 = sh.facet_span.1.max(c);
+            if bad_facet[c] {
+                sh.closed = false;
+            }
+            let reversed = reach[c] == REVERSED;
+            for a in adj.of(c) {
+                if a == NO_NEIGHBOUR {
+                    continue;
+                }
+                let (g, same) = ((a >> 1) as usize, a & 1 == 1);
+                let want = if reversed ^ same { REVERSED } else { AS_STORED };
+                if reach[g] == UNSEEN {
+                    reach[g] = want;
+                    facet_shell[g] = piece;
+                    queue.push(g as u32);
+                } else if reach[g] != want {
+                    sh.orientable = false;
+                    sh.closed = false;
+                }
+            }
+        }
+        shells.push(sh);
+    }
+    let flip = reach.par_iter().map(|&r| r == REVERSED).collect();
+    (facet_shell, flip, shells)
+}
+
+/// Sums of `value(f)` over the facets `f` of each shell: within fixed blocks of facets on
+/// all threads, runs of one shell summed in order, then the blocks' sums added in order,
+/// so the result does not depend on the number of threads.
+pub(super) fn shell_sums<T>(
+    facet_shell: &[u32],
+    shells: usize,
+    value: impl Fn(usize) -> T + Sync,
+) -> Vec<T>
+where
+    T: Copy + Default + Send + std::ops::AddAssign,
+{
+    use rayon::prelude::*;
+    const BLOCK: usize = 1 << 16;
+    let runs: Vec<Vec<(u32, T)>> = facet_shell
+        .par_chunks(BLOCK)
+        .enumerate()
+        .map(|(b, block)| {
+            let mut runs: Vec<(u32, T)> = Vec::new();
+            for (i, &s) in block.iter().enumerate().filter(|(_, s)| **s != NO_SHELL) {
+                let v = value(b * BLOCK + i);
+                match runs.last_mut() {
+                    Some((last, sum)) if *last == s => *sum += v,
+                    _ => runs.push((s, v)),
+                }
+            }
+            runs
+        })
+        .collect();
+    let mut sums = vec![T::default(); shells];
+    for (s, v) in runs.into_iter().flatten() {
+        sums[s as usize] += v;
+    }
+    sums
+}
+
+/// Pieces (numbered in order of first facet) joined at non-manifold edges become one
+/// shell, numbered in order of first facet too; `facet_shell` is renumbered.
+pub(super) fn join_pieces(
+    pieces: Vec<ShellInfo>,
+    joins: &[(u32, u32)],
+    facet_shell: &mut [u32],
+) -> Vec<ShellInfo> {
+    let mut uf = UnionFind::new(pieces.len());
+    for &(a, b) in joins {
+        uf.union(
+            facet_shell[a as usize] as usize,
+            facet_shell[b as usize] as usize,
+        );
+    }
+    // The union keeps the lowest piece as the root, so roots come first in order.
+    let mut number = vec![NO_SHELL; pieces.len()];
+    let mut shells: Vec<ShellInfo> = Vec::new();
+    for (p, piece) in pieces.into_iter().enumerate() {
+        let r = uf.find(p);
+        if r == p {
+            number[p] = shells.len() as u32;
+            shells.push(piece);
+            continue;
+        }
+        number[p] = number[r];
+        let sh = &mut shells[number[r] as usize];
+        sh.facets += piece.facets;
+        sh.facet_span = (
+            sh.facet_span.0.min(piece.facet_span.0),
+            sh.facet_span.1.max(piece.facet_span.1),
+        );
+        sh.closed &= piece.closed;
+        sh.orientable &= piece.orientable;
+    }
+    for s in facet_shell.iter_mut().filter(|s| **s != NO_SHELL) {
+        *s = number[*s as usize];
+    }
+    shells
+}

@@ -1,0 +1,302 @@
+//! The weld: every corner of the soup gets a vertex id, corners within the tolerance of a
+//! cluster's first corner sharing one, numbered in order of first appearance.
+//!
+//! Topology only: no coordinate is moved, and nothing here looks at edges, facets or
+//! shells beyond the corners they are made of.
+
+use super::{Tri, UnionFind, Vec3};
+
+/// Cells per axis of the weld grid fit in this many bits of a packed key.
+const CELL_BITS: u32 = 21;
+
+/// Slots of the weld's cache of exact corner positions (a power of two).
+const EXACT_SLOTS: usize = 1 << 14;
+
+/// Gives every corner a vertex id: a corner within `tol` of a cluster's first corner
+/// joins that cluster (the same clusters as joining every pair within `tol` whenever
+/// clusters are far apart compared with `tol`, as in any mesh not degenerate at that
+/// scale); ids are numbered in order of each cluster's first corner. Returns the ids per facet and the number of vertices.
+///
+/// In a triangle soup every vertex is stored once per facet that uses it, bit for bit the
+/// same, usually a few facets apart. So, first, a small direct-mapped cache of exact
+/// positions sends each repeat to the corner it repeats; the corners it misses (the
+/// candidates, about one per vertex, plus the few repeats it forgot) go on. Second, the
+/// candidates are sorted by a grid cell 64 × `tol` wide and clustered cell by cell: the
+/// first candidate of a cluster is its representative, later ones within `tol` of it
+/// join it, and representatives within `tol` of a cell face (one in ten) are joined with
+/// those of the neighbour cells within `tol` (union-find).
+/// The sort, not a hash map, keeps every step in cache-friendly order; the result does
+/// not depend on the number of threads.
+pub(super) fn weld(tris: &[Tri], tol: f64, bbox: (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
+    weld_in_blocks(tris, tol, bbox, WELD_BLOCK)
+}
+
+/// Facets per block of the weld's first step (a constant, so that nothing depends on the
+/// number of threads).
+const WELD_BLOCK: usize = 1 << 18;
+
+/// [`weld`], its first step in blocks of `block` facets.
+pub(super) fn weld_in_blocks(
+    tris: &[Tri],
+    tol: f64,
+    (origin, _): (Vec3, Vec3),
+    block: usize,
+) -> (Vec<[u32; 3]>, usize) {
+    use rayon::prelude::*;
+
+    // 1. Exact repeats, block by block on both threads, each block with its own cache; the
+    // candidates of a block follow those of the blocks before it, so they stay in order
+    // of first appearance (a point repeated across blocks is one candidate per block, and
+    // step 3 joins them). `ids` holds candidate indices until step 4.
+    let block = block.max(1);
+    let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.len()];
+    // Each candidate's corner (3 × facet + corner), relative to `origin` its position.
+    let corner = |c: u32| tris[c as usize / 3][c as usize % 3] - origin;
+    let blocks: Vec<Vec<u32>> = tris
+        .par_chunks(block)
+        .zip(ids.par_chunks_mut(block))
+        .enumerate()
+        .map(|(b, (tris, ids))| {
+            let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
+            let mut candidates: Vec<u32> = Vec::with_capacity(tris.len() / 2 + 16);
+            for (f, (t, c)) in tris.iter().zip(ids).enumerate() {
+                for k in 0..3 {
+                    let p = &t[k];
+                    let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+                    let slot = exact_slot(&bits);
+                    c[k] = if exact[slot].0 == bits {
+                        exact[slot].1
+                    } else {
+                        let i = candidates.len() as u32;
+                        candidates.push((3 * (b * block + f) + k) as u32);
+                        exact[slot] = (bits, i);
+                        i
+                    };
+                }
+            }
+            candidates
+        })
+        .collect();
+    // Block-local candidate indices become global ones.
+    let mut offsets = Vec::with_capacity(blocks.len());
+    let mut total = 0u32;
+    for b in &blocks {
+        offsets.push(total);
+        total += b.len() as u32;
+    }
+    ids.par_chunks_mut(block)
+        .zip(&offsets)
+        .filter(|(_, o)| **o > 0)
+        .for_each(|(ids, &o)| ids.iter_mut().for_each(|t| *t = t.map(|i| i + o)));
+    let count = total as usize;
+
+    // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
+    // most 1.6e5 cells (< 2^21, so the packed keys of real cells never collide).
+    let cell = if tol > 0.0 { 64.0 * tol } else { 1.0 };
+    // Positions are relative to the box's lowest corner, so never negative, and the cast
+    // (which truncates) is the floor without a call to `floor`.
+    let key = |q: &Vec3| -> [i64; 3] {
+        [
+            (q.x / cell) as i64,
+            (q.y / cell) as i64,
+            (q.z / cell) as i64,
+        ]
+    };
+    // Whether a point lies within `tol` of a face of its cell `k` along axis `ax`: -1
+    // (the lower face), 1 (the upper one) or 0.
+    let near_face = |q: &Vec3, k: &[i64; 3], ax: usize| -> i64 {
+        let inside = q[ax] / cell - k[ax] as f64; // position inside the cell, [0, 1)
+        if inside * cell < tol {
+            -1
+        } else if (1.0 - inside) * cell <= tol {
+            1
+        } else {
+            0
+        }
+    };
+    // (cell, candidate, its corner with [`NEAR_FACE`] set when the point lies that close
+    // to a face of its cell): the candidate breaks ties, so the order is unique.
+    let mut order: Vec<(u64, u32, u32)> = blocks
+        .par_iter()
+        .zip(&offsets)
+        .flat_map_iter(|(b, &o)| {
+            b.iter().enumerate().map(move |(i, &c)| {
+                let q = corner(c);
+                let k = key(&q);
+                let near = (0..3).any(|ax| near_face(&q, &k, ax) != 0);
+                (pack(k), o + i as u32, c | if near { NEAR_FACE } else { 0 })
+            })
+        })
+        .collect();
+    drop(blocks);
+    order.par_sort_unstable();
+    // The position of the candidate at `a` in `order`.
+    let at = |a: usize| corner(order[a].2 & !NEAR_FACE);
+
+    // 3. Clusters. Within a cell, in candidate order, the first candidate of a cluster is
+    // its representative and every later one within `tol` of a representative joins it;
+    // then representatives within `tol` of a cell face are joined with those of the
+    // neighbour cells within `tol`. Comparing with representatives only keeps a cell
+    // that holds the same point many times (evicted from the cache) linear.
+    let tol2 = tol * tol;
+    let mut uf = UnionFind::new(count);
+    // Positions (in `order`) of the representatives, grouped by cell in key order.
+    let mut reps: Vec<u32> = Vec::with_capacity(order.len());
+    // The positions of the current cell's representatives.
+    let mut cell_reps: Vec<(Vec3, u32)> = Vec::new();
+    let mut start = 0;
+    while start < order.len() {
+        let mut end = start + 1;
+        while end < order.len() && order[end].0 == order[start].0 {
+            end += 1;
+        }
+        if end == start + 1 {
+            // Alone in its cell (the rule): a representative, its position not needed.
+            reps.push(start as u32);
+            start = end;
+            continue;
+        }
+        cell_reps.clear();
+        for a in start..end {
+            let q = at(a);
+            match cell_reps
+                .iter()
+                .find(|(p, _)| (p - q).norm_squared() <= tol2)
+            {
+                Some(&(_, r)) => uf.union(order[a].1 as usize, order[r as usize].1 as usize),
+                None => {
+                    reps.push(a as u32);
+                    cell_reps.push((q, a as u32));
+                }
+            }
+        }
+        start = end;
+    }
+    // The representatives' keys side by side, for the searches below.
+    let rep_keys: Vec<u64> = reps.iter().map(|&r| order[r as usize].0).collect();
+    // Representatives near a face, in blocks on both threads; the pairs found are joined
+    // after (the clusters do not depend on the order of the joins).
+    let joins: Vec<(u32, u32)> = reps
+        .par_chunks(1 << 12)
+        .flat_map_iter(|block| {
+            let mut found = Vec::new();
+            for &a in block {
+                let (_, i, c) = order[a as usize];
+                if c & NEAR_FACE == 0 {
+                    continue; // nothing in another cell is within `tol`
+                }
+                let q = at(a as usize);
+                // Neighbour cells worth visiting along each axis.
+                let k = key(&q);
+                let mut offs = [[0i64; 2]; 3];
+                let mut counts = [1usize; 3];
+                for ax in 0..3 {
+                    let side = near_face(&q, &k, ax);
+                    if side != 0 {
+                        offs[ax][1] = side;
+                        counts[ax] = 2;
+                    }
+                }
+                for ia in 0..counts[0] {
+                    for ib in 0..counts[1] {
+                        for ic in 0..counts[2] {
+                            if ia + ib + ic == 0 {
+                                continue; // its own cell, done above
+                            }
+                            let other =
+                                pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
+                            let from = rep_keys.partition_point(|&k| k < other);
+                            for (&r, &key_r) in reps[from..].iter().zip(&rep_keys[from..]) {
+                                if key_r != other {
+                                    break;
+                                }
+                                if (at(r as usize) - q).norm_squared() <= tol2 {
+                                    found.push((i, order[r as usize].1));
+                                }
+                            }
+                        }
+                    }
+                }
+            }
+            found
+        })
+        .collect();
+    for (i, j) in joins {
+        uf.union(i as usize, j as usize);
+    }
+    drop((order, reps, rep_keys));
+
+    // 4. Number the clusters in order of their first candidate (the union-find keeps the
+    // lowest index as the root, and candidates are in order of first appearance).
+    let mut vertex = vec![u32::MAX; count];
+    let mut vertices = 0u32;
+    for i in 0..count {
+        let r = uf.find(i);
+        if vertex[r] == u32::MAX {
+            vertex[r] = vertices;
+            vertices += 1;
+        }
+        vertex[i] = vertex[r];
+    }
+    ids.par_iter_mut()
+        .for_each(|t| *t = t.map(|i| vertex[i as usize]));
+    (ids, vertices as usize)
+}
+
+/// Marks a corner index in the weld's sort: the point lies within the tolerance of a
+/// face of its cell. Corner indices stay below 3 × [`crate::limits::FACETS_CEILING`] < 2^30.
+const NEAR_FACE: u32 = 1 << 31;
+
+/// A cell's three indices packed into one key, [`CELL_BITS`] bits each.
+fn pack(k: [i64; 3]) -> u64 {
+    let m = (1u64 << CELL_BITS) - 1;
+    (k[0] as u64 & m) | ((k[1] as u64 & m) << CELL_BITS) | ((k[2] as u64 & m) << (2 * CELL_BITS))
+}
+
+/// The cache slot of an exact position: a multiplicative hash of its bit patterns.
+fn exact_slot(bits: &[u64; 3]) -> usize {
+    const K: u64 = 0x9E37_79B9_7F4A_7C15;
+    let h = (bits[0].wrapping_mul(K) ^ bits[1]).wrapping_mul(K) ^ bits[2];
+    (h.wrapping_mul(K) >> (64 - EXACT_SLOTS.trailing_zeros())) as usize
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::hydro::topology::tests::{plain_weld, tris};
+    use crate::hydro::topology::{WELD_TOLERANCE_REL, bounding_box};
+
+    #[test]
+    fn the_weld_finds_the_clusters_of_the_definition() {
+        // Vertices on cell faces (the torus is centred on the origin, a cell corner), the
+        // same torus with every vertex moved a little, and in both some corners nudged by
+        // less than the tolerance and a facet repeated, so exact repeats, near misses and
+        // neighbour cells are all exercised.
+        let plain = tris(shapes::torus([0.0; 3], 3.0, 1.0, 24, 12));
+        let noisy = tris(shapes::perturb(
+            &shapes::torus([0.0; 3], 3.0, 1.0, 24, 12),
+            1e-3,
+            7,
+        ));
+        for mesh in [plain, noisy] {
+            let mut mesh: Vec<Tri> = mesh
+                .iter()
+                .enumerate()
+                .map(|(i, t)| {
+                    let e = if i % 5 == 0 { 1e-8 } else { 0.0 };
+                    t.map(|p| p + Vec3::new(e, -e, e))
+                })
+                .collect();
+            mesh.push(mesh[0]);
+            let bbox = bounding_box(mesh.iter().flat_map(|t| t.iter()));
+            let tol = WELD_TOLERANCE_REL * (bbox.1 - bbox.0).norm();
+            let (ids, n) = weld(&mesh, tol, bbox);
+            assert_eq!((ids.clone(), n), plain_weld(&mesh, tol));
+            // In blocks of a few facets: points repeated across blocks are joined again.
+            for block in [1, 7, 100] {
+                assert_eq!(weld_in_blocks(&mesh, tol, bbox, block), (ids.clone(), n));
+            }
+            assert_eq!(n, 24 * 12, "every torus vertex once");
+        }
+    }
+}

@@ -1,0 +1,342 @@
+//! The folder's page `results/report.html`: one self-contained HTML document with every
+//! mesh's latest results, read back from the result files and the change log.
+//!
+//! Owns the rendering of a [`FolderPage`] into bytes. It reads no file (the caller hands
+//! it the result documents and the log's lines as JSON values) and fetches nothing: no
+//! scripts, no web fonts, no external style sheets or images; the style is inline and the
+//! charts are inline SVG from [`crate::report::svg`].
+//!
+//! # What the page holds
+//!
+//! A heading with the folder and the time the page was written, the caution, an overview
+//! table (one row per mesh and case), then a section per mesh: its state (iteration, last
+//! event, a stale mark with its reason when the last good result is being kept), the
+//! inputs echoed (format, units, up axis, g, wet side, liquids per case with their levels
+//! and densities, parts and how each was treated), the mesh-health warnings, per case the
+//! loads of the whole mesh and of every part, the line of action, centres, axis moments and
+//! the flotation check, the change since the previous save and since the baseline (from
+//! the change log), and the charts (load history; loads against level when there is a
+//! sweep, with a table of the governing value of each quantity and its level). A mesh
+//! that only ever failed appears with its last error.
+//!
+//! Forces are shown with a prefix chosen per table (N, kN, MN, GN; moments N·m …), lengths
+//! in m, areas in m², volumes in m³, pressures in kPa; the files stay SI. A page written by
+//! the watcher reloads itself every 2 seconds (`<meta http-equiv="refresh">`); a page
+//! written by `calc` does not. `@media print` drops the reloading note and backgrounds,
+//! and keeps tables and charts whole on a page.
+//!
+//! # Where each part is written
+//!
+//! - this file: the page's frame (head, heading, caution, footer) and the overview table;
+//! - `mesh.rs`: one mesh's section: its state, warnings, charts and the sweep's governing
+//!   values, calling the files below for the rest;
+//! - `inputs.rs`: the inputs echoed (mesh, units, liquids per case, parts);
+//! - `case.rs`: one case's loads, line of action, centres, axis moments and flotation;
+//! - `changes.rs`: the change since the previous save and since the baseline;
+//! - `format.rs`: escaping, anchors, and numbers with a prefix chosen per table;
+//! - `style.rs`: the inline style sheet.
+
+mod case;
+mod changes;
+mod format;
+mod inputs;
+mod mesh;
+mod style;
+
+use std::fmt::Write;
+
+use serde_json::Value;
+
+use format::{Scale, anchor, esc, f, v3};
+use mesh::mesh_section;
+use style::STYLE;
+
+/// One mesh known to the folder: a result file, or only lines in the change log.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MeshEntry {
+    /// Stem of `results/<stem>.json`.
+    pub stem: String,
+    /// The mesh's file name (as in the result document and the change log).
+    pub mesh: String,
+    /// The result document as read back, with its `stale` mark if any; `None` when the
+    /// mesh never computed.
+    pub result: Option<Value>,
+}
+
+/// Everything the page shows.
+#[derive(Clone, Debug)]
+pub struct FolderPage<'a> {
+    /// The watched folder, as shown in the heading.
+    pub folder: &'a str,
+    /// When the page was written (RFC 3339 or any text for people).
+    pub generated: &'a str,
+    /// Written by the watcher: the page reloads itself every 2 s.
+    pub live: bool,
+    pub meshes: &'a [MeshEntry],
+    /// Every line of `results/changes.jsonl`, in order.
+    pub log: &'a [Value],
+    /// The caution printed with every result.
+    pub caution: &'a str,
+}
+
+/// Renders the page as UTF-8 bytes.
+pub fn render(page: &FolderPage) -> Vec<u8> {
+    let mut s = String::with_capacity(64 * 1024);
+    s.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
+    s.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
+    if page.live {
+        s.push_str("<meta http-equiv=\"refresh\" content=\"2\">\n");
+    }
+    let _ = writeln!(
+        s,
+        "<title>Hydrostatic loads · {}</title>\n<style>\n{STYLE}</style>\n</head>\n<body>",
+        esc(page.folder)
+    );
+
+    s.push_str("<header class=\"head\">\n");
+    let _ = writeln!(
+        s,
+        "<div class=\"kicker\">wetload · hydrostatic load calculation</div>\n<h1>{}</h1>",
+        esc(page.folder)
+    );
+    let computed = page.meshes.iter().filter(|m| m.result.is_some()).count();
+    let _ = writeln!(
+        s,
+        "<p class=\"meta\">Page written {} · {} mesh{} with results{}</p>",
+        esc(page.generated),
+        computed,
+        if computed == 1 { "" } else { "es" },
+        if page.live {
+            " · <span class=\"live\">updated while <code>wetload watch</code> runs (reloads every 2 s)</span>"
+        } else {
+            ""
+        }
+    );
+    s.push_str("</header>\n<main>\n");
+    let _ = writeln!(
+        s,
+        "<aside class=\"caution\"><strong>Caution.</strong> {}</aside>",
+        esc(page.caution)
+    );
+
+    overview(&mut s, page);
+    for m in page.meshes {
+        mesh_section(&mut s, m, page.log);
+    }
+    s.push_str(
+        "<footer>Sign conventions: forces are the force of the liquid on the surface, in the mesh's \
+own axes; moments follow the right-hand rule about the stated point or axis; vertical is \
+positive up; pressures are gauge. Values in the result files are SI (N, N·m, m, m², m³, Pa); \
+this page shows them with the prefix named in each table heading.</footer>\n",
+    );
+    s.push_str("</main>\n</body>\n</html>\n");
+    s.into_bytes()
+}
+
+fn overview(s: &mut String, page: &FolderPage) {
+    s.push_str("<section class=\"overview\">\n<h2>Overview</h2>\n");
+    if page.meshes.is_empty() {
+        s.push_str("<p class=\"muted\">No results yet: put a mesh (<code>.stl</code> or <code>.obj</code>) and its sidecar <code>.json</code> in the folder.</p>\n</section>\n");
+        return;
+    }
+    // One prefix per mesh: a folder may hold a lab model next to a dam.
+    s.push_str("<div class=\"wide\"><table>\n<tr><th>mesh</th><th class=\"text\">case</th><th>|F|</th><th>horizontal</th><th>vertical, + up</th><th>uplift</th><th class=\"text\">unit</th><th class=\"text\">state</th></tr>\n");
+    for m in page.meshes {
+        let link = format!("<a href=\"#{}\">{}</a>", anchor(&m.stem), esc(&m.mesh));
+        let Some(r) = &m.result else {
+            let _ = writeln!(
+                s,
+                "<tr><td>{link}</td><td class=\"text\">—</td><td>—</td><td>—</td><td>—</td><td>—</td><td></td><td class=\"text\"><span class=\"tag fail\">no result</span></td></tr>"
+            );
+            continue;
+        };
+        let state = if r.get("stale").is_some_and(|x| !x.is_null()) {
+            "<span class=\"tag stale\">stale</span>"
+        } else {
+            "<span class=\"tag\">current</span>"
+        };
+        let cases = r["cases"].as_array().map_or(&[][..], Vec::as_slice);
+        let norm =
+            |c: &Value| v3(&c["force"]).map(|x| (x[0] * x[0] + x[1] * x[1] + x[2] * x[2]).sqrt());
+        let sc = Scale::of(
+            cases
+                .iter()
+                .flat_map(|c| [norm(c), f(&c["uplift"])])
+                .flatten(),
+        );
+        let show = |x: Option<f64>| x.map_or_else(|| "—".to_owned(), |x| sc.show(x));
+        for c in cases {
+            let _ = writeln!(
+                s,
+                "<tr><td>{link}</td><td class=\"text\">{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"text\">{}N</td><td class=\"text\">{state}</td></tr>",
+                esc(c["name"].as_str().unwrap_or("?")),
+                show(norm(c)),
+                show(f(&c["horizontal_force"])),
+                show(f(&c["vertical_force"])),
+                show(f(&c["uplift"])),
+                sc.prefix,
+            );
+        }
+    }
+    s.push_str("</table></div>\n</section>\n");
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    fn result(stale: bool) -> Value {
+        let mut r = json!({
+            "schema": 1, "mesh": "gate.stl",
+            "inputs": {"format": "stl-binary", "units": "mm", "up": "+z", "gravity": 9.80665,
+                       "wet_side": "front", "closed": false, "facets": 64, "shells": 1,
+                       "parts": [{"name": "skin", "facets": 60, "liquid": "liquid", "wet_side": "front", "closed": false},
+                                 {"name": "<b>rib</b>", "facets": 4, "liquid": null, "wet_side": "front", "closed": false}],
+                       "bounding_box": [[0.0, 0.0, 0.0], [2.0, 4.0, 6.0]]},
+            "cases": [{
+                "name": "normal",
+                "liquids": [{"name": "liquid", "level": 5.0, "surface_pressure": 0.0, "layers": [[1000.0, null]]}],
+                "force": [490332.5, 0.0, 288100.0], "moment": [0.0, 690.0, 0.0],
+                "moment_about": [0.0, 0.0, 4.5], "wetted_area": 20.0, "uplift": 288100.0,
+                "downthrust": 0.0, "submerged_volume": null, "centre_of_buoyancy": null,
+                "line_of_action": {"point": [0.1, 2.0, 4.4], "direction": [0.86, 0.0, 0.5], "couple": 0.0},
+                "centre_of_pressure": null, "horizontal_force": 490332.5, "vertical_force": 288100.0,
+                "max_pressure": 49033.25,
+                "axis_moments": {"trunnion": {"moment": 690.0, "miss_distance": 0.0012}},
+                "parts": [],
+                "sweep": [
+                    {"level": 1.0, "force": [19613.3, 0.0, 0.0], "moment": [0.0, 1.0, 0.0], "uplift": 0.0,
+                     "downthrust": 0.0, "wetted_area": 4.0, "submerged_volume": null, "axis_moments": {"trunnion": {"moment": 1.0, "miss_distance": null}}},
+                    {"level": 2.0, "force": [78453.2, 0.0, 0.0], "moment": [0.0, 2.0, 0.0], "uplift": 0.0,
+                     "downthrust": 0.0, "wetted_area": 8.0, "submerged_volume": null, "axis_moments": {"trunnion": {"moment": 2.0, "miss_distance": null}}}
+                ],
+                "sweep_governing": {
+                    "liquid": "liquid",
+                    "force_x": {"value": 78453.2, "level": 2.0}, "force_y": {"value": 0.0, "level": 1.0},
+                    "force_z": {"value": 0.0, "level": 1.0}, "force_magnitude": {"value": 78453.2, "level": 2.0},
+                    "uplift": {"value": 0.0, "level": 1.0}, "downthrust": {"value": 0.0, "level": 1.0},
+                    "axis_moments": {"trunnion": {"value": 2.0, "level": 2.0}},
+                    "flotation_factor": {"value": 1.4567, "level": 2.0}
+                }
+            }],
+            "warnings": ["open surface: the liquid is taken on the \"front\" side"],
+            "caution": "c"
+        });
+        if stale {
+            r["stale"] =
+                json!({"since": "2026-01-02T10:00:00Z", "reason": "gate.json line 3: <bad>"});
+        }
+        r
+    }
+
+    fn log() -> Vec<Value> {
+        let case = |fx: f64, change: Value| {
+            json!([{"name": "normal", "force": [fx, 0.0, 288100.0], "moment": [0.0, 690.0, 0.0],
+                    "vertical_force": 288100.0, "uplift": 288100.0, "downthrust": 0.0,
+                    "wetted_area": 20.0, "submerged_volume": null,
+                    "axis_moments": {"trunnion": 690.0}, "flotation_factor": null,
+                    "change": change.clone(), "since_baseline": change}])
+        };
+        vec![
+            json!({"time": "2026-01-01T09:00:00Z", "mesh": "gate.stl", "event": "computed", "iteration": 1,
+                   "cases": case(480000.0, Value::Null)}),
+            json!({"time": "2026-01-01T09:05:00Z", "mesh": "gate.stl", "event": "computed", "iteration": 2,
+                   "cases": case(490332.5, json!({"force": [10332.5, 1e-10, 0.0], "uplift": 0.0}))}),
+            json!({"time": "2026-01-01T09:06:00Z", "mesh": "broken.obj", "event": "failed",
+                   "error": "broken.obj line 7: face index 9 out of range"}),
+        ]
+    }
+
+    fn page(live: bool, stale: bool) -> String {
+        let meshes = vec![
+            MeshEntry {
+                stem: "gate".into(),
+                mesh: "gate.stl".into(),
+                result: Some(result(stale)),
+            },
+            MeshEntry {
+                stem: "broken".into(),
+                mesh: "broken.obj".into(),
+                result: None,
+            },
+        ];
+        let log = log();
+        let p = FolderPage {
+            folder: "/work/<site>",
+            generated: "2026-01-01T09:06:01Z",
+            live,
+            meshes: &meshes,
+            log: &log,
+            caution: "Hydrostatic loads only.",
+        };
+        String::from_utf8(render(&p)).expect("utf-8")
+    }
+
+    #[test]
+    fn the_page_is_self_contained_and_escapes_user_text() {
+        let html = page(false, false);
+        assert!(html.starts_with("<!DOCTYPE html>"));
+        assert!(html.trim_end().ends_with("</html>"));
+        for external in [
+            "http://", "https://", "<script", "<link", "@import", "url(", "src=",
+        ] {
+            // The SVG namespace is an identifier, not a fetch.
+            let hits = html.matches(external).count();
+            let ns = html.matches("xmlns=\"http://www.w3.org/2000/svg\"").count();
+            let allowed = if external == "http://" { ns } else { 0 };
+            assert_eq!(hits, allowed, "{external}");
+        }
+        assert!(!html.contains("<site>") && html.contains("/work/&lt;site&gt;"));
+        assert!(!html.contains("<b>rib</b>") && html.contains("&lt;b&gt;rib&lt;/b&gt;"));
+        assert!(!html.contains("http-equiv=\"refresh\""));
+        assert!(html.contains("@media print"));
+        assert!(html.contains("Hydrostatic loads only."));
+    }
+
+    #[test]
+    fn the_page_shows_results_changes_charts_and_marks() {
+        let html = page(true, true);
+        assert!(html.contains("<meta http-equiv=\"refresh\" content=\"2\">"));
+        // Stale mark with its (escaped) reason.
+        assert!(html.contains("tag stale"));
+        assert!(html.contains("gate.json line 3: &lt;bad&gt;"));
+        // Inputs echoed.
+        for text in [
+            "<dd>mm (coordinates scaled to m)</dd>",
+            "<dd>+z</dd>",
+            "9.80665 m/s²",
+            "<td>5.000</td>",
+            "1000",
+        ] {
+            assert!(html.contains(text), "{text}");
+        }
+        // Forces in kN with five significant digits: 490332.5 N → 490.33 kN.
+        assert!(html.contains("<td>490.33</td>"));
+        // Change since the previous save: +10.33 kN, +2.2 % of 480 kN; the uplift did not
+        // change, and Fy changed by round-off only.
+        assert!(html.contains("+10.33 (+2.2%)"), "change row");
+        assert!(html.contains("<tr><td>uplift</td><td>288.10</td><td>0.00</td>"));
+        assert!(html.contains("<tr><td>Fy</td><td>0.00</td><td>0.00</td>"));
+        // Two charts inline (history with two computations, one sweep).
+        assert_eq!(html.matches("<svg").count(), 2);
+        assert!(html.contains("Loads against level · case normal"));
+        // The governing values under the sweep chart, each with its level.
+        assert!(html.contains("<th>governing over the sweep</th>"));
+        assert!(html.contains("<tr><td>Fx</td><td>78.453 kN</td><td>2.000</td></tr>"));
+        assert!(
+            html.contains(
+                "<tr><td>moment about trunnion</td><td>2.0000 N·m</td><td>2.000</td></tr>"
+            )
+        );
+        assert!(
+            html.contains(
+                "<tr><td>flotation factor (lowest)</td><td>1.457</td><td>2.000</td></tr>"
+            )
+        );
+        // The mesh that only failed shows its error.
+        assert!(html.contains("face index 9 out of range"));
+        assert!(html.contains("open surface: the liquid is taken on the &quot;front&quot; side"));
+        assert!(html.contains("trunnion"));
+    }
+}
