@@ -23,6 +23,7 @@ mod cases;
 mod field;
 mod finite;
 mod flotation;
+mod plausible;
 mod prepare;
 mod result;
 mod sweep;
@@ -30,8 +31,8 @@ mod wet;
 
 pub use field::{FacetRow, Field, FieldPiece, field};
 pub use result::{
-    AxisMoment, CaseResult, FlotationCheck, Inputs, LineOut, LiquidEcho, Loads, MeshResult,
-    PartInputs, PartResult, PresetEcho, SweepStep,
+    AxisMoment, CaseResult, DatumEcho, FlotationCheck, Inputs, LineOut, LiquidEcho, Loads,
+    MeshResult, PartInputs, PartResult, PresetEcho, SweepStep,
 };
 pub use sweep::{Extreme, Governing, governing};
 
@@ -77,6 +78,10 @@ pub enum ComputeError {
     },
     #[error(transparent)]
     Unassigned(#[from] UnassignedPart),
+    #[error(
+        "parts.\"{name}\" names no part of the mesh (its parts are {parts}): correct the name, or use \"*\" for every part not named"
+    )]
+    UnknownPart { name: String, parts: String },
     #[error("case \"{case}\", liquid \"{liquid}\": {source}")]
     Liquid {
         case: String,
@@ -217,6 +222,11 @@ pub fn compute_model(
                 })
                 .collect(),
             bounding_box,
+            sidecar_units: sidecar.sidecar_units.as_str(),
+            datum: sidecar.datum.as_ref().map(|d| DatumEcho {
+                name: d.name.clone(),
+                mesh_origin_elevation: d.mesh_origin_elevation_m,
+            }),
         },
         cases,
         warnings,

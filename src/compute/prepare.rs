@@ -11,10 +11,11 @@ use rayon::prelude::*;
 use super::ComputeError;
 use super::cases::{profiles_of, run};
 use super::finite::check_extent;
+use super::plausible;
 use super::wet::Wet;
 use crate::hydro::{self, Frame, PartAccum, Profile, Topology, Tri, Vec3, WetSide};
 use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG};
-use crate::sidecar::Sidecar;
+use crate::sidecar::{Sidecar, quoted_list};
 
 /// Everything about the mesh that does not change between cases.
 pub(super) struct Prepared {
@@ -52,6 +53,14 @@ pub(super) fn prepare(
     sidecar: &Sidecar,
     warnings: &mut Vec<String>,
 ) -> Result<(Prepared, Early), ComputeError> {
+    for (name, _) in &sidecar.parts.named {
+        if !mesh.parts.iter().any(|p| &p.name == name) {
+            return Err(ComputeError::UnknownPart {
+                name: name.clone(),
+                parts: quoted_list(mesh.parts.iter().map(|p| p.name.as_str())),
+            });
+        }
+    }
     let frame = Frame {
         scale_m: sidecar.units.metres(),
         up: sidecar.up,
@@ -159,6 +168,14 @@ pub(super) fn prepare(
         .collect();
     describe_topology(&topology, &wet.part_setup, closed, warnings);
     units_hint(sidecar, &lo, &hi, warnings);
+    let mut used = vec![false; sidecar.liquids.len()];
+    for (liquid, _) in &wet.part_setup {
+        if let Some(i) = liquid {
+            used[*i] = true;
+        }
+    }
+    let z_range = (local_box.0.z + centre.z, local_box.1.z + centre.z);
+    plausible::warnings(sidecar, &used, z_range, warnings);
 
     let axes = sidecar
         .axes
@@ -212,15 +229,8 @@ fn describe_topology(
             ));
         }
     } else if !closed && setup.iter().any(|(l, _)| l.is_some()) {
-        let side = setup
-            .iter()
-            .find(|(l, _)| l.is_some())
-            .map_or("front", |(_, s)| s.as_str());
-        w.push(format!(
-            "open surface: the liquid is taken on the \"{side}\" side, i.e. the side {} the right-hand-rule normals (vertex order) point to; if the loads act the wrong way, set \"wet_side\": \"{}\"",
-            if side == "front" { "that" } else { "opposite to the one" },
-            if side == "front" { "back" } else { "front" }
-        ));
+        // The side is always stated for an open mesh (it is refused otherwise) and the
+        // result echoes it per part: no reminder here, only what needs attention.
         if t.inconsistent_edges > 0 {
             w.push(format!(
                 "{} edge(s) join facets wound in opposite senses: with front/back the winding is used as stored, so parts of the surface may be loaded from the wrong side; fix the export or close the mesh",

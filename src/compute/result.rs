@@ -42,6 +42,22 @@ pub struct Inputs {
     pub parts: Vec<PartInputs>,
     /// Bounding box in metres, mesh axes: `[min, max]`.
     pub bounding_box: [[f64; 3]; 2],
+    /// The unit the sidecar's lengths were written in (`"m"` unless `sidecar_units` says
+    /// otherwise). Every length of this document is in metres whatever it is.
+    pub sidecar_units: &'static str,
+    /// The project datum, when the sidecar gives one. Levels in this document are the
+    /// mesh's own elevations (along `up`, m); a project elevation is that plus
+    /// `mesh_origin_elevation`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub datum: Option<DatumEcho>,
+}
+
+/// The project datum as echoed in the result.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct DatumEcho {
+    pub name: Option<String>,
+    /// Elevation of the mesh's origin in the project datum, m.
+    pub mesh_origin_elevation: f64,
 }
 
 /// How one part was treated.

@@ -35,13 +35,24 @@ pub struct SummaryOptions {
 
 /// Renders the summary of one mesh.
 pub fn render(r: &MeshResult, opts: SummaryOptions) -> String {
-    let u = Units::of(opts.units);
+    let origin = r
+        .inputs
+        .datum
+        .as_ref()
+        .map_or(0.0, |d| d.mesh_origin_elevation);
+    let u = Units::of(opts.units).with_datum(origin);
     let mut s = String::new();
     let i = &r.inputs;
     let surface = if i.closed {
         format!("closed ({} shell{})", i.shells, plural(i.shells))
     } else {
-        "open surface".to_owned()
+        let sides: Vec<&str> = r.inputs.parts.iter().map(|p| p.wet_side).collect();
+        match sides.first() {
+            Some(first) if sides.iter().all(|s| s == first) => {
+                format!("open surface, wet on its {first}")
+            }
+            _ => "open surface".to_owned(),
+        }
     };
     let _ = writeln!(
         s,
@@ -76,6 +87,15 @@ pub fn render(r: &MeshResult, opts: SummaryOptions) -> String {
         u.length.fmt(bb[1][2] - bb[0][2]),
         u.length.name
     );
+    if let Some(d) = &i.datum {
+        let _ = writeln!(
+            s,
+            "  levels are elevations in {}: the mesh's origin is at {} {}",
+            d.name.as_deref().unwrap_or("the project datum"),
+            u.length.fmt(d.mesh_origin_elevation),
+            u.length.name
+        );
+    }
     // A sweep that comes out the same in every case (the cases differ only in the swept
     // level) is shown once, after the cases.
     let shared = shared_sweep(r);
@@ -163,7 +183,7 @@ fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, sweep: bool, 
             format!(
                 "{} level {} {}, {} {}{gas}",
                 l.name,
-                u.length.fmt(l.level),
+                u.elevation(l.level),
                 u.length.name,
                 dens.join("/"),
                 u.density.name
@@ -288,8 +308,8 @@ fn sweep_block(
         s,
         "    sweep of {liquid}: {} levels from {} to {} {lu}, {}",
         sw.len(),
-        u.length.fmt(sw.first().map_or(0.0, |x| x.level)),
-        u.length.fmt(sw.last().map_or(0.0, |x| x.level)),
+        u.elevation(sw.first().map_or(0.0, |x| x.level)),
+        u.elevation(sw.last().map_or(0.0, |x| x.level)),
         if every_case {
             "the same in every case"
         } else {
@@ -327,7 +347,7 @@ fn sweep_block(
             let mag = (f[0] * f[0] + f[1] * f[1] + f[2] * f[2]).sqrt();
             let mut row = format!(
                 "      {:>9} {:>10} {:>10} {:>10} {:>10} {:>10}",
-                u.length.fmt(x.level),
+                u.elevation(x.level),
                 u.force.fmt(f[0]),
                 u.force.fmt(f[1]),
                 u.force.fmt(f[2]),
@@ -365,7 +385,7 @@ fn sweep_block(
             truncate(what, 24),
             value,
             unit,
-            u.length.fmt(e.level)
+            u.elevation(e.level)
         );
     };
     line("Fx", &g.force_x, u.force.fmt(g.force_x.value), fu);

@@ -58,6 +58,9 @@ pub struct Units {
     pub pressure: Unit,
     pub density: Unit,
     pub acceleration: Unit,
+    /// Added to the mesh's own elevations to show them in the project datum, m (0 when the
+    /// sidecar gives no datum).
+    pub elevation_origin_m: f64,
 }
 
 impl Units {
@@ -80,6 +83,7 @@ impl Units {
                 pressure: u("kPa", 1e-3, 2),
                 density: u("kg/m³", 1.0, 0),
                 acceleration: u("m/s²", 1.0, 3),
+                elevation_origin_m: 0.0,
             },
             UnitSystem::Us => Units {
                 system,
@@ -92,8 +96,24 @@ impl Units {
                 pressure: u("psi", 0.0254 * 0.0254 / LBF_N, 3),
                 density: u("lb/ft³", FT_M * FT_M * FT_M / LB_KG, 2),
                 acceleration: u("ft/s²", 1.0 / FT_M, 3),
+                elevation_origin_m: 0.0,
             },
         }
+    }
+
+    /// These units, with elevations shown in a project datum whose mesh origin is at
+    /// `origin_m` (m).
+    pub fn with_datum(self, origin_m: f64) -> Units {
+        Units {
+            elevation_origin_m: origin_m,
+            ..self
+        }
+    }
+
+    /// An elevation of the mesh's own frame (m, along up) as shown: in the project datum
+    /// when there is one, in lengths, without the unit name.
+    pub fn elevation(&self, z_m: f64) -> String {
+        self.length.fmt(z_m + self.elevation_origin_m)
     }
 
     /// A point `(x, y, z)` in lengths, without the unit name.

@@ -210,7 +210,7 @@ pub(super) fn problem(key: KeyPath, kind: SidecarErrorKind) -> Problem {
 }
 
 /// `"a", "b"`.
-pub(super) fn quoted_list<'a>(names: impl Iterator<Item = &'a str>) -> String {
+pub fn quoted_list<'a>(names: impl Iterator<Item = &'a str>) -> String {
     names
         .map(|n| format!("\"{n}\""))
         .collect::<Vec<_>>()

@@ -32,11 +32,11 @@ mod types;
 mod validate;
 mod water;
 
-pub use error::{SidecarError, SidecarErrorKind};
+pub use error::{SidecarError, SidecarErrorKind, quoted_list};
 pub use flotation::{FactorPreset, factor_presets};
 pub use types::{
-    AUTO_FIELD_EXPORT_FACETS, Case, FieldExports, Flotation, LengthUnit, LiquidChoice, NamedAxis,
-    NamedLiquid, PartRule, PartRules, Sidecar, Sweep, UnassignedPart,
+    AUTO_FIELD_EXPORT_FACETS, Case, Datum, FieldExports, Flotation, LengthUnit, LiquidChoice,
+    NamedAxis, NamedLiquid, PartRule, PartRules, Sidecar, Sweep, UnassignedPart,
 };
 pub use water::{LiquidPreset, liquid_presets, water_density_cipm};
 

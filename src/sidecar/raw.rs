@@ -48,6 +48,20 @@ pub(super) struct RawSidecar {
     pub flotation: Option<RawFlotation>,
     #[serde(default, deserialize_with = "keyword")]
     pub field_exports: Option<FieldExports>,
+    #[serde(default, deserialize_with = "keyword")]
+    pub sidecar_units: Option<LengthUnit>,
+    #[serde(default, deserialize_with = "some")]
+    pub datum: Option<RawDatum>,
+}
+
+/// The `datum` object: where the mesh's origin sits in the project's elevations.
+#[derive(Debug, Deserialize)]
+#[serde(remote = "Self", deny_unknown_fields)]
+pub(super) struct RawDatum {
+    #[serde(default, deserialize_with = "some")]
+    pub name: Option<String>,
+    #[serde(default, deserialize_with = "some")]
+    pub mesh_origin_elevation: Option<f64>,
 }
 
 /// A liquid as written under `liquid`, `liquids.<name>` or `cases[].liquids.<name>`.
@@ -168,6 +182,7 @@ object_only!(
     RawCase: "a case object such as {\"name\": \"flood\", \"level\": 9.0}",
     RawSweep: "a sweep object such as {\"from\": 2.0, \"to\": 8.0, \"step\": 0.25}",
     RawFlotation: "a flotation object such as {\"resisting\": {\"weight\": 1.0e6}, \"required_factor\": 1.3}",
+    RawDatum: "a datum object such as {\"name\": \"site datum\", \"mesh_origin_elevation\": 102.5}",
 );
 
 /// A JSON object whose keys are names chosen by the user, in the order of the file.

@@ -75,6 +75,72 @@ pub struct Sidecar {
     pub flotation: Option<Flotation>,
     /// Whether the per-facet field exports (`.vtp`, `.csv`) are written; default `auto`.
     pub field_exports: FieldExports,
+    /// The unit the sidecar's own lengths were written in (levels, `down_to`, sweeps,
+    /// points); default metres. Every length above is already converted to metres.
+    pub sidecar_units: LengthUnit,
+    /// Where the mesh's origin sits in the project's elevations, when stated. The levels
+    /// above are already converted to the mesh's own elevations.
+    pub datum: Option<Datum>,
+}
+
+/// The sidecar key `datum`: the project elevation of the mesh's origin.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Datum {
+    /// The datum's name as the user gave it (for reports).
+    pub name: Option<String>,
+    /// Elevation of the mesh's origin in the project datum, m.
+    pub mesh_origin_elevation_m: f64,
+}
+
+impl Sidecar {
+    /// An elevation in the mesh's own frame (m, along `up`) as the user states it: in the
+    /// project datum when there is one, in [`Sidecar::sidecar_units`].
+    pub fn stated_elevation(&self, z_m: f64) -> f64 {
+        let origin = self
+            .datum
+            .as_ref()
+            .map_or(0.0, |d| d.mesh_origin_elevation_m);
+        (z_m + origin) / self.sidecar_units.metres()
+    }
+
+    /// [`Sidecar::stated_elevation`] with three decimals.
+    pub fn shown_elevation(&self, z_m: f64) -> String {
+        crate::report::units::num(self.stated_elevation(z_m), 3)
+    }
+
+    /// Every length of the sidecar moved from how it was written (in
+    /// [`Sidecar::sidecar_units`], elevations in the project datum) into metres in the
+    /// mesh's own frame: levels, `down_to` and sweep ends less the origin's elevation, and
+    /// everything scaled. With neither key stated nothing changes, bit for bit.
+    pub(super) fn into_mesh_frame(mut self) -> Sidecar {
+        let scale = self.sidecar_units.metres();
+        let origin = self
+            .datum
+            .as_ref()
+            .map_or(0.0, |d| d.mesh_origin_elevation_m);
+        if scale == 1.0 && origin == 0.0 {
+            return self;
+        }
+        let z = |v: f64| v * scale - origin;
+        for case in &mut self.cases {
+            for l in &mut case.liquids {
+                l.level_m = z(l.level_m);
+                for layer in &mut l.layers {
+                    layer.down_to_m = layer.down_to_m.map(z);
+                }
+            }
+        }
+        if let Some(s) = &mut self.sweep {
+            s.from_m = z(s.from_m);
+            s.to_m = z(s.to_m);
+            s.step_m *= scale;
+        }
+        self.moment_about_m = self.moment_about_m.map(|v| v * scale);
+        for a in &mut self.axes {
+            a.point_m = a.point_m.map(|v| v * scale);
+        }
+        self
+    }
 }
 
 /// Most facets for which `"field_exports": "auto"` writes the per-facet exports. They are

@@ -295,6 +295,27 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
         }
     };
 
+    let sidecar_units = raw.sidecar_units.unwrap_or(super::LengthUnit::M);
+    let datum = match &raw.datum {
+        None => None,
+        Some(d) => {
+            let key = root.key("datum");
+            let z = d.mesh_origin_elevation.ok_or_else(|| {
+                problem(
+                    key.key("mesh_origin_elevation"),
+                    K::Missing {
+                        what: "mesh_origin_elevation",
+                        hint: "give the project elevation of the mesh's origin, in the sidecar's units, e.g. \"datum\": {\"mesh_origin_elevation\": 102.5}".to_owned(),
+                    },
+                )
+            })?;
+            Some(super::Datum {
+                name: d.name.clone(),
+                mesh_origin_elevation_m: z * sidecar_units.metres(),
+            })
+        }
+    };
+
     Ok(Sidecar {
         units,
         up,
@@ -308,7 +329,10 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
         sweep,
         flotation,
         field_exports: raw.field_exports.unwrap_or_default(),
-    })
+        sidecar_units,
+        datum,
+    }
+    .into_mesh_frame())
 }
 
 /// `v` scaled to length 1, or `None` when it has no length. Divides by the largest

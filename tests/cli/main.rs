@@ -9,6 +9,7 @@ mod calc;
 mod determinism;
 mod errors;
 mod presentation;
+mod traps;
 
 use std::fs;
 use std::path::{Path, PathBuf};

@@ -119,6 +119,10 @@ const KEYS: &[(Base, &str, Kind)] = &[
     (Base::Shorthand, "flotation.required_factor", Kind::Number),
     (Base::Shorthand, "flotation.factor_preset", Kind::Text),
     (Base::Shorthand, "field_exports", Kind::Text),
+    (Base::Shorthand, "sidecar_units", Kind::Text),
+    (Base::Shorthand, "datum", Kind::Object),
+    (Base::Shorthand, "datum.name", Kind::Text),
+    (Base::Shorthand, "datum.mesh_origin_elevation", Kind::Number),
     (Base::Named, "liquids", Kind::Named),
     (Base::Named, "liquids.water", Kind::Object),
     (Base::Named, "liquids.water.level", Kind::Number),
@@ -152,7 +156,9 @@ fn shorthand() -> Value {
         ],
         "sweep": {"liquid": "liquid", "from": -2, "to": 0, "step": 0.5},
         "flotation": {"resisting": {"weight": 1000}, "required_factor": 1.3},
-        "field_exports": "auto"
+        "field_exports": "auto",
+        "sidecar_units": "m",
+        "datum": {"name": "site datum", "mesh_origin_elevation": 0.0}
     })
 }
 
