@@ -192,10 +192,200 @@ pub(super) fn json_message(error: &serde_json::Error) -> String {
     let full = error.to_string();
     let position = format!(" at line {} column {}", error.line(), error.column());
     let message = full.strip_suffix(&position).unwrap_or(&full);
-    if message.starts_with("invalid ") {
-        message.replace('`', "")
-    } else {
-        message.replace('`', "\"")
+    plain(&message.replace('`', "\""))
+}
+
+/// The JSON reader's message in plain words: what was expected and what was found, with
+/// the reader's type names (`f64`, `sequence`, `map`, `EOF`) replaced by what a user
+/// wrote or should write. A message it does not know is kept as it is.
+pub(super) fn plain(message: &str) -> String {
+    for prefix in ["invalid type: ", "invalid value: "] {
+        if let Some(rest) = message.strip_prefix(prefix)
+            && let Some((found, expected)) = rest.split_once(", expected ")
+        {
+            return format!(
+                "expected {}, found {}",
+                expected_words(expected),
+                found_words(found)
+            );
+        }
+    }
+    if let Some(rest) = message.strip_prefix("invalid length ")
+        && let Some((n, expected)) = rest.split_once(", expected ")
+    {
+        return format!("expected {}, found {n} entries", expected_words(expected));
+    }
+    if let Some(rest) = message.strip_prefix("unknown field ") {
+        return match rest.split_once(", expected one of ") {
+            Some((key, keys)) => format!("unknown key {key}; allowed here: {keys}"),
+            None => match rest.split_once(", expected ") {
+                Some((key, keys)) => format!("unknown key {key}; allowed here: {keys}"),
+                None => format!(
+                    "unknown key {}",
+                    rest.trim_end_matches(", there are no fields")
+                ),
+            },
+        };
+    }
+    if let Some(rest) = message.strip_prefix("unknown variant ") {
+        return match rest.split_once(", expected ") {
+            Some((word, words)) => format!("unknown keyword {word}; expected {words}"),
+            None => format!("unknown keyword {rest}"),
+        };
+    }
+    if let Some(key) = message.strip_prefix("missing field ") {
+        return format!("the key {key} is missing");
+    }
+    if let Some(key) = message.strip_prefix("duplicate field ") {
+        return format!("duplicate key {key}: each key may appear once");
+    }
+    let syntax = [
+        (
+            "EOF while parsing",
+            "the text ends before the JSON is complete (an unclosed {, [ or \")",
+        ),
+        (
+            "expected value",
+            "expected a value here (a number, text in quotes, true, false, null, an object {...} or a list [...])",
+        ),
+        (
+            "expected \",\" or \"}\"",
+            "expected , or } here (is a comma missing between two keys?)",
+        ),
+        (
+            "expected \",\" or \"]\"",
+            "expected , or ] here (is a comma missing between two entries?)",
+        ),
+        ("expected \":\"", "expected : after the key"),
+        ("key must be a string", "keys must be text in quotes"),
+        (
+            "trailing comma",
+            "a comma before a closing } or ] (JSON allows none there)",
+        ),
+        (
+            "trailing characters",
+            "more text after the end of the JSON document",
+        ),
+        ("invalid number", "not a valid number"),
+        ("number out of range", "a number out of range (too large for a 64-bit float)"),
+        (
+            "invalid escape",
+            "an invalid backslash escape in quotes (write \\\\ for one backslash, e.g. in a Windows path)",
+        ),
+        (
+            "control character",
+            "a raw control character (a tab or a line break) inside text in quotes",
+        ),
+        ("recursion limit exceeded", "nested too deeply"),
+        (
+            "invalid unicode code point",
+            "an invalid \\u escape in quotes",
+        ),
+        ("lone leading surrogate", "an invalid \\u escape in quotes"),
+    ];
+    for (reader, words) in syntax {
+        if message.starts_with(reader) {
+            return words.to_owned();
+        }
+    }
+    message.to_owned()
+}
+
+/// What the reader expected, in words.
+fn expected_words(expected: &str) -> String {
+    match expected {
+        "f64" | "f32" => "a number".to_owned(),
+        "u8" | "u16" | "u32" | "u64" | "usize" | "i32" | "i64" => "a whole number".to_owned(),
+        "a string" => "text in quotes".to_owned(),
+        "a boolean" => "true or false".to_owned(),
+        "a sequence" => "a list [...]".to_owned(),
+        "a map" => "an object {...}".to_owned(),
+        other => match other.strip_prefix("a string, ") {
+            Some(rest) => rest.to_owned(),
+            None => other.to_owned(),
+        },
+    }
+}
+
+/// What the reader found, in words (`string "5"` → `the text "5"`).
+fn found_words(found: &str) -> String {
+    let words = [
+        ("string ", "the text "),
+        ("integer ", "the number "),
+        ("floating point ", "the number "),
+        ("boolean ", ""),
+        ("character ", "the text "),
+    ];
+    for (reader, ours) in words {
+        if let Some(value) = found.strip_prefix(reader) {
+            return format!("{ours}{value}");
+        }
+    }
+    match found {
+        "sequence" => "a list [...]".to_owned(),
+        "map" => "an object {...}".to_owned(),
+        "null" | "unit value" => "null".to_owned(),
+        other => other.to_owned(),
+    }
+}
+
+#[cfg(test)]
+mod plain_tests {
+    use super::plain;
+
+    #[test]
+    fn the_readers_words_become_plain_ones() {
+        for (reader, ours) in [
+            (
+                r#"invalid type: string "5", expected f64"#,
+                r#"expected a number, found the text "5""#,
+            ),
+            (
+                "invalid type: boolean true, expected f64",
+                "expected a number, found true",
+            ),
+            (
+                "invalid type: sequence, expected f64",
+                "expected a number, found a list [...]",
+            ),
+            (
+                "invalid type: map, expected a string",
+                "expected text in quotes, found an object {...}",
+            ),
+            (
+                r#"invalid type: integer 5, expected a string, one of "+x", "-x""#,
+                r#"expected one of "+x", "-x", found the number 5"#,
+            ),
+            (
+                "invalid length 2, expected an array of 3 numbers [x, y, z]",
+                "expected an array of 3 numbers [x, y, z], found 2 entries",
+            ),
+            (
+                r#"unknown field "levle", expected one of "level", "density""#,
+                r#"unknown key "levle"; allowed here: "level", "density""#,
+            ),
+            (
+                r#"duplicate field "units""#,
+                r#"duplicate key "units": each key may appear once"#,
+            ),
+            (
+                "EOF while parsing an object",
+                "the text ends before the JSON is complete (an unclosed {, [ or \")",
+            ),
+            (
+                "trailing comma",
+                "a comma before a closing } or ] (JSON allows none there)",
+            ),
+            ("something new", "something new"),
+        ] {
+            assert_eq!(plain(reader), ours);
+        }
+        // No reader jargon survives in the words for types.
+        for jargon in ["f64", "sequence", "map", "EOF", "integer"] {
+            assert!(
+                !plain(&format!("invalid type: map, expected f64 {jargon}")).contains("found map")
+            );
+        }
     }
 }
 

@@ -448,10 +448,7 @@ mod tests {
             let SidecarErrorKind::Json(message) = &*e.kind else {
                 panic!("not a type error: {e}");
             };
-            assert!(
-                message.starts_with("invalid type") || message.starts_with("invalid length"),
-                "{e}"
-            );
+            assert!(message.starts_with("expected "), "{e}");
             assert_eq!(e.line, Some(1), "{e}");
         }
     }
@@ -465,7 +462,9 @@ mod tests {
         assert_eq!(e.line, Some(4));
         let message = e.to_string();
         assert!(
-            message.contains(r#"unknown field "unit", expected one of "units", "up", "gravity""#),
+            message.contains(
+                r#"unknown key "unit"; allowed here: "units", "up", "gravity""#
+            ),
             "{message}"
         );
         assert!(message.contains(r#""flotation""#), "{message}");
@@ -482,7 +481,7 @@ mod tests {
         assert_eq!(
             e.to_string(),
             format!(
-                "sidecar gate.json, line 4, column {column}, at liquid.denisty: unknown field \"denisty\", expected one of \"level\", \"density\", \"layers\", \"surface_pressure\", \"preset\""
+                "sidecar gate.json, line 4, column {column}, at liquid.denisty: unknown key \"denisty\"; allowed here: \"level\", \"density\", \"layers\", \"surface_pressure\", \"preset\""
             )
         );
         for (text, key) in [
@@ -510,8 +509,8 @@ mod tests {
         ] {
             let e = err(&text);
             assert_eq!(e.key, key, "{e}");
-            assert!(e.to_string().contains("unknown field"), "{e}");
-            assert!(e.to_string().contains("expected"), "{e}");
+            assert!(e.to_string().contains("unknown key"), "{e}");
+            assert!(e.to_string().contains("allowed here:"), "{e}");
         }
     }
 
@@ -526,9 +525,17 @@ mod tests {
             "{e}"
         );
         let e = err("");
-        assert!(e.to_string().contains("EOF"), "{e}");
+        assert!(
+            e.to_string()
+                .contains("the text ends before the JSON is complete"),
+            "{e}"
+        );
         let e = err(&format!("{} {{}}", with(r#""up": "+z""#)));
-        assert!(e.to_string().contains("trailing characters"), "{e}");
+        assert!(
+            e.to_string()
+                .contains("more text after the end of the JSON document"),
+            "{e}"
+        );
     }
 
     #[test]
@@ -540,10 +547,10 @@ mod tests {
     #[test]
     fn duplicate_keys_are_refused() {
         let e = err(r#"{"units": "m", "units": "mm", "liquid": {"level": 1, "density": 1}}"#);
-        assert!(e.to_string().contains(r#"duplicate field "units""#), "{e}");
+        assert!(e.to_string().contains(r#"duplicate key "units""#), "{e}");
         let e = err(&liquid(r#"{"level": 1, "level": 2, "density": 1}"#));
         assert_eq!(e.key, "liquid");
-        assert!(e.to_string().contains(r#"duplicate field "level""#), "{e}");
+        assert!(e.to_string().contains(r#"duplicate key "level""#), "{e}");
         for (text, name) in [
             (r#"{"units": "m", "liquids": {"a": {"level": 1, "density": 1}, "a": {"level": 1, "density": 1}}}"#.to_owned(), "a"),
             (with(r#""parts": {"p": {}, "p": {}}"#), "p"),
