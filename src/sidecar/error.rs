@@ -267,7 +267,10 @@ pub(super) fn plain(message: &str) -> String {
             "more text after the end of the JSON document",
         ),
         ("invalid number", "not a valid number"),
-        ("number out of range", "a number out of range (too large for a 64-bit float)"),
+        (
+            "number out of range",
+            "a number out of range (too large for a 64-bit float)",
+        ),
         (
             "invalid escape",
             "an invalid backslash escape in quotes (write \\\\ for one backslash, e.g. in a Windows path)",
@@ -329,8 +332,26 @@ fn found_words(found: &str) -> String {
     }
 }
 
+/// A rule broken at a key path, before the file name and line are attached.
+pub(super) struct Problem {
+    pub(super) key: KeyPath,
+    pub(super) kind: SidecarErrorKind,
+}
+
+pub(super) fn problem(key: KeyPath, kind: SidecarErrorKind) -> Problem {
+    Problem { key, kind }
+}
+
+/// `"a", "b"`.
+pub fn quoted_list<'a>(names: impl Iterator<Item = &'a str>) -> String {
+    names
+        .map(|n| format!("\"{n}\""))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
 #[cfg(test)]
-mod plain_tests {
+mod tests {
     use super::plain;
 
     #[test]
@@ -387,22 +408,4 @@ mod plain_tests {
             );
         }
     }
-}
-
-/// A rule broken at a key path, before the file name and line are attached.
-pub(super) struct Problem {
-    pub(super) key: KeyPath,
-    pub(super) kind: SidecarErrorKind,
-}
-
-pub(super) fn problem(key: KeyPath, kind: SidecarErrorKind) -> Problem {
-    Problem { key, kind }
-}
-
-/// `"a", "b"`.
-pub fn quoted_list<'a>(names: impl Iterator<Item = &'a str>) -> String {
-    names
-        .map(|n| format!("\"{n}\""))
-        .collect::<Vec<_>>()
-        .join(", ")
 }

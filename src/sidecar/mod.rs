@@ -462,9 +462,7 @@ mod tests {
         assert_eq!(e.line, Some(4));
         let message = e.to_string();
         assert!(
-            message.contains(
-                r#"unknown key "unit"; allowed here: "units", "up", "gravity""#
-            ),
+            message.contains(r#"unknown key "unit"; allowed here: "units", "up", "gravity""#),
             "{message}"
         );
         assert!(message.contains(r#""flotation""#), "{message}");
