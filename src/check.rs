@@ -25,9 +25,27 @@ pub struct Health {
     pub closed: bool,
     pub parts: Vec<PartHealth>,
     pub warnings: Vec<String>,
+    /// Every open and non-manifold edge: where the holes and seams are.
+    pub edges: Vec<FaultyEdge>,
     /// Whether `calc` can use the mesh as it is (no repair, no defect).
     #[serde(skip)]
     pub usable_as_is: bool,
+    /// Metres per mesh unit (1 when unknown), for showing edge positions.
+    #[serde(skip)]
+    pub scale: f64,
+}
+
+/// An open or non-manifold edge, with its end points in the mesh's own axes and units (as
+/// in the file, so it lies exactly on the CAD model).
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct FaultyEdge {
+    /// `"open"` (one facet uses it: a hole's rim or the border of a surface) or
+    /// `"non-manifold"` (more than two facets use it).
+    pub kind: &'static str,
+    /// The part of its first facet.
+    pub part: String,
+    pub from: [f64; 3],
+    pub to: [f64; 3],
 }
 
 /// Findings for one part.
@@ -177,6 +195,28 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
             topo.degenerate_facets
         ));
     }
+    let edges: Vec<FaultyEdge> = topo
+        .edge_faults
+        .iter()
+        .map(|e| {
+            let [a, b] = e.ends(tris);
+            let part = mesh
+                .parts
+                .iter()
+                .find(|p| p.facets.contains(&(e.facet as usize)))
+                .map_or_else(String::new, |p| p.name.clone());
+            FaultyEdge {
+                kind: if e.kind == Defect::OpenEdge {
+                    "open"
+                } else {
+                    "non-manifold"
+                },
+                part,
+                from: [a.x, a.y, a.z],
+                to: [b.x, b.y, b.z],
+            }
+        })
+        .collect();
     let usable_as_is = topo.non_manifold_edges == 0
         && topo.inconsistent_edges == 0
         && inverted == 0
@@ -189,8 +229,44 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
         closed,
         parts,
         warnings,
+        edges,
         usable_as_is,
+        scale: s,
     }
+}
+
+/// The open and non-manifold edges as an OBJ file of line elements, in the mesh's own
+/// axes and units, so that it opens over the mesh in CAD or any viewer: one object per
+/// kind (`open_edges`, `non_manifold_edges`), each edge a line `l a b` between its two
+/// end points. `None` when there are none.
+pub fn edges_obj(h: &Health) -> Option<String> {
+    use std::fmt::Write;
+    if h.edges.is_empty() {
+        return None;
+    }
+    let mut s = format!(
+        "# {}: open and non-manifold edges found by wetload check (mesh axes and units)\n",
+        h.mesh
+    );
+    let mut n = 0;
+    for (kind, object) in [
+        ("open", "open_edges"),
+        ("non-manifold", "non_manifold_edges"),
+    ] {
+        let edges: Vec<&FaultyEdge> = h.edges.iter().filter(|e| e.kind == kind).collect();
+        if edges.is_empty() {
+            continue;
+        }
+        let _ = writeln!(s, "o {object}");
+        for e in edges {
+            for p in [e.from, e.to] {
+                let _ = writeln!(s, "v {} {} {}", p[0], p[1], p[2]);
+            }
+            let _ = writeln!(s, "l {} {}", n + 1, n + 2);
+            n += 2;
+        }
+    }
+    Some(s)
 }
 
 /// Names in quotes, joined with commas and a final "and".
@@ -262,11 +338,48 @@ pub fn render(h: &Health) -> String {
             si.area.fmt(p.surface_area),
         );
     }
+    if !h.edges.is_empty() {
+        let unit = if h.length_unit == "m" {
+            "m"
+        } else {
+            "file units"
+        };
+        let si = Units::of(UnitSystem::Si);
+        let at = |p: [f64; 3]| {
+            format!(
+                "({}, {}, {})",
+                si.length.fmt(p[0] * h.scale),
+                si.length.fmt(p[1] * h.scale),
+                si.length.fmt(p[2] * h.scale)
+            )
+        };
+        let _ = writeln!(s, "  where the holes and seams are ({unit}, mesh axes):");
+        for e in h.edges.iter().take(SHOWN_EDGES) {
+            let _ = writeln!(
+                s,
+                "    {} edge of part {}: {} to {}",
+                e.kind,
+                e.part,
+                at(e.from),
+                at(e.to)
+            );
+        }
+        if h.edges.len() > SHOWN_EDGES {
+            let _ = writeln!(
+                s,
+                "    … and {} more; all of them are in the edges file",
+                h.edges.len() - SHOWN_EDGES
+            );
+        }
+    }
     for w in &h.warnings {
         let _ = writeln!(s, "  warning: {w}");
     }
     s
 }
+
+/// Open and non-manifold edges listed on the terminal; the rest are in the edges file.
+pub const SHOWN_EDGES: usize = 8;
 
 #[cfg(test)]
 mod tests {
@@ -393,6 +506,47 @@ mod tests {
         );
         let text = render(&h);
         assert!(text.contains("size 2.000 × 1.000 × 1.000 file units, surface area 10.000 file units², volume 2.000 file units³"), "{text}");
+    }
+
+    #[test]
+    fn the_rim_of_a_hole_is_listed_and_written_as_obj_lines() {
+        // A unit cube in millimetres (1000 mm) with one facet taken out: a triangular hole
+        // whose three edges are open, and no other edge is.
+        let mut tris = shapes::box_solid([0.0; 3], [1000.0; 3], 1);
+        let gone = tris.pop().expect("a facet");
+        let h = check("holed.stl", &mesh(vec![("shell", tris)], false), Some(1e-3));
+        assert_eq!(h.edges.len(), 3);
+        let mut ends: Vec<[f64; 3]> = h.edges.iter().flat_map(|e| [e.from, e.to]).collect();
+        ends.sort_by(|a, b| a.partial_cmp(b).expect("finite"));
+        ends.dedup();
+        let mut corners = gone.to_vec();
+        corners.sort_by(|a, b| a.partial_cmp(b).expect("finite"));
+        assert_eq!(
+            ends, corners,
+            "the hole's rim is the removed facet's outline"
+        );
+        assert!(
+            h.edges
+                .iter()
+                .all(|e| e.kind == "open" && e.part == "shell")
+        );
+        let obj = edges_obj(&h).expect("edges to write");
+        assert_eq!(obj.lines().filter(|l| l.starts_with("v ")).count(), 6);
+        assert_eq!(obj.lines().filter(|l| l.starts_with("l ")).count(), 3);
+        assert!(obj.contains("o open_edges"));
+        // Coordinates in the file's units (mm), so the file lies on the CAD model.
+        assert!(obj.contains("1000"));
+        // The terminal shows them in metres.
+        let text = render(&h);
+        assert!(
+            text.contains("where the holes and seams are (m, mesh axes)"),
+            "{text}"
+        );
+        assert!(text.contains("open edge of part shell: ("), "{text}");
+        assert!(text.contains("1.000"), "{text}");
+        // A clean cube has none, and no file.
+        let h = check("c.stl", &mesh(vec![("c", cube(0.0))], false), None);
+        assert!(h.edges.is_empty() && edges_obj(&h).is_none());
     }
 
     #[test]

@@ -61,9 +61,25 @@ fn check_meshes(args: &CheckArgs) -> ExitCode {
             .unwrap_or_default();
         let h = check::check(&name, &mesh, scale);
         ok &= h.usable_as_is;
+        // The holes as a file that opens over the mesh in CAD or a viewer; an old one
+        // goes when the mesh has none.
+        let edges_path = results::Layout::of_mesh(path).edges(path);
+        let written = match check::edges_obj(&h) {
+            Some(obj) => results::write_atomic(&edges_path, obj.as_bytes()).map(|()| true),
+            None => results::remove_if_present(&edges_path).map(|()| false),
+        };
         if !args.json {
             // A closed pipe is not an error worth a panic.
-            let _ = std::io::stdout().write_all(check::render(&h).as_bytes());
+            let mut text = check::render(&h);
+            match &written {
+                Ok(true) => text.push_str(&format!(
+                    "  the edges are in {} (OBJ lines, mesh axes and units)\n",
+                    edges_path.display()
+                )),
+                Ok(false) => {}
+                Err(e) => text.push_str(&format!("  note: {e}\n")),
+            }
+            let _ = std::io::stdout().write_all(text.as_bytes());
         }
         reports.push(h);
     }

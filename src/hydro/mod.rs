@@ -32,7 +32,9 @@ pub use integrate::{CHUNK, FacetLoads, PartAccum, PartInput, facet_loads, integr
 pub use loads::{LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of};
 pub use pressure::{Layer, Liquid, LiquidError, Profile};
 pub use sweep::{SweepPart, SweptLiquid, sweep};
-pub use topology::{Defect, NO_SHELL, ShellInfo, Topology, WELD_TOLERANCE_REL, bounding_box};
+pub use topology::{
+    Defect, EdgeFault, NO_SHELL, ShellInfo, Topology, WELD_TOLERANCE_REL, bounding_box,
+};
 
 use nalgebra::Vector3;
 

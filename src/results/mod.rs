@@ -9,6 +9,7 @@
 //!     ├── <stem>[.<case>].csv     load per facet (`report::csv`)
 //!     ├── <stem>[.<case>].sweep.svg  loads against level, with a sweep (`report::svg`)
 //!     ├── <stem>.history.svg      headline loads at every computation in the change log
+//!     ├── <stem>.edges.obj        open and non-manifold edges found by `wetload check`
 //!     ├── report.html             the folder's page (`report::html`)
 //!     ├── changes.jsonl           the change log, one line per recomputation ([`changelog`])
 //!     ├── changes.jsonl.torn      torn last lines of interrupted runs, moved aside
@@ -93,6 +94,12 @@ impl Layout {
             facet_loads: self.dir.join(format!("{base}.csv")),
             sweep_chart: self.dir.join(format!("{base}.sweep.svg")),
         }
+    }
+
+    /// `<stem>.edges.obj`: the open and non-manifold edges `wetload check` found.
+    pub fn edges(&self, mesh: &Path) -> PathBuf {
+        self.dir
+            .join(format!("{}.edges.obj", file_part(&stem(mesh))))
     }
 
     /// `<stem>.history.svg` for a mesh whose file stem is `stem`.

@@ -103,3 +103,43 @@ fn a_moment_that_grows_in_magnitude_is_marked_as_growth_with_its_sign() {
         "{axis}"
     );
 }
+
+#[test]
+fn check_shows_where_the_holes_are_and_writes_them_for_a_viewer() {
+    let f = Folder::new();
+    // A 2 m cube in millimetres with one facet missing, and a sidecar giving the unit.
+    let mut tris = shapes::box_solid([0.0; 3], [2000.0; 3], 2);
+    let gone = tris.remove(5);
+    f.write("tank.stl", encode::stl_ascii(&[("tank", &tris[..])]));
+    f.write(
+        "tank.json",
+        r#"{"units": "mm", "liquid": {"level": 1.0, "density": 1000}}"#,
+    );
+    let run = Run::from(f.wetload().args(["check", "tank.stl"]).output());
+    run.expect_code(0);
+    let out = &run.stdout;
+    assert!(
+        out.contains("where the holes and seams are (m, mesh axes)"),
+        "{out}"
+    );
+    assert_eq!(out.matches("open edge of part tank").count(), 3, "{out}");
+    // The missing facet's corners, in metres, are where the rim runs.
+    for corner in gone {
+        let shown = format!(
+            "({:.3}, {:.3}, {:.3})",
+            corner[0] / 1000.0,
+            corner[1] / 1000.0,
+            corner[2] / 1000.0
+        );
+        assert!(out.contains(&shown), "{shown} missing in {out}");
+    }
+    let obj = fs::read_to_string(f.path("results").join("tank.edges.obj")).expect("edges file");
+    assert_eq!(obj.lines().filter(|l| l.starts_with("l ")).count(), 3);
+    // Mended: the file goes.
+    f.write(
+        "tank.stl",
+        encode::stl_ascii(&[("tank", &shapes::box_solid([0.0; 3], [2000.0; 3], 2)[..])]),
+    );
+    Run::from(f.wetload().args(["check", "tank.stl"]).output()).expect_code(0);
+    assert!(!f.path("results").join("tank.edges.obj").exists());
+}

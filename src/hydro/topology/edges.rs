@@ -210,6 +210,9 @@ pub(super) struct EdgeFindings {
     pub(super) bad: Blocks<u32>,
     /// Pairs of facets joined at a non-manifold edge.
     pub(super) joins: Blocks<(u32, u32)>,
+    /// Where each open and non-manifold edge is: its kind, its first facet and which of
+    /// that facet's edges it is (from corner `slot` to the next), in order of edge.
+    pub(super) places: Blocks<(Defect, u32, u8)>,
 }
 
 impl EdgeFindings {
@@ -220,6 +223,7 @@ impl EdgeFindings {
             [_] => {
                 self.open_edges += 1;
                 self.findings.push((Defect::OpenEdge, first));
+                self.places.push((Defect::OpenEdge, first, group[0].slot));
                 self.bad.push(first);
             }
             [a, b] => {
@@ -235,6 +239,8 @@ impl EdgeFindings {
             _ => {
                 self.non_manifold_edges += 1;
                 self.findings.push((Defect::NonManifoldEdge, first));
+                self.places
+                    .push((Defect::NonManifoldEdge, first, group[0].slot));
                 for e in group {
                     self.bad.push(e.facet);
                     self.joins.push((first, e.facet));
@@ -253,6 +259,7 @@ impl EdgeFindings {
             all.findings.0.extend(p.findings.0);
             all.bad.0.extend(p.bad.0);
             all.joins.0.extend(p.joins.0);
+            all.places.0.extend(p.places.0);
         }
         all
     }

@@ -88,6 +88,27 @@ pub struct Topology {
     /// Every finding with the facet it is charged to (an edge's lowest facet), so callers
     /// can count per part.
     pub defects: Vec<(Defect, u32)>,
+    /// Where the open and non-manifold edges are, in order of edge (none for a clean
+    /// closed mesh), so that a report can show the holes.
+    pub edge_faults: Vec<EdgeFault>,
+}
+
+/// An open or non-manifold edge: the facet it is charged to (its first) and which of that
+/// facet's edges it is, from corner `slot` to corner `(slot + 1) % 3`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct EdgeFault {
+    pub kind: Defect,
+    pub facet: u32,
+    pub slot: u8,
+}
+
+impl EdgeFault {
+    /// The edge's two end points, from the facets it was built on.
+    pub fn ends(&self, tris: &[Tri]) -> [Vec3; 2] {
+        let t = &tris[self.facet as usize];
+        let s = self.slot as usize % 3;
+        [t[s], t[(s + 1) % 3]]
+    }
 }
 
 /// A topological finding, charged to one facet.
@@ -167,7 +188,13 @@ impl Topology {
             findings: groups,
             bad,
             joins,
+            places,
         } = edges.findings;
+        let edge_faults: Vec<EdgeFault> = places
+            .into_vec()
+            .into_iter()
+            .map(|(kind, facet, slot)| EdgeFault { kind, facet, slot })
+            .collect();
         let adj = edges.neighbours;
         let mut bad_facet = vec![false; n]; // touches an open or non-manifold edge
         for &f in bad.iter() {
@@ -256,6 +283,7 @@ impl Topology {
             degenerate_facets,
             duplicate_facets,
             defects,
+            edge_faults,
         }
     }
 }
@@ -483,6 +511,24 @@ mod tests {
             proptest::prop_assert_eq!(t.open_edges, open);
             proptest::prop_assert_eq!(t.non_manifold_edges, non_manifold);
             proptest::prop_assert_eq!(t.inconsistent_edges, inconsistent);
+            // Every open and non-manifold edge is placed once, on a facet that has it.
+            proptest::prop_assert_eq!(t.edge_faults.len(), open + non_manifold);
+            let mut uses: std::collections::HashMap<(u32, u32), usize> = Default::default();
+            for f in point_ids.iter().filter(|[a, b, c]| a != b && b != c && a != c) {
+                for k in 0..3 {
+                    let (p, q) = (f[k], f[(k + 1) % 3]);
+                    *uses.entry((p.min(q), p.max(q))).or_default() += 1;
+                }
+            }
+            for e in &t.edge_faults {
+                let f = &point_ids[e.facet as usize];
+                let (p, q) = (f[e.slot as usize], f[(e.slot as usize + 1) % 3]);
+                let n = uses.get(&(p.min(q), p.max(q))).copied().unwrap_or(0);
+                match e.kind {
+                    Defect::OpenEdge => proptest::prop_assert_eq!(n, 1),
+                    _ => proptest::prop_assert!(n > 2),
+                }
+            }
             let mut sorted: Vec<[u32; 3]> = point_ids
                 .iter()
                 .filter(|[a, b, c]| a != b && b != c && a != c)
