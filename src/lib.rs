@@ -140,7 +140,7 @@ fn calc(args: &CalcArgs) -> ExitCode {
     let stdout = std::io::stdout();
     let mut out = stdout.lock();
     for mesh in &args.meshes {
-        match pipeline::calc_file(mesh) {
+        match pipeline::calc_file_in(mesh, args.units.system()) {
             Ok(r) => {
                 if !args.json {
                     let opts = SummaryOptions {

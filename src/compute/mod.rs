@@ -197,6 +197,7 @@ pub fn compute_model(
         [a[0].max(b[0]), a[1].max(b[1]), a[2].max(b[2])],
     ];
     let result = MeshResult {
+        project: None,
         schema: SCHEMA,
         mesh: mesh_name.to_owned(),
         inputs: Inputs {

@@ -22,6 +22,10 @@ use super::Governing;
 pub struct MeshResult {
     pub schema: u32,
     pub mesh: String,
+    /// The calculation sheet's header from the folder's `wetload-project.json`, when it
+    /// has one (filled in by the pipeline, which reads files; the computation does not).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub project: Option<crate::sidecar::Project>,
     pub inputs: Inputs,
     pub cases: Vec<CaseResult>,
     pub warnings: Vec<String>,

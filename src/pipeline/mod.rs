@@ -19,8 +19,9 @@ use thiserror::Error;
 use crate::compute::{self, ComputeError, MeshResult, Model};
 use crate::mesh::{self, BinaryStl, Mesh, MeshError};
 use crate::report;
+use crate::report::units::UnitSystem;
 use crate::results::{self, Layout, WriteError};
-use crate::sidecar::{self, Sidecar, SidecarError};
+use crate::sidecar::{self, Project, ProjectError, Sidecar, SidecarError};
 
 /// Why one mesh could not be computed. Every message names the file.
 #[derive(Debug, Error)]
@@ -45,6 +46,8 @@ pub enum RunError {
     },
     #[error(transparent)]
     Write(#[from] WriteError),
+    #[error(transparent)]
+    Project(#[from] ProjectError),
     #[error(
         "{}: the file is {}, more than the {} wetload reads{}",
         path.display(),
@@ -90,6 +93,23 @@ fn read_error(path: &Path, e: crate::limits::ReadError, sidecar: bool) -> RunErr
 /// The sidecar of a mesh: `<stem>.json` beside it.
 pub fn sidecar_path(mesh: &Path) -> PathBuf {
     mesh.with_extension("json")
+}
+
+/// The calculation sheet's header of the folder that holds `mesh`: its
+/// [`sidecar::PROJECT_FILE`], or `None` when there is none.
+pub fn read_project(mesh: &Path) -> Result<Option<Project>, RunError> {
+    let path = mesh.parent().map_or_else(
+        || PathBuf::from(sidecar::PROJECT_FILE),
+        |d| d.join(sidecar::PROJECT_FILE),
+    );
+    match read_file(&path, crate::limits::MAX_SIDECAR_BYTES, true) {
+        Ok(bytes) => {
+            let text = String::from_utf8_lossy(&bytes);
+            Ok(Some(sidecar::parse_project(&path, &text)?))
+        }
+        Err(RunError::Read { source, .. }) if source.kind() == io::ErrorKind::NotFound => Ok(None),
+        Err(e) => Err(e),
+    }
 }
 
 /// The inputs of one computation as read from disk.
@@ -206,9 +226,12 @@ pub struct Computed {
 /// no two copies of a large mesh are held at once.
 pub fn compute_parsed(mesh_path: &Path, inputs: Inputs) -> Result<Computed, RunError> {
     let sidecar = sidecar::parse_sidecar(&sidecar_path(mesh_path), &inputs.sidecar_text)?;
+    let project = read_project(mesh_path)?;
     let mesh = mesh::read_mesh_with(mesh_path, &inputs.mesh_bytes, &crate::limits::current())?;
     drop(inputs);
-    compute_mesh(mesh_path, mesh, sidecar)
+    let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
+    computed.result.project = project;
+    Ok(computed)
 }
 
 /// Computes a parsed mesh with its sidecar.
@@ -237,11 +260,18 @@ fn compute_mesh(mesh_path: &Path, mesh: Mesh, sidecar: Sidecar) -> Result<Comput
 /// checked against the size cap), the sidecar read and parsed, then the mesh read and
 /// parsed (a binary STL a block at a time) and computed.
 pub fn calc_file(mesh_path: &Path) -> Result<MeshResult, RunError> {
+    calc_file_in(mesh_path, UnitSystem::Si)
+}
+
+/// [`calc_file`], with the folder's page in `units`.
+pub fn calc_file_in(mesh_path: &Path, units: UnitSystem) -> Result<MeshResult, RunError> {
     let (file, len) = open_capped(mesh_path, crate::limits::current().max_file_bytes)?;
     let sidecar_text = read_sidecar_text(mesh_path)?;
     let sidecar = sidecar::parse_sidecar(&sidecar_path(mesh_path), &sidecar_text)?;
+    let project = read_project(mesh_path)?;
     let mesh = read_mesh_streamed(mesh_path, file, len)?;
-    let computed = compute_mesh(mesh_path, mesh, sidecar)?;
+    let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
+    computed.result.project = project;
     let layout = Layout::of_mesh(mesh_path);
     results::write_atomic(
         &layout.result(mesh_path),
@@ -253,7 +283,7 @@ pub fn calc_file(mesh_path: &Path) -> Result<MeshResult, RunError> {
         &computed.sidecar,
         &computed.result,
     )?;
-    outputs::write_folder_page(layout.dir(), false)?;
+    outputs::write_folder_page(layout.dir(), false, units)?;
     Ok(computed.result)
 }
 

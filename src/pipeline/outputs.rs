@@ -20,6 +20,7 @@ use serde_json::Value;
 
 use super::{RunError, sidecar_path};
 use crate::compute::{self, MeshResult, Model};
+use crate::report::units::{UnitSystem, Units};
 use crate::report::{csv, html, svg, vtk};
 use crate::results::{self, Layout, changelog};
 use crate::sidecar::Sidecar;
@@ -80,7 +81,11 @@ pub fn write_outputs(
 /// `live`: the page is being kept up to date by a running watcher and reloads itself.
 /// Result files that cannot be read or are not result documents are left out; lines of
 /// the change log that are not JSON are skipped.
-pub fn write_folder_page(results_dir: &Path, live: bool) -> Result<Vec<PathBuf>, RunError> {
+pub fn write_folder_page(
+    results_dir: &Path,
+    live: bool,
+    units: UnitSystem,
+) -> Result<Vec<PathBuf>, RunError> {
     let layout = Layout::new(results_dir.to_owned());
     let log = changelog::read_lines(results_dir);
     let mut meshes = read_results(results_dir);
@@ -122,7 +127,13 @@ pub fn write_folder_page(results_dir: &Path, live: bool) -> Result<Vec<PathBuf>,
     let generated = jiff::Zoned::now()
         .strftime("%Y-%m-%d %H:%M:%S %:z")
         .to_string();
+    // A header that cannot be read is reported by every computation; the page goes
+    // without it rather than not at all.
+    // (`read_project` looks beside the path it is given: the folder that holds results/.)
+    let project = super::read_project(results_dir).ok().flatten();
     let page = html::FolderPage {
+        units: Units::of(units),
+        project: project.as_ref(),
         folder: &folder.display().to_string(),
         generated: &generated,
         live,
@@ -238,7 +249,7 @@ mod tests {
             br#"{"schema": 1, "mesh": "a.stl", "cases": []}"#,
         );
         write(&results, "notes.json", br#"{"something": "else"}"#);
-        let written = write_folder_page(&results, true).expect("writes");
+        let written = write_folder_page(&results, true, UnitSystem::Si).expect("writes");
         let names: Vec<String> = written
             .iter()
             .map(|p| p.file_name().expect("name").to_string_lossy().into_owned())

@@ -99,9 +99,18 @@ pub fn render(r: &MeshResult, opts: SummaryOptions) -> String {
     // A sweep that comes out the same in every case (the cases differ only in the swept
     // level) is shown once, after the cases.
     let shared = shared_sweep(r);
+    // A tank's contents: the volume and its centroid are the liquid's.
+    let contained = !i.parts.is_empty() && i.parts.iter().all(|p| p.wet_side == "inside");
     for c in &r.cases {
         s.push('\n');
-        case_block(&mut s, c, i.parts.len() > 1, shared.is_none(), &u);
+        case_block(
+            &mut s,
+            c,
+            i.parts.len() > 1,
+            shared.is_none(),
+            contained,
+            &u,
+        );
     }
     if let Some(c) = shared {
         s.push('\n');
@@ -165,7 +174,14 @@ pub fn shared_sweep(r: &MeshResult) -> Option<&CaseResult> {
     .then_some(first)
 }
 
-fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, sweep: bool, u: &Units) {
+fn case_block(
+    s: &mut String,
+    c: &CaseResult,
+    several_parts: bool,
+    sweep: bool,
+    contained: bool,
+    u: &Units,
+) {
     let liquids: Vec<String> = c
         .liquids
         .iter()
@@ -191,7 +207,7 @@ fn case_block(s: &mut String, c: &CaseResult, several_parts: bool, sweep: bool, 
         })
         .collect();
     let _ = writeln!(s, "  case {} · {}", c.name, liquids.join("; "));
-    loads_block(s, &c.loads, "    ", u);
+    loads_block(s, &c.loads, "    ", contained, u);
     if several_parts {
         let _ = writeln!(
             s,
@@ -427,7 +443,7 @@ fn sweep_block(
     }
 }
 
-fn loads_block(s: &mut String, l: &Loads, ind: &str, u: &Units) {
+fn loads_block(s: &mut String, l: &Loads, ind: &str, contained: bool, u: &Units) {
     let f = l.force;
     let mag = (f[0] * f[0] + f[1] * f[1] + f[2] * f[2]).sqrt();
     let (fu, mu, lu) = (u.force.name, u.moment.name, u.length.name);
@@ -489,9 +505,14 @@ fn loads_block(s: &mut String, l: &Loads, ind: &str, u: &Units) {
         let cob = l
             .centre_of_buoyancy
             .map_or_else(|| "—".to_owned(), |c| format!("{} {lu}", u.point(c)));
+        let (volume, centre) = if contained {
+            ("liquid inside", "its centroid")
+        } else {
+            ("submerged volume", "centre of buoyancy")
+        };
         let _ = writeln!(
             s,
-            "{ind}submerged volume {} {}, centre of buoyancy {cob}",
+            "{ind}{volume} {} {}, {centre} {cob}",
             u.volume.fmt(v),
             u.volume.name
         );

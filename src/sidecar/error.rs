@@ -198,7 +198,7 @@ pub(super) fn json_message(error: &serde_json::Error) -> String {
 /// The JSON reader's message in plain words: what was expected and what was found, with
 /// the reader's type names (`f64`, `sequence`, `map`, `EOF`) replaced by what a user
 /// wrote or should write. A message it does not know is kept as it is.
-pub(super) fn plain(message: &str) -> String {
+pub(crate) fn plain(message: &str) -> String {
     for prefix in ["invalid type: ", "invalid value: "] {
         if let Some(rest) = message.strip_prefix(prefix)
             && let Some((found, expected)) = rest.split_once(", expected ")

@@ -27,6 +27,7 @@
 mod error;
 mod flotation;
 mod liquids;
+mod project;
 mod raw;
 mod types;
 mod validate;
@@ -34,6 +35,7 @@ mod water;
 
 pub use error::{SidecarError, SidecarErrorKind, quoted_list};
 pub use flotation::{FactorPreset, factor_presets};
+pub use project::{PROJECT_FILE, Project, ProjectError, parse_project};
 pub use types::{
     AUTO_FIELD_EXPORT_FACETS, Case, Datum, FieldExports, Flotation, LengthUnit, LiquidChoice,
     NamedAxis, NamedLiquid, PartRule, PartRules, Sidecar, Sweep, UnassignedPart,

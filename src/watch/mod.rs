@@ -569,7 +569,7 @@ impl Watch<'_> {
 
     /// Rewrites the folder's page (`live`: it reloads itself); a failure is only reported.
     fn refresh_page(&mut self, live: bool) {
-        match outputs::write_folder_page(self.results.dir(), live) {
+        match outputs::write_folder_page(self.results.dir(), live, self.opts.units) {
             Ok(_) => self.page_note = None,
             Err(e) => {
                 // Said once while it keeps failing the same way.

@@ -143,3 +143,63 @@ fn check_shows_where_the_holes_are_and_writes_them_for_a_viewer() {
     Run::from(f.wetload().args(["check", "tank.stl"]).output()).expect_code(0);
     assert!(!f.path("results").join("tank.edges.obj").exists());
 }
+
+#[test]
+fn a_project_header_heads_the_page_and_every_result_file() {
+    let f = Folder::new();
+    let force = wall(&f);
+    f.write(
+        "wetload-project.json",
+        r#"{"project": "Intake 2 stoplogs", "job_number": "J-204", "prepared_by": "M. T.", "revision": "A"}"#,
+    );
+    f.calc(&["wall.stl", "--units", "us"]).expect_code(0);
+    let r = f.result("wall");
+    assert_eq!(r["project"]["job_number"], "J-204");
+    assert_eq!(r["project"]["revision"], "A");
+    let page = fs::read_to_string(f.path("results").join("report.html")).expect("page");
+    assert!(page.contains("<h1>Intake 2 stoplogs</h1>"), "title");
+    assert!(page.contains("<tr><th>prepared by</th><td>M. T.</td></tr>"));
+    // The page in the units asked for: |F| in kip.
+    assert!(page.contains(&format!("<td>{:.2}</td>", kip(force))), "kip");
+
+    // A header with a mistake stops the computation with the file and line named.
+    f.write(
+        "wetload-project.json",
+        "{\n  \"project\": \"Intake 2\",\n  \"job\": \"J-204\"\n}",
+    );
+    let run = f.calc(&["wall.stl"]);
+    run.expect_code(1);
+    assert!(
+        run.stderr
+            .contains("project file wetload-project.json, line 3: unknown key \"job\""),
+        "{}",
+        run.stderr
+    );
+}
+
+#[test]
+fn the_contents_of_a_tank_are_named_as_the_liquid_inside() {
+    let f = Folder::new();
+    // A closed 2 × 2 × 2 m tank holding water 1.5 m deep: 6 m³ of liquid inside.
+    let tank = shapes::box_solid([0.0; 3], [2.0; 3], 2);
+    f.write("tank.stl", encode::stl_ascii(&[("tank", &tank[..])]));
+    f.write(
+        "tank.json",
+        r#"{"units": "m", "wet_side": "inside", "liquid": {"level": 1.5, "density": 1000}}"#,
+    );
+    let run = f.calc(&["tank.stl"]);
+    run.expect_code(0);
+    assert!(
+        run.stdout.contains("liquid inside 6.000 m³"),
+        "{}",
+        run.stdout
+    );
+    assert!(
+        run.stdout.contains("its centroid (1.000, 1.000, 0.750)"),
+        "{}",
+        run.stdout
+    );
+    let page = fs::read_to_string(f.path("results").join("report.html")).expect("page");
+    assert!(page.contains("centroid of the liquid inside"));
+    assert!(!page.contains("centre of buoyancy"));
+}

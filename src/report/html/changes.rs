@@ -10,14 +10,15 @@ use std::fmt::Write;
 use serde_json::Value;
 
 use super::format::{Scale, esc, f, num};
+use crate::report::units::{Unit, Units};
 
 /// What a row of the change table measures, for its scale and unit.
 #[derive(Clone, Copy, PartialEq)]
 enum Kind {
     Force,
     Moment,
-    /// Shown with three decimals in the given unit.
-    Other(&'static str),
+    /// Shown in the given unit.
+    Other(Unit),
 }
 
 /// One row of the change table (SI values).
@@ -47,7 +48,7 @@ fn row(
 
 /// The change since the previous computation and since the baseline, per case, from the
 /// last `computed` line of the mesh.
-pub(super) fn changes(s: &mut String, lines: &[&Value]) {
+pub(super) fn changes(s: &mut String, lines: &[&Value], u: &Units) {
     s.push_str("<h3>Change since the previous save</h3>\n");
     let Some(last) = lines.last() else {
         s.push_str("<p class=\"muted\">The change log has no computation of this mesh yet (the watcher writes it; <code>calc</code> does not).</p>\n");
@@ -112,10 +113,15 @@ pub(super) fn changes(s: &mut String, lines: &[&Value]) {
                 }
             }
         }
+        let factor = Unit {
+            name: "",
+            factor: 1.0,
+            decimals: 3,
+        };
         for (key, label, unit) in [
-            ("wetted_area", "wetted area", "m²"),
-            ("submerged_volume", "submerged volume", "m³"),
-            ("flotation_factor", "flotation factor", ""),
+            ("wetted_area", "wetted area", u.area),
+            ("submerged_volume", "submerged volume", u.volume),
+            ("flotation_factor", "flotation factor", factor),
         ] {
             if let Some(v) = f(&c[key]) {
                 rows.push(row(
@@ -128,11 +134,13 @@ pub(super) fn changes(s: &mut String, lines: &[&Value]) {
             }
         }
         let fs = Scale::of(
+            u.force,
             rows.iter()
                 .filter(|r| r.kind == Kind::Force)
                 .map(|r| r.value),
         );
         let ms = Scale::above(
+            u.moment,
             rows.iter()
                 .filter(|r| r.kind == Kind::Moment)
                 .map(|r| r.value),
@@ -155,29 +163,41 @@ pub(super) fn changes(s: &mut String, lines: &[&Value]) {
             let (show, unit, noise): (Box<dyn Fn(f64) -> String>, String, f64) = match kind {
                 Kind::Force => (
                     Box::new(move |x| fs.show(x)),
-                    format!("{}N", fs.prefix),
+                    fs.unit().to_owned(),
                     fs.moment_noise(),
                 ),
                 Kind::Moment => (
                     Box::new(move |x| ms.show(x)),
-                    format!("{}N·m", ms.prefix),
+                    ms.unit().to_owned(),
                     ms.noise,
                 ),
-                Kind::Other(unit) => (Box::new(|x| num(x, 3)), unit.to_owned(), 1e-9 * v.abs()),
+                Kind::Other(unit) => (
+                    Box::new(move |x| num(x * unit.factor, unit.decimals)),
+                    unit.name.to_owned(),
+                    1e-9 * v.abs(),
+                ),
             };
             let delta = |d: Option<f64>| match d {
                 None => "—".to_owned(),
                 Some(d) if d.abs() <= noise => show(0.0),
                 Some(d) => {
+                    // Judged by magnitude: a moment from −364 to −399 grows, though its
+                    // value falls; the change keeps its sign.
                     let old = v - d;
-                    let pct = if old.abs() > noise {
-                        let sign = if d > 0.0 { "+" } else { "" };
-                        format!(" ({sign}{}%)", num(100.0 * d / old.abs(), 1))
+                    let (class, words) = if old.abs() <= noise {
+                        ("up", "new".to_owned())
+                    } else if v.abs() > noise && v.signum() != old.signum() {
+                        ("up", "reverses".to_owned())
                     } else {
-                        " (new)".to_owned()
+                        let rel = 100.0 * (v.abs() - old.abs()) / old.abs();
+                        if rel >= 0.0 {
+                            ("up", format!("grows {}%", num(rel, 1)))
+                        } else {
+                            ("down", format!("eases {}%", num(-rel, 1)))
+                        }
                     };
-                    let (class, sign) = if d > 0.0 { ("up", "+") } else { ("down", "") };
-                    format!("<span class=\"{class}\">{sign}{}{pct}</span>", show(d))
+                    let sign = if d > 0.0 { "+" } else { "" };
+                    format!("<span class=\"{class}\">{sign}{} ({words})</span>", show(d))
                 }
             };
             let _ = writeln!(

@@ -1,12 +1,12 @@
 //! How text and numbers appear on the page: HTML escaping, anchor ids, reading numbers
-//! out of the JSON values, and a display scale per table (a prefix and decimals that give
-//! five significant digits, with round-off shown as zero).
+//! out of the JSON values, and every quantity in its one unit and number of decimals
+//! (those of [`crate::report::units`], SI or US), with round-off shown as zero.
 //!
 //! It writes no markup of its own; the sections compose it.
 
 use serde_json::Value;
 
-use crate::report::svg;
+use crate::report::units::{Unit, Units};
 
 /// HTML text escaping (element content and attribute values).
 pub(super) fn esc(s: &str) -> String {
@@ -47,44 +47,41 @@ pub(super) fn v3(v: &Value) -> Option<[f64; 3]> {
     Some([a[0].as_f64()?, a[1].as_f64()?, a[2].as_f64()?])
 }
 
-/// Display scale for a set of values of one kind: a prefix and decimals that give five
-/// significant digits on the largest.
+/// How one kind of value is shown in a table: its one unit and number of decimals (from
+/// [`crate::report::units`], the same on every table and the terminal), with round-off
+/// shown as zero.
 #[derive(Clone, Copy, Debug)]
 pub(super) struct Scale {
-    factor: f64,
-    pub(super) prefix: &'static str,
-    decimals: usize,
-    /// Magnitudes at or below this are round-off, shown as 0.
+    unit: Unit,
+    /// Magnitudes at or below this (SI) are round-off, shown as 0.
     pub(super) noise: f64,
     /// The largest magnitude (SI).
     max: f64,
 }
 
 impl Scale {
-    pub(super) fn of(values: impl Iterator<Item = f64>) -> Scale {
-        Scale::above(values, 0.0)
+    pub(super) fn of(unit: Unit, values: impl Iterator<Item = f64>) -> Scale {
+        Scale::above(unit, values, 0.0)
     }
 
-    /// The scale of the values above `noise` (moments that are zero up to round-off
-    /// would otherwise be shown as 0.0000 with a prefix chosen from the noise).
-    pub(super) fn above(values: impl Iterator<Item = f64>, noise: f64) -> Scale {
+    /// The scale of the values above `noise` (moments that are zero up to round-off are
+    /// shown as 0).
+    pub(super) fn above(unit: Unit, values: impl Iterator<Item = f64>, noise: f64) -> Scale {
         let max = values
             .filter(|x| x.is_finite() && x.abs() > noise)
             .map(f64::abs)
             .fold(0.0, f64::max);
-        let (factor, prefix) = svg::prefix(max);
-        Scale {
-            factor,
-            prefix,
-            decimals: decimals_for(max / factor),
-            noise,
-            max,
-        }
+        Scale { unit, noise, max }
     }
 
     pub(super) fn show(&self, x: f64) -> String {
         let x = if x.abs() <= self.noise { 0.0 } else { x };
-        num(x / self.factor, self.decimals)
+        num(x * self.unit.factor, self.unit.decimals)
+    }
+
+    /// The unit's name (`kN`, `kip·ft` …).
+    pub(super) fn unit(&self) -> &'static str {
+        self.unit.name
     }
 
     /// The round-off level of moments next to these forces: 1e-9 × the largest × 1 m.
@@ -93,13 +90,9 @@ impl Scale {
     }
 }
 
-/// Decimals for five significant digits on `max` (0 to 4).
-fn decimals_for(max: f64) -> usize {
-    if !(max.is_finite() && max > 0.0) {
-        return 2;
-    }
-    let digits = max.log10().floor() as i64 + 1;
-    (5 - digits).clamp(0, 4) as usize
+/// A value in one unit, with a real minus sign (`—` when missing).
+pub(super) fn show(unit: Unit, x: Option<f64>) -> String {
+    x.map_or_else(|| "—".to_owned(), |x| num(x * unit.factor, unit.decimals))
 }
 
 /// `x` with `d` decimals, a real minus sign, and no sign on a value that rounds to zero.
@@ -115,8 +108,20 @@ pub(super) fn num(x: f64, d: usize) -> String {
     }
 }
 
-pub(super) fn point(p: [f64; 3]) -> String {
-    format!("({}, {}, {})", num(p[0], 3), num(p[1], 3), num(p[2], 3))
+/// A point in lengths, without the unit's name.
+pub(super) fn point(u: &Units, p: [f64; 3]) -> String {
+    let l = u.length;
+    format!(
+        "({}, {}, {})",
+        num(p[0] * l.factor, l.decimals),
+        num(p[1] * l.factor, l.decimals),
+        num(p[2] * l.factor, l.decimals)
+    )
+}
+
+/// An elevation of the mesh's frame as shown (in the project datum when there is one).
+pub(super) fn elevation(u: &Units, z: Option<f64>) -> String {
+    show(u.length, z.map(|z| z + u.elevation_origin_m))
 }
 
 #[cfg(test)]
@@ -124,19 +129,37 @@ mod tests {
     use super::*;
 
     #[test]
-    fn numbers_keep_five_significant_digits_under_the_chosen_prefix() {
-        let sc = Scale::of([490_332.5, -12.0].into_iter());
+    fn every_table_shows_a_quantity_in_one_unit() {
+        let si = Units::of(crate::report::units::UnitSystem::Si);
+        // The same unit and decimals for a kilonewton and for tens of meganewtons.
+        let sc = Scale::of(si.force, [490_332.5, -12.0, 2.5e7].into_iter());
         assert_eq!(
-            (sc.prefix, sc.show(490_332.5), sc.show(-12.0)),
-            ("k", "490.33".to_owned(), "−0.01".to_owned())
+            (
+                sc.unit(),
+                sc.show(490_332.5),
+                sc.show(-12.0),
+                sc.show(2.5e7)
+            ),
+            (
+                "kN",
+                "490.33".to_owned(),
+                "−0.01".to_owned(),
+                "25000.00".to_owned()
+            )
         );
-        let sc = Scale::of([2.5e7].into_iter());
-        assert_eq!((sc.prefix, sc.show(2.5e7)), ("M", "25.000".to_owned()));
-        // Moments that are round-off next to 1 MN are zero, shown without a prefix.
-        let forces = Scale::of([1.0e6].into_iter());
-        let m = Scale::above([3e-7, -1e-6].into_iter(), forces.moment_noise());
-        assert_eq!((m.prefix, m.show(-1e-6)), ("", "0.00".to_owned()));
+        // Moments that are round-off next to 1 MN are zero.
+        let forces = Scale::of(si.force, [1.0e6].into_iter());
+        let m = Scale::above(si.moment, [3e-7, -1e-6].into_iter(), forces.moment_noise());
+        assert_eq!((m.unit(), m.show(-1e-6)), ("kN·m", "0.00".to_owned()));
+        // US: 1 kip = 4448.2216152605 N exactly.
+        let us = Units::of(crate::report::units::UnitSystem::Us);
+        assert_eq!(
+            Scale::of(us.force, [].into_iter()).show(4_448.221_615_260_5),
+            "1.00"
+        );
         assert_eq!(num(-0.0001, 2), "0.00");
         assert_eq!(anchor("a b/c"), "mesh-a_b_c");
+        let datum = si.with_datum(100.0);
+        assert_eq!(elevation(&datum, Some(2.5)), "102.500");
     }
 }

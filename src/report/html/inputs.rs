@@ -8,9 +8,10 @@ use std::fmt::Write;
 
 use serde_json::Value;
 
-use super::format::{esc, f, num, point, v3};
+use super::format::{elevation, esc, f, point, show, v3};
+use crate::report::units::Units;
 
-pub(super) fn inputs(s: &mut String, r: &Value) {
+pub(super) fn inputs(s: &mut String, r: &Value, u: &Units) {
     let i = &r["inputs"];
     let text = |v: &Value| esc(v.as_str().unwrap_or("—"));
     s.push_str("<h3>Inputs</h3>\n<dl class=\"facts\">");
@@ -41,32 +42,58 @@ pub(super) fn inputs(s: &mut String, r: &Value) {
     );
     let _ = write!(
         s,
-        "<dt>units</dt><dd>{} (coordinates scaled to m)</dd><dt>up axis</dt><dd>{}</dd><dt>g</dt><dd>{} m/s²</dd>",
+        "<dt>units</dt><dd>{} (coordinates scaled to m)</dd><dt>up axis</dt><dd>{}</dd><dt>g</dt><dd>{} {}</dd>",
         text(&i["units"]),
         text(&i["up"]),
-        f(&i["gravity"]).map_or_else(|| "—".to_owned(), |g| format!("{g}"))
+        show(u.acceleration, f(&i["gravity"])),
+        u.acceleration.name
     );
+    if let Some(d) = i["datum"].as_object() {
+        let _ = write!(
+            s,
+            "<dt>levels</dt><dd>elevations in {}: the mesh's origin is at {} {}</dd>",
+            esc(d
+                .get("name")
+                .and_then(Value::as_str)
+                .unwrap_or("the project datum")),
+            show(
+                u.length,
+                d.get("mesh_origin_elevation").and_then(Value::as_f64)
+            ),
+            u.length.name
+        );
+    }
     if let Some(w) = i["wet_side"].as_str() {
         let _ = write!(s, "<dt>wet side</dt><dd>{}</dd>", esc(w));
     }
     if let (Some(lo), Some(hi)) = (v3(&i["bounding_box"][0]), v3(&i["bounding_box"][1])) {
         let _ = write!(
             s,
-            "<dt>size</dt><dd>{} × {} × {} m (mesh axes), from {} to {} m</dd>",
-            num(hi[0] - lo[0], 3),
-            num(hi[1] - lo[1], 3),
-            num(hi[2] - lo[2], 3),
-            point(lo),
-            point(hi)
+            "<dt>size</dt><dd>{} × {} × {} {l} (mesh axes), from {} to {} {l}</dd>",
+            show(u.length, Some(hi[0] - lo[0])),
+            show(u.length, Some(hi[1] - lo[1])),
+            show(u.length, Some(hi[2] - lo[2])),
+            point(u, lo),
+            point(u, hi),
+            l = u.length.name
         );
     }
     if let Some(about) = r["cases"][0].get("moment_about").and_then(v3) {
-        let _ = write!(s, "<dt>moments about</dt><dd>{} m</dd>", point(about));
+        let _ = write!(
+            s,
+            "<dt>moments about</dt><dd>{} {}</dd>",
+            point(u, about),
+            u.length.name
+        );
     }
     s.push_str("</dl>\n");
 
     // Liquids per case: level, densities (top to bottom, with interfaces), gas pressure.
-    s.push_str("<div class=\"wide\"><table>\n<tr><th>case</th><th class=\"text\">liquid</th><th>level <span class=\"unit\">m</span></th><th class=\"text\">density <span class=\"unit\">kg/m³</span>, top to bottom</th><th>gas pressure <span class=\"unit\">kPa</span></th></tr>\n");
+    let _ = writeln!(
+        s,
+        "<div class=\"wide\"><table>\n<tr><th>case</th><th class=\"text\">liquid</th><th>level <span class=\"unit\">{}</span></th><th class=\"text\">density <span class=\"unit\">{}</span>, top to bottom</th><th>gas pressure <span class=\"unit\">{}</span></th></tr>",
+        u.length.name, u.density.name, u.pressure.name
+    );
     for c in r["cases"].as_array().into_iter().flatten() {
         for l in c["liquids"].as_array().into_iter().flatten() {
             let layers: Vec<String> = l["layers"]
@@ -74,9 +101,11 @@ pub(super) fn inputs(s: &mut String, r: &Value) {
                 .into_iter()
                 .flatten()
                 .map(|y| {
-                    let d = f(&y[0]).map_or_else(|| "—".to_owned(), |d| format!("{d}"));
+                    let d = show(u.density, f(&y[0]));
                     match f(&y[1]) {
-                        Some(z) => format!("{d} down to {} m", num(z, 3)),
+                        Some(z) => {
+                            format!("{d} down to {} {}", elevation(u, Some(z)), u.length.name)
+                        }
                         None => d,
                     }
                 })
@@ -86,9 +115,9 @@ pub(super) fn inputs(s: &mut String, r: &Value) {
                 "<tr><td>{}</td><td class=\"text\">{}</td><td>{}</td><td class=\"text\">{}</td><td>{}</td></tr>",
                 esc(c["name"].as_str().unwrap_or("?")),
                 esc(l["name"].as_str().unwrap_or("?")),
-                f(&l["level"]).map_or_else(|| "—".to_owned(), |x| num(x, 3)),
+                elevation(u, f(&l["level"])),
                 esc(&layers.join("; ")),
-                f(&l["surface_pressure"]).map_or_else(|| "—".to_owned(), |x| num(x / 1e3, 3)),
+                show(u.pressure, f(&l["surface_pressure"])),
             );
         }
     }

@@ -13,9 +13,10 @@ use serde_json::Value;
 use super::MeshEntry;
 use super::case::case_block;
 use super::changes::changes;
-use super::format::{Scale, anchor, esc, f, num};
+use super::format::{Scale, anchor, elevation, esc, f, num, show};
 use super::inputs::inputs;
 use crate::report::svg::{self, SweepPoint};
+use crate::report::units::Units;
 
 /// The `computed` lines of one mesh, in order.
 fn computed_lines<'a>(log: &'a [Value], mesh: &str) -> Vec<&'a Value> {
@@ -28,7 +29,7 @@ fn last_event<'a>(log: &'a [Value], mesh: &str) -> Option<&'a Value> {
     log.iter().rev().find(|l| l["mesh"] == mesh)
 }
 
-pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value]) {
+pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: &Units) {
     let lines = computed_lines(log, &m.mesh);
     let last = last_event(log, &m.mesh);
     let _ = writeln!(
@@ -85,7 +86,12 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value]) {
         return;
     };
 
-    inputs(s, r);
+    // Levels shown in the project datum when the sidecar gives one.
+    let origin = r["inputs"]["datum"]["mesh_origin_elevation"]
+        .as_f64()
+        .unwrap_or(0.0);
+    let u = &units.with_datum(origin);
+    inputs(s, r, u);
     let warnings: Vec<&str> = r["warnings"]
         .as_array()
         .into_iter()
@@ -102,12 +108,16 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value]) {
         s.push_str("</ul></div>\n");
     }
 
-    let several_parts = r["inputs"]["parts"].as_array().is_some_and(|p| p.len() > 1);
+    let parts = r["inputs"]["parts"]
+        .as_array()
+        .map_or(&[][..], Vec::as_slice);
+    let several_parts = parts.len() > 1;
+    let contained = !parts.is_empty() && parts.iter().all(|p| p["wet_side"] == "inside");
     for c in r["cases"].as_array().into_iter().flatten() {
-        case_block(s, c, several_parts);
+        case_block(s, c, several_parts, contained, u);
     }
 
-    changes(s, &lines);
+    changes(s, &lines, u);
 
     let history = svg::history_chart(&m.mesh, log);
     match history {
@@ -125,38 +135,54 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value]) {
             "<p class=\"muted\">The load history chart appears once the change log holds two computations of this mesh.</p>\n",
         ),
     }
-    for c in r["cases"].as_array().into_iter().flatten() {
+    // A sweep that is the same in every case (the cases differ only in the swept level)
+    // is shown once.
+    let cases = r["cases"].as_array().map_or(&[][..], Vec::as_slice);
+    let shared = cases.len() > 1
+        && cases[0].get("sweep").is_some()
+        && cases.iter().all(|c| {
+            c.get("sweep") == cases[0].get("sweep")
+                && c.get("sweep_governing") == cases[0].get("sweep_governing")
+        });
+    for c in if shared { &cases[..1] } else { cases } {
         let Some(sweep) = c["sweep"].as_array() else {
             continue;
         };
         let steps: Vec<SweepPoint> = sweep.iter().filter_map(SweepPoint::from_json).collect();
         let name = c["name"].as_str().unwrap_or("?");
-        let chart = svg::sweep_chart(&m.mesh, name, None, &steps);
-        let _ = write!(
-            s,
-            "<h3>Loads against level · case {}</h3>\n<figure>",
-            esc(name)
+        let chart = svg::sweep_chart(
+            &m.mesh,
+            if shared { "every case" } else { name },
+            None,
+            &steps,
         );
+        let title = if shared {
+            "every case (the same sweep)".to_owned()
+        } else {
+            format!("case {}", esc(name))
+        };
+        let _ = write!(s, "<h3>Loads against level · {title}</h3>\n<figure>");
         s.push_str(&String::from_utf8_lossy(&svg::render(&chart)));
         let _ = writeln!(
             s,
-            "<figcaption>{} levels from {} m to {} m, the other inputs as in case {}.</figcaption></figure>",
+            "<figcaption>{} levels from {} {l} to {} {l}, {}.</figcaption></figure>",
             steps.len(),
-            steps
-                .first()
-                .map_or_else(|| "—".to_owned(), |p| num(p.level, 3)),
-            steps
-                .last()
-                .map_or_else(|| "—".to_owned(), |p| num(p.level, 3)),
-            esc(name)
+            elevation(u, steps.first().map(|p| p.level)),
+            elevation(u, steps.last().map(|p| p.level)),
+            if shared {
+                "the same in every case".to_owned()
+            } else {
+                format!("the other inputs as in case {}", esc(name))
+            },
+            l = u.length.name
         );
-        governing_table(s, &c["sweep_governing"]);
+        governing_table(s, &c["sweep_governing"], u);
     }
     s.push_str("</section>\n");
 }
 
 /// The governing values of a sweep (`sweep_governing`), if the result has them.
-fn governing_table(s: &mut String, g: &Value) {
+fn governing_table(s: &mut String, g: &Value, u: &Units) {
     let Some(g) = g.as_object() else {
         return;
     };
@@ -168,43 +194,51 @@ fn governing_table(s: &mut String, g: &Value) {
         "uplift",
         "downthrust",
     ];
-    let scale = Scale::of(forces.iter().filter_map(|k| f(&g.get(*k)?["value"])));
+    let scale = Scale::of(
+        u.force,
+        forces.iter().filter_map(|k| f(&g.get(*k)?["value"])),
+    );
     let axes = g.get("axis_moments").and_then(Value::as_object);
     let moments = Scale::above(
+        u.moment,
         axes.into_iter()
             .flatten()
             .filter_map(|(_, e)| f(&e["value"])),
         scale.moment_noise(),
     );
-    s.push_str("<div class=\"wide\"><table>\n<tr><th>governing over the sweep</th><th>largest magnitude</th><th>at level <span class=\"unit\">m</span></th></tr>\n");
+    let _ = writeln!(
+        s,
+        "<div class=\"wide\"><table>\n<tr><th>governing over the sweep</th><th>largest magnitude</th><th>at level <span class=\"unit\">{}</span></th></tr>",
+        u.length.name
+    );
     let mut row = |label: &str, e: &Value, value: String| {
         let _ = writeln!(
             s,
             "<tr><td>{}</td><td>{value}</td><td>{}</td></tr>",
             esc(label),
-            f(&e["level"]).map_or_else(|| "—".to_owned(), |x| num(x, 3))
+            elevation(u, f(&e["level"]))
         );
     };
-    let p = scale.prefix;
+    let p = scale.unit();
     for (key, label) in forces
         .iter()
         .zip(["Fx", "Fy", "Fz", "|F|", "uplift", "downthrust"])
     {
         if let Some(e) = g.get(*key) {
             let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| scale.show(x));
-            row(label, e, format!("{v} {p}N"));
+            row(label, e, format!("{v} {p}"));
         }
     }
     if let Some(e) = g.get("submerged_volume") {
-        let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| num(x, 3));
-        row("submerged volume", e, format!("{v} m³"));
+        let v = show(u.volume, f(&e["value"]));
+        row("submerged volume", e, format!("{v} {}", u.volume.name));
     }
     for (name, e) in axes.into_iter().flatten() {
         let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| moments.show(x));
         row(
             &format!("moment about {name}"),
             e,
-            format!("{v} {}N·m", moments.prefix),
+            format!("{v} {}", moments.unit()),
         );
     }
     // The flotation factor governs at its lowest, not its largest.

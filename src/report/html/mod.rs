@@ -51,6 +51,9 @@ use format::{Scale, anchor, esc, f, v3};
 use mesh::mesh_section;
 use style::STYLE;
 
+use crate::report::units::Units;
+use crate::sidecar::Project;
+
 /// One mesh known to the folder: a result file, or only lines in the change log.
 #[derive(Clone, Debug, PartialEq)]
 pub struct MeshEntry {
@@ -77,6 +80,21 @@ pub struct FolderPage<'a> {
     pub log: &'a [Value],
     /// The caution printed with every result.
     pub caution: &'a str,
+    /// The units every quantity is shown in (the result files stay SI).
+    pub units: Units,
+    /// The calculation sheet's header (project, job number, names, revision), if the
+    /// folder has one.
+    pub project: Option<&'a Project>,
+}
+
+/// The last component of the folder's path: the page's title.
+fn folder_name(folder: &str) -> &str {
+    folder
+        .trim_end_matches(['/', '\\'])
+        .rsplit(['/', '\\'])
+        .next()
+        .filter(|n| !n.is_empty())
+        .unwrap_or(folder)
 }
 
 /// Renders the page as UTF-8 bytes.
@@ -87,18 +105,30 @@ pub fn render(page: &FolderPage) -> Vec<u8> {
     if page.live {
         s.push_str("<meta http-equiv=\"refresh\" content=\"2\">\n");
     }
+    let title = page
+        .project
+        .and_then(|p| p.project.as_deref())
+        .unwrap_or_else(|| folder_name(page.folder));
     let _ = writeln!(
         s,
-        "<title>Hydrostatic loads · {}</title>\n<style>\n{STYLE}</style>\n</head>\n<body>",
-        esc(page.folder)
+        "<title>{} · hydrostatic loads</title>\n<style>\n{STYLE}</style>\n</head>\n<body>",
+        esc(folder_name(page.folder))
     );
 
     s.push_str("<header class=\"head\">\n");
     let _ = writeln!(
         s,
         "<div class=\"kicker\">wetload · hydrostatic load calculation</div>\n<h1>{}</h1>",
-        esc(page.folder)
+        esc(title)
     );
+    if let Some(p) = page.project {
+        s.push_str("<table class=\"sheet\">");
+        for (label, value) in p.entries() {
+            let _ = write!(s, "<tr><th>{label}</th><td>{}</td></tr>", esc(value));
+        }
+        s.push_str("</table>\n");
+    }
+    let _ = writeln!(s, "<p class=\"meta\">Folder {}</p>", esc(page.folder));
     let computed = page.meshes.iter().filter(|m| m.result.is_some()).count();
     let _ = writeln!(
         s,
@@ -121,13 +151,13 @@ pub fn render(page: &FolderPage) -> Vec<u8> {
 
     overview(&mut s, page);
     for m in page.meshes {
-        mesh_section(&mut s, m, page.log);
+        mesh_section(&mut s, m, page.log, &page.units);
     }
     s.push_str(
         "<footer>Sign conventions: forces are the force of the liquid on the surface, in the mesh's \
 own axes; moments follow the right-hand rule about the stated point or axis; vertical is \
 positive up; pressures are gauge. Values in the result files are SI (N, N·m, m, m², m³, Pa); \
-this page shows them with the prefix named in each table heading.</footer>\n",
+this page shows every quantity in the one unit named in its table heading.</footer>\n",
     );
     s.push_str("</main>\n</body>\n</html>\n");
     s.into_bytes()
@@ -139,14 +169,18 @@ fn overview(s: &mut String, page: &FolderPage) {
         s.push_str("<p class=\"muted\">No results yet: put a mesh (<code>.stl</code> or <code>.obj</code>) and its sidecar <code>.json</code> in the folder.</p>\n</section>\n");
         return;
     }
-    // One prefix per mesh: a folder may hold a lab model next to a dam.
-    s.push_str("<div class=\"wide\"><table>\n<tr><th>mesh</th><th class=\"text\">case</th><th>|F|</th><th>horizontal</th><th>vertical, + up</th><th>uplift</th><th class=\"text\">unit</th><th class=\"text\">state</th></tr>\n");
+    // One unit for the whole table, as for every table of the page.
+    let fu = page.units.force.name;
+    let _ = writeln!(
+        s,
+        "<div class=\"wide\"><table>\n<tr><th>mesh</th><th class=\"text\">case</th><th>|F| <span class=\"unit\">{fu}</span></th><th>horizontal <span class=\"unit\">{fu}</span></th><th>vertical, + up <span class=\"unit\">{fu}</span></th><th>uplift <span class=\"unit\">{fu}</span></th><th class=\"text\">state</th></tr>"
+    );
     for m in page.meshes {
         let link = format!("<a href=\"#{}\">{}</a>", anchor(&m.stem), esc(&m.mesh));
         let Some(r) = &m.result else {
             let _ = writeln!(
                 s,
-                "<tr><td>{link}</td><td class=\"text\">—</td><td>—</td><td>—</td><td>—</td><td>—</td><td></td><td class=\"text\"><span class=\"tag fail\">no result</span></td></tr>"
+                "<tr><td>{link}</td><td class=\"text\">—</td><td>—</td><td>—</td><td>—</td><td>—</td><td class=\"text\"><span class=\"tag fail\">no result</span></td></tr>"
             );
             continue;
         };
@@ -159,6 +193,7 @@ fn overview(s: &mut String, page: &FolderPage) {
         let norm =
             |c: &Value| v3(&c["force"]).map(|x| (x[0] * x[0] + x[1] * x[1] + x[2] * x[2]).sqrt());
         let sc = Scale::of(
+            page.units.force,
             cases
                 .iter()
                 .flat_map(|c| [norm(c), f(&c["uplift"])])
@@ -168,13 +203,12 @@ fn overview(s: &mut String, page: &FolderPage) {
         for c in cases {
             let _ = writeln!(
                 s,
-                "<tr><td>{link}</td><td class=\"text\">{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"text\">{}N</td><td class=\"text\">{state}</td></tr>",
+                "<tr><td>{link}</td><td class=\"text\">{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"text\">{state}</td></tr>",
                 esc(c["name"].as_str().unwrap_or("?")),
                 show(norm(c)),
                 show(f(&c["horizontal_force"])),
                 show(f(&c["vertical_force"])),
                 show(f(&c["uplift"])),
-                sc.prefix,
             );
         }
     }
@@ -269,6 +303,8 @@ mod tests {
             meshes: &meshes,
             log: &log,
             caution: "Hydrostatic loads only.",
+            units: Units::of(crate::report::units::UnitSystem::Si),
+            project: None,
         };
         String::from_utf8(render(&p)).expect("utf-8")
     }
@@ -305,17 +341,17 @@ mod tests {
         for text in [
             "<dd>mm (coordinates scaled to m)</dd>",
             "<dd>+z</dd>",
-            "9.80665 m/s²",
+            "9.807 m/s²",
             "<td>5.000</td>",
             "1000",
         ] {
             assert!(html.contains(text), "{text}");
         }
-        // Forces in kN with five significant digits: 490332.5 N → 490.33 kN.
+        // Forces in kN with two decimals on every table: 490332.5 N → 490.33 kN.
         assert!(html.contains("<td>490.33</td>"));
-        // Change since the previous save: +10.33 kN, +2.2 % of 480 kN; the uplift did not
-        // change, and Fy changed by round-off only.
-        assert!(html.contains("+10.33 (+2.2%)"), "change row");
+        // Change since the previous save: +10.33 kN, a growth of 2.2 % on 480 kN; the
+        // uplift did not change, and Fy changed by round-off only.
+        assert!(html.contains("+10.33 (grows 2.2%)"), "change row");
         assert!(html.contains("<tr><td>uplift</td><td>288.10</td><td>0.00</td>"));
         assert!(html.contains("<tr><td>Fy</td><td>0.00</td><td>0.00</td>"));
         // Two charts inline (history with two computations, one sweep).
@@ -323,10 +359,11 @@ mod tests {
         assert!(html.contains("Loads against level · case normal"));
         // The governing values under the sweep chart, each with its level.
         assert!(html.contains("<th>governing over the sweep</th>"));
-        assert!(html.contains("<tr><td>Fx</td><td>78.453 kN</td><td>2.000</td></tr>"));
+        assert!(html.contains("<tr><td>Fx</td><td>78.45 kN</td><td>2.000</td></tr>"));
+        // One unit for moments everywhere: 2 N·m is 0.00 kN·m.
         assert!(
             html.contains(
-                "<tr><td>moment about trunnion</td><td>2.0000 N·m</td><td>2.000</td></tr>"
+                "<tr><td>moment about trunnion</td><td>0.00 kN·m</td><td>2.000</td></tr>"
             )
         );
         assert!(
@@ -338,5 +375,49 @@ mod tests {
         assert!(html.contains("face index 9 out of range"));
         assert!(html.contains("open surface: the liquid is taken on the &quot;front&quot; side"));
         assert!(html.contains("trunnion"));
+        // The page is titled by the folder's name.
+        assert!(html.contains("<title>&lt;site&gt; · hydrostatic loads</title>"));
+        // No prefix chosen per table: no MN or N·m columns next to kN ones.
+        assert!(!html.contains(">MN<") && !html.contains("\"unit\">N·m<"));
+    }
+
+    #[test]
+    fn the_page_in_us_units_with_a_project_header() {
+        let meshes = [MeshEntry {
+            stem: "gate".into(),
+            mesh: "gate.stl".into(),
+            result: Some(result(false)),
+        }];
+        let project = Project {
+            project: Some("North weir <refit>".into()),
+            job_number: Some("J-118".into()),
+            checked_by: Some("R. K.".into()),
+            revision: Some("C".into()),
+            ..Project::default()
+        };
+        let log = log();
+        let p = FolderPage {
+            folder: "/work/weir",
+            generated: "2026-01-01T09:06:01Z",
+            live: false,
+            meshes: &meshes,
+            log: &log,
+            caution: "Hydrostatic loads only.",
+            units: Units::of(crate::report::units::UnitSystem::Us),
+            project: Some(&project),
+        };
+        let html = String::from_utf8(render(&p)).expect("utf-8");
+        // 490 332.5 N = 110.23 kip (1 kip = 4448.2216152605 N); g = 32.174 ft/s².
+        assert!(html.contains("<td>110.23</td>"), "kip");
+        assert!(html.contains("32.174 ft/s²"));
+        assert!(html.contains("\"unit\">kip</span>") && !html.contains("\"unit\">kN</span>"));
+        assert!(html.contains("<h1>North weir &lt;refit&gt;</h1>"));
+        for row in [
+            "<tr><th>job number</th><td>J-118</td></tr>",
+            "<tr><th>checked by</th><td>R. K.</td></tr>",
+            "<tr><th>revision</th><td>C</td></tr>",
+        ] {
+            assert!(html.contains(row), "{row}");
+        }
     }
 }

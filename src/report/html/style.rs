@@ -16,6 +16,9 @@ h2 { font-size: 20px; margin: 0 0 10px; }
 h3 { font-size: 16px; margin: 22px 0 8px; padding-bottom: 3px; border-bottom: 1px solid var(--rule); }
 h4 { font-size: 14px; margin: 14px 0 6px; color: var(--muted); font-weight: 600; }
 .meta { margin: 0; color: var(--muted); font-size: 13px; }
+.sheet { border-collapse: collapse; margin: 6px 0 8px; font-size: 13px; }
+.sheet th { text-align: left; font-weight: normal; color: var(--muted); padding: 1px 14px 1px 0; }
+.sheet td { padding: 1px 0; }
 .live { color: var(--accent); }
 main { padding: 18px 32px 40px; max-width: 1180px; }
 .caution { border: 1px solid var(--rule); border-left: 4px solid var(--warn); background: var(--warn-bg);
