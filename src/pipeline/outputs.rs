@@ -19,7 +19,7 @@ use std::path::{Path, PathBuf};
 use serde_json::Value;
 
 use super::{RunError, sidecar_path};
-use crate::compute::{self, MeshResult, Model};
+use crate::compute::{self, CaseResult, MeshResult, Model, SweepStep};
 use crate::report::units::{UnitSystem, Units};
 use crate::report::{csv, html, svg, vtk};
 use crate::results::{self, Layout, changelog};
@@ -37,6 +37,7 @@ pub fn write_outputs(
 ) -> Result<Vec<PathBuf>, RunError> {
     let layout = Layout::of_mesh(mesh_path);
     let parts = results::case_parts(result.cases.iter().map(|c| c.name.as_str()));
+    let shared = crate::report::summary::shared_sweep(result);
     let mut written = Vec::new();
     for (i, (case, part)) in result.cases.iter().zip(parts).enumerate() {
         let files = layout.exports(mesh_path, part.as_deref());
@@ -59,20 +60,49 @@ pub fn write_outputs(
                 results::remove_if_present(stale)?;
             }
         }
-        if let Some(steps) = &case.sweep {
-            let points: Vec<svg::SweepPoint> =
-                steps.iter().map(svg::SweepPoint::from_step).collect();
-            let swept = sidecar
-                .sweep
-                .as_ref()
-                .and_then(|s| sidecar.liquids.get(s.liquid))
-                .map(|l| l.name.as_str());
-            let chart = svg::sweep_chart(&result.mesh, &case.name, swept, &points);
+        // A sweep the same in every case is drawn once, as `<stem>.sweep.svg`.
+        if let Some(steps) = case.sweep.as_ref().filter(|_| shared.is_none()) {
+            let chart = sweep_chart(result, sidecar, case, &case.name, steps);
             results::write_atomic(&files.sweep_chart, &svg::render(&chart))?;
             written.push(files.sweep_chart);
         }
     }
+    if let Some(case) = shared
+        && let Some(steps) = &case.sweep
+    {
+        let chart = sweep_chart(result, sidecar, case, "every case", steps);
+        let path = layout.exports(mesh_path, None).sweep_chart;
+        results::write_atomic(&path, &svg::render(&chart))?;
+        written.push(path);
+    }
     Ok(written)
+}
+
+/// The chart of a case's sweep (SI units; levels in the sidecar's datum), the case's own
+/// level of the swept liquid marked.
+fn sweep_chart(
+    result: &MeshResult,
+    sidecar: &Sidecar,
+    case: &CaseResult,
+    title: &str,
+    steps: &[SweepStep],
+) -> svg::Chart {
+    let points: Vec<svg::SweepPoint> = steps.iter().map(svg::SweepPoint::from_step).collect();
+    let swept = sidecar
+        .sweep
+        .as_ref()
+        .and_then(|s| sidecar.liquids.get(s.liquid))
+        .map(|l| l.name.as_str());
+    let level = swept
+        .and_then(|name| case.liquids.iter().find(|l| l.name == name))
+        .map(|l| l.level);
+    let origin = result
+        .inputs
+        .datum
+        .as_ref()
+        .map_or(0.0, |d| d.mesh_origin_elevation);
+    let units = Units::of(UnitSystem::Si).with_datum(origin);
+    svg::sweep_chart(&result.mesh, title, swept, &points, level, &units)
 }
 
 /// Writes `report.html` and every mesh's `<stem>.history.svg` in `results_dir`, from the
@@ -113,7 +143,8 @@ pub fn write_folder_page(
 
     let mut written = Vec::new();
     for m in &meshes {
-        if let Some(chart) = svg::history_chart(&m.mesh, &log) {
+        let up = m.result.as_ref().and_then(|r| r["inputs"]["up"].as_str());
+        if let Some(chart) = svg::history_chart(&m.mesh, &log, up, &Units::of(units)) {
             let path = layout.history_chart(&m.stem);
             results::write_atomic(&path, &svg::render(&chart))?;
             written.push(path);
@@ -197,7 +228,8 @@ mod tests {
             tmp.path(),
             "wall.json",
             br#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000},
-                "cases": [{"name": "normal", "level": -1.0}, {"name": "..:flood", "level": 0.0}],
+                "cases": [{"name": "normal", "level": -1.0},
+                          {"name": "..:flood", "level": 0.0, "density": 1025}],
                 "sweep": {"liquid": "liquid", "from": -3.0, "to": 0.0, "step": 1.0}}"#,
         );
         super::super::calc_file(&mesh).expect("computes");
@@ -225,6 +257,35 @@ mod tests {
         assert!(!page.contains("http-equiv=\"refresh\""));
         let sweep = fs::read_to_string(results.join("wall.normal.sweep.svg")).expect("svg");
         assert!(sweep.contains("level of liquid (m)"));
+        assert!(sweep.contains("case level"));
+    }
+
+    #[test]
+    fn a_sweep_the_same_in_every_case_is_one_chart() {
+        let tmp = tempfile::tempdir().expect("temp dir");
+        let plate = shapes::rectangle([0.0, 0.0, -3.0], [2.0, 0.0, 0.0], [0.0, 0.0, 3.0], 2, 3);
+        let mesh = write(
+            tmp.path(),
+            "wall.stl",
+            encode::stl_ascii(&[("wall", &plate)]).as_bytes(),
+        );
+        write(
+            tmp.path(),
+            "wall.json",
+            br#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000},
+                "cases": [{"name": "normal", "level": -1.0}, {"name": "flood", "level": 0.0}],
+                "sweep": {"liquid": "liquid", "from": -3.0, "to": 0.0, "step": 1.0}}"#,
+        );
+        super::super::calc_file(&mesh).expect("computes");
+        let results = tmp.path().join("results");
+        let charts: Vec<String> = fs::read_dir(&results)
+            .expect("results")
+            .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
+            .filter(|n| n.ends_with(".sweep.svg"))
+            .collect();
+        assert_eq!(charts, ["wall.sweep.svg"]);
+        let svg = fs::read_to_string(results.join("wall.sweep.svg")).expect("svg");
+        assert!(svg.contains("every case"));
     }
 
     #[test]

@@ -10,13 +10,15 @@
 //! # What a chart looks like
 //!
 //! A title line, then panels stacked top to bottom, each 960 × 300 px: a plot with its
-//! axis descriptions (quantity and unit on y, `iteration` or the level in m on x) and a
-//! legend to its right, outside the data. Forces are drawn in N, kN, MN or GN and moments
-//! in N·m … GN·m, whichever keeps the largest value of the panel between 1 and 1000.
+//! axis descriptions (quantity and unit on y, `iteration` or the level on x) and a legend
+//! to its right, outside the data. Every quantity is drawn in its one unit of
+//! [`crate::report::units`] (kN and kN·m, or kip and kip·ft), as on the page's tables;
+//! series that are zero throughout are left out, and a panel without series too.
 //! Every series has its own colour, dash pattern (solid, dashed, dotted) and marker
 //! (hollow circle, filled triangle, hollow square, cross, filled circle, hollow diamond),
 //! so the chart reads in black and white. Markers sit on at most 12 points per series.
-//! Vertical dashed grey lines mark points of interest (the baseline of a history).
+//! Vertical dashed grey lines mark points of interest (the baseline of a history, the
+//! case's own level on a sweep).
 
 use std::fmt::Write;
 
@@ -26,21 +28,13 @@ use plotters::prelude::*;
 use serde_json::Value;
 
 use crate::compute::SweepStep;
+use crate::report::units::{Unit, Units};
 
-/// One line of a chart: a label and its points (x, y in SI units).
+/// One line of a chart: a label and its points (x, y in the units its panel names).
 #[derive(Clone, Debug, PartialEq)]
 pub struct Series {
     pub label: String,
     pub points: Vec<(f64, f64)>,
-}
-
-/// What the y axis of a panel shows.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Quantity {
-    /// N (shown with a prefix: kN, MN …).
-    Force,
-    /// N·m.
-    Moment,
 }
 
 /// One plot of a chart.
@@ -49,7 +43,9 @@ pub struct Panel {
     pub title: String,
     /// The description of the x axis, with its unit.
     pub x_label: String,
-    pub quantity: Quantity,
+    /// The description of the y axis, with its unit (`force (kN)`).
+    pub y_label: String,
+    /// Points in the units the axes name.
     pub series: Vec<Series>,
     /// Vertical marker lines: x and a short label.
     pub marks: Vec<(f64, String)>,
@@ -57,7 +53,7 @@ pub struct Panel {
     pub integer_x: bool,
     /// The y range includes 0.
     pub include_zero: bool,
-    /// Values with |y| at or below this (SI) are round-off and drawn as 0: without it, a
+    /// Values with |y| at or below this are round-off and drawn as 0: without it, a
     /// moment that is zero up to 1e-10 N·m would fill the panel with noise.
     pub noise: f64,
 }
@@ -137,46 +133,86 @@ fn vec3(v: &Value) -> Option<[f64; 3]> {
 
 const COMPONENTS: [&str; 3] = ["x", "y", "z"];
 
-/// The loads of one case against the swept level: a force panel (Fx, Fy, Fz, uplift) and
-/// a moment panel (the moments about the named axes, or the moment components about
-/// `moment_about` when the sidecar names no axis). `swept` names the swept liquid.
-pub fn sweep_chart(mesh: &str, case: &str, swept: Option<&str>, steps: &[SweepPoint]) -> Chart {
+/// The loads of one case against the swept level, in the units of `u` (levels in its
+/// datum): a force panel (Fx, Fy, Fz, uplift) and a moment panel (the moments about the
+/// named axes, or the moment components when the sidecar names no axis). `swept` names the
+/// swept liquid; `case_level`, the case's own level of it (m), is marked. Series that are
+/// zero at every level, and a panel left without series, are not drawn.
+pub fn sweep_chart(
+    mesh: &str,
+    case: &str,
+    swept: Option<&str>,
+    steps: &[SweepPoint],
+    case_level: Option<f64>,
+    u: &Units,
+) -> Chart {
+    let lu = u.length.name;
     let x_label = match swept {
-        Some(l) => format!("level of {l} (m)"),
-        None => "swept level (m)".to_owned(),
+        Some(l) => format!("level of {l} ({lu})"),
+        None => format!("swept level ({lu})"),
     };
+    let x = |level: f64| (level + u.elevation_origin_m) * u.length.factor;
     let mut forces: Vec<Series> = (0..3)
         .map(|k| Series {
             label: format!("F{}", COMPONENTS[k]),
-            points: steps.iter().map(|s| (s.level, s.force[k])).collect(),
+            points: steps.iter().map(|s| (x(s.level), s.force[k])).collect(),
         })
         .collect();
     forces.push(Series {
         label: "uplift".to_owned(),
-        points: steps.iter().map(|s| (s.level, s.uplift)).collect(),
+        points: steps.iter().map(|s| (x(s.level), s.uplift)).collect(),
     });
     let moments = moment_series(
         steps
             .iter()
-            .map(|s| (s.level, s.moment, s.axis_moments.as_slice())),
+            .map(|s| (x(s.level), s.moment, s.axis_moments.as_slice())),
     );
     let noise = noise_of(&forces);
-    let panel = |title: &str, quantity, series| Panel {
-        title: title.to_owned(),
-        x_label: x_label.clone(),
-        quantity,
-        series,
-        marks: Vec::new(),
-        integer_x: false,
-        include_zero: true,
-        noise,
+    let marks: Vec<(f64, String)> = case_level
+        .map(|z| vec![(x(z), "case level".to_owned())])
+        .unwrap_or_default();
+    let panel = |title: &str, unit: Unit, quantity: &str, series| {
+        Panel {
+            title: title.to_owned(),
+            x_label: x_label.clone(),
+            y_label: format!("{quantity} ({})", unit.name),
+            series,
+            marks: marks.clone(),
+            integer_x: false,
+            include_zero: true,
+            noise,
+        }
+        .in_unit(unit)
     };
     Chart {
-        title: format!("{mesh} · case {case} · loads against level"),
-        panels: vec![
-            panel("Force of the liquid", Quantity::Force, forces),
-            panel(moments.0, Quantity::Moment, moments.1),
-        ],
+        title: format!("{mesh} · {case} · loads against level"),
+        panels: [
+            panel("Force of the liquid", u.force, "force", forces),
+            panel(moments.0, u.moment, "moment", moments.1),
+        ]
+        .into_iter()
+        .filter(|p| !p.series.is_empty())
+        .collect(),
+    }
+}
+
+impl Panel {
+    /// The panel with its y values (SI) in `unit`, and without the series that are zero
+    /// (at or below the noise) everywhere.
+    fn in_unit(mut self, unit: Unit) -> Panel {
+        let noise = self.noise;
+        self.series.retain(|s| {
+            s.points
+                .iter()
+                .any(|p| p.1.is_finite() && p.1.abs() > noise)
+        });
+        for s in &mut self.series {
+            for p in &mut s.points {
+                p.1 *= unit.factor;
+            }
+        }
+        self.noise *= unit.factor;
+        self
     }
 }
 
@@ -210,7 +246,7 @@ fn moment_series<'a>(
                 points: rows.clone().map(|(x, m, _)| (x, m[k])).collect(),
             })
             .collect();
-        ("Moment about moment_about", series)
+        ("Moment about the moments' reference point", series)
     } else {
         let series = names
             .iter()
@@ -233,9 +269,12 @@ fn moment_series<'a>(
 /// panel (axis moments, or components), against the iteration; the first `computed` line
 /// is marked as the baseline. `None` when the log has no `computed` line for the mesh.
 ///
-/// The vertical force is left out where it equals a component at every iteration (up is
-/// `+x`, `+y` or `+z`); that component is then labelled as vertical.
-pub fn history_chart(mesh: &str, lines: &[Value]) -> Option<Chart> {
+/// `up` is the mesh's up axis as the result echoes it (`"+z"`, `"-y"` …): the component
+/// along it is shown as the vertical force (`vertical (+ up)`), the others as they are;
+/// without it every component is shown, and the vertical force beside them. Series that
+/// are zero at every iteration, and a panel left without series, are not drawn. Values in
+/// the units of `u`.
+pub fn history_chart(mesh: &str, lines: &[Value], up: Option<&str>, u: &Units) -> Option<Chart> {
     let computed: Vec<(f64, &Value)> = lines
         .iter()
         .filter(|l| l["mesh"] == mesh && l["event"] == "computed")
@@ -290,24 +329,24 @@ pub fn history_chart(mesh: &str, lines: &[Value]) -> Option<Chart> {
         if rows.is_empty() {
             continue;
         }
-        let same = |a: f64, b: f64| (a - b).abs() <= 1e-9 * a.abs().max(b.abs());
-        let vertical_is = (0..3).find(|&k| rows.iter().all(|r| same(r.vertical, r.force[k])));
+        // The up axis's component is the vertical force: shown once, as such.
+        let vertical_is = up.and_then(|a| match a.trim_start_matches(['+', '-']) {
+            "x" => Some(0),
+            "y" => Some(1),
+            "z" => Some(2),
+            _ => None,
+        });
         let mut forces: Vec<Series> = (0..3)
+            .filter(|&k| vertical_is != Some(k))
             .map(|k| Series {
-                label: if vertical_is == Some(k) {
-                    format!("F{} (vertical)", COMPONENTS[k])
-                } else {
-                    format!("F{}", COMPONENTS[k])
-                },
+                label: format!("F{}", COMPONENTS[k]),
                 points: rows.iter().map(|r| (r.x, r.force[k])).collect(),
             })
             .collect();
-        if vertical_is.is_none() {
-            forces.push(Series {
-                label: "vertical (+ up)".to_owned(),
-                points: rows.iter().map(|r| (r.x, r.vertical)).collect(),
-            });
-        }
+        forces.push(Series {
+            label: "vertical (+ up)".to_owned(),
+            points: rows.iter().map(|r| (r.x, r.vertical)).collect(),
+        });
         forces.push(Series {
             label: "uplift".to_owned(),
             points: rows.iter().map(|r| (r.x, r.uplift)).collect(),
@@ -316,26 +355,33 @@ pub fn history_chart(mesh: &str, lines: &[Value]) -> Option<Chart> {
             moment_series(rows.iter().map(|r| (r.x, r.moment, r.axes.as_slice())));
         let marks = vec![(baseline, "baseline".to_owned())];
         let noise = noise_of(&forces);
-        panels.push(Panel {
-            title: format!("Case {name}: force of the liquid"),
-            x_label: "iteration".to_owned(),
-            quantity: Quantity::Force,
-            series: forces,
-            marks: marks.clone(),
-            integer_x: true,
-            include_zero: false,
-            noise,
-        });
-        panels.push(Panel {
-            title: format!("Case {name}: {}", moment_title.to_lowercase()),
-            x_label: "iteration".to_owned(),
-            quantity: Quantity::Moment,
-            series: moments,
-            marks,
-            integer_x: true,
-            include_zero: false,
-            noise,
-        });
+        panels.push(
+            Panel {
+                title: format!("Case {name}: force of the liquid"),
+                x_label: "iteration".to_owned(),
+                y_label: format!("force ({})", u.force.name),
+                series: forces,
+                marks: marks.clone(),
+                integer_x: true,
+                include_zero: false,
+                noise,
+            }
+            .in_unit(u.force),
+        );
+        panels.push(
+            Panel {
+                title: format!("Case {name}: {}", moment_title.to_lowercase()),
+                x_label: "iteration".to_owned(),
+                y_label: format!("moment ({})", u.moment.name),
+                series: moments,
+                marks,
+                integer_x: true,
+                include_zero: false,
+                noise,
+            }
+            .in_unit(u.moment),
+        );
+        panels.retain(|p| !p.series.is_empty());
     }
     Some(Chart {
         title: format!("{mesh} · load history across saves"),
@@ -453,17 +499,6 @@ fn draw(chart: &Chart, buf: &mut String) -> Result<(), String> {
     Ok(())
 }
 
-/// SI prefix (factor, symbol) that keeps the largest magnitude between 1 and 1000 (no
-/// prefix below 1).
-pub(crate) fn prefix(max_abs: f64) -> (f64, &'static str) {
-    const P: [(f64, &str); 4] = [(1.0, ""), (1e3, "k"), (1e6, "M"), (1e9, "G")];
-    P.iter()
-        .rev()
-        .find(|(f, _)| max_abs >= *f)
-        .copied()
-        .unwrap_or(P[0])
-}
-
 /// A padded range around `lo..hi`.
 fn padded(lo: f64, hi: f64, frac: f64, min_pad: f64) -> (f64, f64) {
     if !(lo.is_finite() && hi.is_finite()) {
@@ -501,12 +536,9 @@ fn draw_panel(
             .iter()
             .flat_map(|s| s.points.iter().filter(finite).map(clean))
     };
-    let max_abs = all().map(|p| p.1.abs()).fold(0.0, f64::max);
-    let (scale, pre) = prefix(max_abs);
-    let unit = match panel.quantity {
-        Quantity::Force => format!("force ({pre}N)"),
-        Quantity::Moment => format!("moment ({pre}N·m)"),
-    };
+    // Values are in the unit the panel names: one unit per quantity, as on every table.
+    let scale = 1.0;
+    let unit = panel.y_label.clone();
     let (mut ylo, mut yhi) = all().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
         (a.min(p.1 / scale), b.max(p.1 / scale))
     });
@@ -744,14 +776,19 @@ mod tests {
             line(2, 2.5e5, json!({"trunnion": -1.2e5})),
             line(3, 2.4e5, json!({"trunnion": -1.1e5})),
         ];
-        let chart = history_chart("gate.stl", &lines).expect("computed lines");
+        let si = Units::of(crate::report::units::UnitSystem::Si);
+        let chart = history_chart("gate.stl", &lines, Some("+z"), &si).expect("computed lines");
         assert_eq!(chart.panels.len(), 2);
-        // Up is +z here, so the vertical force is Fz: Fx, Fy, Fz (vertical), uplift, and
-        // one axis moment.
-        assert_eq!(chart.panels[0].series.len(), 4);
-        assert_eq!(chart.panels[0].series[2].label, "Fz (vertical)");
+        // Up is +z here, so Fz is the vertical force, labelled so; Fy is zero throughout
+        // and left out: Fx, vertical, uplift, and one axis moment.
+        let labels: Vec<&str> = chart.panels[0]
+            .series
+            .iter()
+            .map(|s| s.label.as_str())
+            .collect();
+        assert_eq!(labels, ["Fx", "vertical (+ up)", "uplift"]);
         assert_eq!(chart.panels[1].series.len(), 1);
-        assert_eq!(chart.series_count(), 5);
+        assert_eq!(chart.series_count(), 4);
         assert_eq!(chart.panels[0].series[0].points.len(), 3);
         assert_eq!(chart.panels[0].marks, vec![(1.0, "baseline".to_owned())]);
 
@@ -762,7 +799,7 @@ mod tests {
             "iteration",
             "force (kN)",
             "moment (kN·m)",
-            "Fz (vertical)",
+            "vertical (+ up)",
             "about trunnion",
             "baseline",
         ] {
@@ -773,25 +810,63 @@ mod tests {
             let n = svg.matches(&format!(">\n{}\n</text>", s.label)).count();
             assert_eq!(n, 1, "{}", s.label);
         }
-        assert!(history_chart("missing.stl", &lines).is_none());
+        assert!(history_chart("missing.stl", &lines, Some("+z"), &si).is_none());
+        // In US units, the axes say so: 1000 N = 0.2248 kip.
+        let us = Units::of(crate::report::units::UnitSystem::Us);
+        let chart = history_chart("gate.stl", &lines, Some("+z"), &us).expect("lines");
+        assert_eq!(chart.panels[0].y_label, "force (kip)");
+        assert!(
+            (chart.panels[0].series[0].points[0].1 - 1000.0 / 4_448.221_615_260_5).abs() < 1e-12
+        );
     }
 
     #[test]
-    fn a_vertical_force_that_is_no_component_gets_its_own_series() {
-        // Up is −z: vertical = −Fz.
-        let mut l = line(1, 3.0e5, json!({}));
-        l["cases"][0]["vertical_force"] = json!(-3.0e5);
-        let chart = history_chart("gate.stl", &[l]).expect("one line");
+    fn a_plate_on_a_y_up_mesh_is_never_labelled_vertical_by_accident() {
+        // Up is +y; the gate carries Fx only (Fy = vertical = 0, Fz = 0): no component is
+        // called vertical because it happens to equal the vertical force, and the zero
+        // series are not drawn.
+        let mut l = line(1, 0.0, json!({}));
+        l["cases"][0]["uplift"] = json!(0.0);
+        let si = Units::of(crate::report::units::UnitSystem::Si);
+        let chart = history_chart("gate.stl", &[l.clone()], Some("+y"), &si).expect("one line");
         let labels: Vec<&str> = chart.panels[0]
             .series
             .iter()
             .map(|s| s.label.as_str())
             .collect();
-        assert_eq!(labels, ["Fx", "Fy", "Fz", "vertical (+ up)", "uplift"]);
-        // Without axes, the moment components.
-        assert_eq!(chart.panels[1].series.len(), 3);
+        assert_eq!(labels, ["Fx"]);
+        // Up unknown: every non-zero component as it is.
+        let chart = history_chart("gate.stl", &[l], None, &si).expect("one line");
+        let labels: Vec<&str> = chart.panels[0]
+            .series
+            .iter()
+            .map(|s| s.label.as_str())
+            .collect();
+        assert_eq!(labels, ["Fx"]);
+        // The moment panel never shows a sidecar key's raw name.
+        assert_eq!(
+            chart.panels[1].title,
+            "Case normal: moment about the moments' reference point"
+        );
+    }
+
+    #[test]
+    fn a_vertical_force_along_a_negative_axis_is_shown_as_vertical() {
+        // Up is −z: vertical = −Fz, shown once as the vertical force.
+        let mut l = line(1, 3.0e5, json!({}));
+        l["cases"][0]["vertical_force"] = json!(-3.0e5);
+        let si = Units::of(crate::report::units::UnitSystem::Si);
+        let chart = history_chart("gate.stl", &[l], Some("-z"), &si).expect("one line");
+        let labels: Vec<&str> = chart.panels[0]
+            .series
+            .iter()
+            .map(|s| s.label.as_str())
+            .collect();
+        assert_eq!(labels, ["Fx", "vertical (+ up)", "uplift"]);
+        // Without axes, the moment components that are not zero (My only here).
+        assert_eq!(chart.panels[1].series.len(), 1);
         let svg = String::from_utf8(render(&chart)).expect("utf-8");
-        assert!(has_text(&svg, "Mx") && has_text(&svg, "vertical (+ up)"));
+        assert!(has_text(&svg, "My") && has_text(&svg, "vertical (+ up)"));
     }
 
     #[test]
@@ -810,18 +885,34 @@ mod tests {
                 }
             })
             .collect();
-        let chart = sweep_chart("wall.stl", "normal", Some("headwater"), &steps);
-        assert_eq!(chart.series_count(), 5);
+        let si = Units::of(crate::report::units::UnitSystem::Si);
+        let chart = sweep_chart(
+            "wall.stl",
+            "normal",
+            Some("headwater"),
+            &steps,
+            Some(3.0),
+            &si,
+        );
+        // Fx and the hinge moment; Fy, Fz and the uplift are zero throughout.
+        assert_eq!(chart.series_count(), 2);
+        assert_eq!(chart.panels[0].marks, vec![(3.0, "case level".to_owned())]);
         let svg = String::from_utf8(render(&chart)).expect("utf-8");
         for label in [
             "level of headwater (m)",
             "force (kN)",
             "moment (kN·m)",
-            "uplift",
             "about hinge",
+            "case level",
         ] {
             assert!(has_text(&svg, label), "missing {label}");
         }
+        assert!(!has_text(&svg, "uplift"));
+        // Levels in a datum and in feet: the mesh origin at 100 m; 3 m → 103 m = 337.93 ft.
+        let us = Units::of(crate::report::units::UnitSystem::Us).with_datum(100.0);
+        let chart = sweep_chart("wall.stl", "normal", None, &steps, Some(3.0), &us);
+        assert!((chart.panels[0].marks[0].0 - 103.0 / 0.3048).abs() < 1e-9);
+        assert_eq!(chart.panels[0].x_label, "swept level (ft)");
         // Round trip through the result document's JSON.
         let v = json!({"level": 2.0, "force": [1.0, 2.0, 3.0], "moment": [4.0, 5.0, 6.0],
                        "uplift": 7.0, "downthrust": 0.0, "wetted_area": 1.0,
@@ -834,16 +925,16 @@ mod tests {
     }
 
     #[test]
-    fn user_names_are_escaped_and_prefixes_follow_the_magnitude() {
+    fn user_names_are_escaped_and_round_off_is_drawn_as_zero() {
         let chart = Chart {
             title: "<script>".to_owned(),
             panels: vec![Panel {
                 title: "a & b".to_owned(),
                 x_label: "level (m)".to_owned(),
-                quantity: Quantity::Force,
+                y_label: "force (kN)".to_owned(),
                 series: vec![Series {
                     label: "</text>".to_owned(),
-                    points: vec![(0.0, 2.0e7), (1.0, f64::NAN), (2.0, 3.0e7)],
+                    points: vec![(0.0, 2.0e4), (1.0, f64::NAN), (2.0, 3.0e4)],
                 }],
                 marks: Vec::new(),
                 integer_x: false,
@@ -854,18 +945,15 @@ mod tests {
         let svg = String::from_utf8(render(&chart)).expect("utf-8");
         assert!(!svg.contains("<script>") && !svg.contains("a & b"));
         assert!(has_text(&svg, "&lt;/text&gt;"));
-        assert!(has_text(&svg, "force (MN)"));
+        assert!(has_text(&svg, "force (kN)"));
         // Round-off below the noise level is drawn as zero, not blown up to fill a panel.
         let mut quiet = chart.clone();
         quiet.panels[0].series[0].points = vec![(0.0, 3e-10), (10.0, -2e-10), (20.0, 1e-10)];
         quiet.panels[0].noise = 1e-3;
         let svg = String::from_utf8(render(&quiet)).expect("utf-8");
-        assert!(has_text(&svg, "1.0") && has_text(&svg, "force (N)"));
+        assert!(has_text(&svg, "1.0"));
         quiet.panels[0].noise = 0.0;
         let svg = String::from_utf8(render(&quiet)).expect("utf-8");
         assert!(!has_text(&svg, "1.0"));
-        assert_eq!(prefix(999.0), (1.0, ""));
-        assert_eq!(prefix(1000.0), (1e3, "k"));
-        assert_eq!(prefix(0.0), (1.0, ""));
     }
 }

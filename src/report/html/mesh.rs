@@ -119,7 +119,7 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: 
 
     changes(s, &lines, u);
 
-    let history = svg::history_chart(&m.mesh, log);
+    let history = svg::history_chart(&m.mesh, log, r["inputs"]["up"].as_str(), u);
     match history {
         Some(chart) if lines.len() >= 2 => {
             s.push_str("<h3>Load history</h3>\n<figure>");
@@ -150,11 +150,21 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: 
         };
         let steps: Vec<SweepPoint> = sweep.iter().filter_map(SweepPoint::from_json).collect();
         let name = c["name"].as_str().unwrap_or("?");
+        let swept = c["sweep_governing"]["liquid"].as_str();
+        let level = c["liquids"]
+            .as_array()
+            .into_iter()
+            .flatten()
+            .find(|l| swept.is_some() && l["name"].as_str() == swept)
+            .and_then(|l| l["level"].as_f64())
+            .filter(|_| !shared);
         let chart = svg::sweep_chart(
             &m.mesh,
             if shared { "every case" } else { name },
-            None,
+            swept,
             &steps,
+            level,
+            u,
         );
         let title = if shared {
             "every case (the same sweep)".to_owned()
