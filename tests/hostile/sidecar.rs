@@ -25,6 +25,8 @@ enum Kind {
     Array,
     /// `[x, y, z]`.
     Triple,
+    /// An array of numbers.
+    Numbers,
 }
 
 impl Kind {
@@ -44,6 +46,15 @@ impl Kind {
                 json!(true),
                 json!({}),
                 json!([1]),
+                json!(["x"]),
+                json!([null]),
+                json!([[]]),
+            ],
+            Kind::Numbers => vec![
+                json!(1),
+                json!("x"),
+                json!(true),
+                json!({}),
                 json!(["x"]),
                 json!([null]),
                 json!([[]]),
@@ -123,6 +134,34 @@ const KEYS: &[(Base, &str, Kind)] = &[
     (Base::Shorthand, "datum", Kind::Object),
     (Base::Shorthand, "datum.name", Kind::Text),
     (Base::Shorthand, "datum.mesh_origin_elevation", Kind::Number),
+    (Base::Shorthand, "floating", Kind::Object),
+    (Base::Shorthand, "floating.mass", Kind::Number),
+    (Base::Shorthand, "floating.centre_of_gravity", Kind::Triple),
+    (Base::Shorthand, "floating.liquid", Kind::Text),
+    (Base::Shorthand, "floating.length_axis", Kind::Text),
+    (Base::Shorthand, "floating.heel_angles", Kind::Numbers),
+    (Base::Shorthand, "floating.criteria", Kind::Text),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments",
+        Kind::Named,
+    ),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments.tank",
+        Kind::Object,
+    ),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments.tank.moment_m4",
+        Kind::Number,
+    ),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments.tank.density",
+        Kind::Number,
+    ),
+    (Base::Shorthand, "cases[0].floating", Kind::Object),
     (Base::Named, "liquids", Kind::Named),
     (Base::Named, "liquids.water", Kind::Object),
     (Base::Named, "liquids.water.level", Kind::Number),

@@ -189,7 +189,12 @@ fn the_box_of_the_published_example_follows_the_wall_sided_formula_until_the_dec
     // The note's derived maximum, 1.17887 m near 45.5°, lies between grid points: the
     // grid's is at 45° or 46°, no larger, and within ½·|GZ''|·(0.5°)² of it.
     assert!(s.max_gz_m <= 1.17887 + 1e-6, "{}", s.max_gz_m);
-    assert!((s.max_gz_m - 1.17887).abs() < 5e-4, "{} {}", s.max_gz_m, s.angle_of_max_gz_deg);
+    assert!(
+        (s.max_gz_m - 1.17887).abs() < 5e-4,
+        "{} {}",
+        s.max_gz_m,
+        s.angle_of_max_gz_deg
+    );
     assert!(s.angle_of_max_gz_deg == 45.0 || s.angle_of_max_gz_deg == 46.0);
 }
 
