@@ -190,14 +190,18 @@ fn shorthand() -> Value {
         "moment_about": [0, 0, 0],
         "axes": {"hinge": {"point": [0, 0, 0], "direction": [1, 0, 0]}},
         "cases": [
-            {"name": "flood", "level": 0.0, "surface_pressure": 10, "density": 1000},
+            {"name": "flood", "level": 0.0, "surface_pressure": 10, "density": 1000,
+             "floating": {"mass": 2000}},
             {"name": "sea", "preset": "sea_water"}
         ],
         "sweep": {"liquid": "liquid", "from": -2, "to": 0, "step": 0.5},
         "flotation": {"resisting": {"weight": 1000}, "required_factor": 1.3},
         "field_exports": "auto",
         "sidecar_units": "m",
-        "datum": {"name": "site datum", "mesh_origin_elevation": 0.0}
+        "datum": {"name": "site datum", "mesh_origin_elevation": 0.0},
+        "floating": {"mass": 12000, "centre_of_gravity": [2, -0.5, -2.5], "liquid": "liquid",
+            "length_axis": "+x", "heel_angles": [0, 10], "criteria": "imo-2008-is-code-general",
+            "free_surface_moments": {"tank": {"moment_m4": 1.0, "density": 1000}}}
     })
 }
 

@@ -405,45 +405,54 @@ impl<'a> Solver<'a> {
             guess = c;
             points.push(self.attitude(n, e, c, th, sec));
         }
-        // Stable roots: the trimming lever falls through zero as ϑ grows (dm/dϑ = −GM_L).
-        let mut brackets: Vec<(Attitude, Attitude)> = points
+        // Roots: sign changes of the trimming lever. Stable ones (it falls through zero
+        // as ϑ grows, dm/dϑ = −GM_L) first, then the least |trim|; an unstable balance is
+        // returned only where no stable one exists (flagged by its GM_L).
+        let mut brackets: Vec<(bool, Attitude, Attitude)> = points
             .windows(2)
-            .filter(|w| w[0].trimming_lever_m > 0.0 && w[1].trimming_lever_m <= 0.0)
-            .map(|w| (w[0], w[1]))
+            .filter_map(|w| {
+                let (ga, gb) = (w[0].trimming_lever_m, w[1].trimming_lever_m);
+                if ga > 0.0 && gb <= 0.0 {
+                    Some((true, w[0], w[1]))
+                } else if ga <= 0.0 && gb > 0.0 {
+                    Some((false, w[0], w[1]))
+                } else {
+                    None
+                }
+            })
             .collect();
         brackets.sort_by(|x, y| {
-            let mx = (x.0.trim_param_rad + x.1.trim_param_rad).abs();
-            let my = (y.0.trim_param_rad + y.1.trim_param_rad).abs();
-            mx.total_cmp(&my)
+            let mx = (x.1.trim_param_rad + x.2.trim_param_rad).abs();
+            let my = (y.1.trim_param_rad + y.2.trim_param_rad).abs();
+            y.0.cmp(&x.0).then(mx.total_cmp(&my))
         });
-        for (mut a, mut b) in brackets {
+        for (stable, mut a, mut b) in brackets {
             for _ in 0..MAX_HEEL_ITER {
                 let (ma, mb) = (a.trimming_lever_m, b.trimming_lever_m);
-                let mut th =
-                    a.trim_param_rad + (b.trim_param_rad - a.trim_param_rad) * ma / (ma - mb);
                 let lo = a.trim_param_rad.min(b.trim_param_rad);
                 let hi = a.trim_param_rad.max(b.trim_param_rad);
+                let mut th =
+                    a.trim_param_rad + (b.trim_param_rad - a.trim_param_rad) * ma / (ma - mb);
                 if !(th > lo && th < hi) {
                     th = 0.5 * (lo + hi);
                 }
+                if !(th > lo && th < hi) {
+                    break;
+                }
                 let (n, e) = self.plane(phi_deg, th);
-                let (c, sec) =
-                    self.volume_at(&n, &e, n.dot(&a.section.centre_of_flotation), phi_deg)?;
+                let guess = n.dot(&a.section.centre_of_flotation);
+                let (c, sec) = self.volume_at(&n, &e, guess, phi_deg)?;
                 let p = self.attitude(n, e, c, th, sec);
                 if p.trimming_lever_m.abs() <= self.tol_m {
-                    if p.gm_l_m > -self.tol_m {
+                    if !stable || p.gm_l_m > -self.tol_m {
                         return Ok(Some(p));
                     }
                     break;
                 }
-                if p.trimming_lever_m > 0.0 {
+                if (p.trimming_lever_m > 0.0) == (a.trimming_lever_m > 0.0) {
                     a = p;
                 } else {
                     b = p;
-                }
-                // Keep the bracket from stalling on one side (Illinois-style halving).
-                if (hi - lo) < 1e-15 {
-                    break;
                 }
             }
         }
