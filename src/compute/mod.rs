@@ -22,6 +22,7 @@
 mod cases;
 mod field;
 mod finite;
+mod floating;
 mod flotation;
 mod plausible;
 mod prepare;
@@ -30,6 +31,7 @@ mod sweep;
 mod wet;
 
 pub use field::{FacetRow, Field, FieldPiece, field};
+pub use floating::{FLOATING_CAUTION, FloatingResult};
 pub use result::{
     AxisMoment, CaseResult, DatumEcho, FlotationCheck, Inputs, LineOut, LiquidEcho, Loads,
     MeshResult, PartInputs, PartResult, PresetEcho, SweepStep,
@@ -90,6 +92,8 @@ pub enum ComputeError {
     },
     #[error("the mesh has no facets")]
     Empty,
+    #[error("floating: {message}")]
+    Floating { message: String },
     #[error(
         "the mesh has {facets} facets, more than the {} the topology can number",
         crate::limits::FACETS_CEILING
@@ -172,8 +176,19 @@ pub fn compute_model(
             .flotation
             .as_ref()
             .map(|f| flotation_check(f, &loads, 1e-12 * (loads.uplift + loads.downthrust)));
+        let floating = match &case.floating {
+            None => None,
+            Some(f) => {
+                let density = case.liquids[f.liquid]
+                    .layers
+                    .first()
+                    .map_or(0.0, |l| l.density_kg_m3);
+                Some(floating::floating(&prep, sidecar, f, density)?)
+            }
+        };
         cases.push(CaseResult {
             name: case.name.clone(),
+            floating,
             liquids: sidecar
                 .liquids
                 .iter()

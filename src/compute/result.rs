@@ -100,6 +100,9 @@ pub struct CaseResult {
     pub sweep_governing: Option<Governing>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub flotation: Option<FlotationCheck>,
+    /// A freely floating body: equilibrium, righting levers and stability.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub floating: Option<super::FloatingResult>,
 }
 
 /// One part's results in a case.

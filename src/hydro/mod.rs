@@ -21,6 +21,7 @@
 //!   side, or nowhere (dry).
 
 mod clip;
+pub mod float;
 mod integrate;
 mod loads;
 mod pressure;

@@ -154,6 +154,9 @@ pub enum SidecarErrorKind {
         "unknown factor_preset \"{name}\": the flotation presets are {known} (see config/flotation.json), or give \"required_factor\": <number>"
     )]
     UnknownFactorPreset { name: String, known: String },
+    /// A rule of the `floating` key; the message says which and how to fix it.
+    #[error("{0}")]
+    Floating(String),
     #[error(
         "a string of {len} bytes is longer than the {limit} bytes a sidecar string may have; keys, names and keywords are short"
     )]

@@ -25,10 +25,12 @@
 //! - `water.rs` and `flotation.rs`: the liquid and flotation factor presets.
 
 mod error;
+mod floating;
 mod flotation;
 mod liquids;
 mod project;
 mod raw;
+mod stability;
 mod types;
 mod validate;
 mod water;
@@ -36,9 +38,10 @@ mod water;
 pub use error::{SidecarError, SidecarErrorKind, quoted_list};
 pub use flotation::{FactorPreset, factor_presets};
 pub use project::{PROJECT_FILE, Project, ProjectError, parse_project};
+pub use stability::{CriteriaSet, CriterionPreset, criteria_sets, find_criteria};
 pub use types::{
-    AUTO_FIELD_EXPORT_FACETS, Case, Datum, FieldExports, Flotation, LengthUnit, LiquidChoice,
-    NamedAxis, NamedLiquid, PartRule, PartRules, Sidecar, Sweep, UnassignedPart,
+    AUTO_FIELD_EXPORT_FACETS, Case, Datum, FieldExports, Floating, Flotation, LengthUnit,
+    LiquidChoice, NamedAxis, NamedLiquid, PartRule, PartRules, Sidecar, Sweep, UnassignedPart,
 };
 pub use water::{LiquidPreset, liquid_presets, water_density_cipm};
 
@@ -184,6 +187,7 @@ mod tests {
             [Case {
                 name: "default".into(),
                 liquids: vec![Liquid::uniform(5.0, 1000.0)],
+                floating: None,
             }]
         );
         assert_eq!(s.cases[0].liquids[0].surface_pressure_pa, 0.0);

@@ -46,6 +46,8 @@ pub(super) struct RawSidecar {
     pub sweep: Option<RawSweep>,
     #[serde(default, deserialize_with = "some")]
     pub flotation: Option<RawFlotation>,
+    #[serde(default, deserialize_with = "some")]
+    pub floating: Option<RawFloating>,
     #[serde(default, deserialize_with = "keyword")]
     pub field_exports: Option<FieldExports>,
     #[serde(default, deserialize_with = "keyword")]
@@ -126,6 +128,36 @@ pub(super) struct RawCase {
     pub preset: Option<String>,
     #[serde(default, deserialize_with = "some")]
     pub liquids: Option<Named<RawLiquid>>,
+    #[serde(default, deserialize_with = "some")]
+    pub floating: Option<RawFloating>,
+}
+
+/// The `floating` object (top level, or a case's override of any of its keys).
+#[derive(Clone, Debug, Default, Deserialize)]
+#[serde(remote = "Self", deny_unknown_fields)]
+pub(super) struct RawFloating {
+    #[serde(default, deserialize_with = "some")]
+    pub mass: Option<f64>,
+    #[serde(default, deserialize_with = "some")]
+    pub centre_of_gravity: Option<Triple>,
+    #[serde(default, deserialize_with = "some")]
+    pub liquid: Option<String>,
+    #[serde(default, deserialize_with = "keyword")]
+    pub length_axis: Option<UpAxis>,
+    #[serde(default, deserialize_with = "some")]
+    pub heel_angles: Option<Vec<f64>>,
+    #[serde(default, deserialize_with = "some")]
+    pub criteria: Option<String>,
+    #[serde(default, deserialize_with = "some")]
+    pub free_surface_moments: Option<Named<RawTank>>,
+}
+
+/// One slack tank under `floating.free_surface_moments`.
+#[derive(Clone, Debug, Deserialize)]
+#[serde(remote = "Self", deny_unknown_fields)]
+pub(super) struct RawTank {
+    pub moment_m4: f64,
+    pub density: f64,
 }
 
 /// The `sweep` object.
@@ -183,12 +215,14 @@ object_only!(
     RawSweep: "a sweep object such as {\"from\": 2.0, \"to\": 8.0, \"step\": 0.25}",
     RawFlotation: "a flotation object such as {\"resisting\": {\"weight\": 1.0e6}, \"required_factor\": 1.3}",
     RawDatum: "a datum object such as {\"name\": \"site datum\", \"mesh_origin_elevation\": 102.5}",
+    RawFloating: "a floating object such as {\"mass\": 1.5e5, \"centre_of_gravity\": [0, 0, 1.8]}",
+    RawTank: "a tank object such as {\"moment_m4\": 12.5, \"density\": 1025}",
 );
 
 /// A JSON object whose keys are names chosen by the user, in the order of the file.
 ///
 /// Unlike a map type it refuses a repeated name instead of keeping the last one.
-#[derive(Debug)]
+#[derive(Clone, Debug)]
 pub(super) struct Named<T>(pub Vec<(String, T)>);
 
 impl<'de, T: Deserialize<'de>> Deserialize<'de> for Named<T> {
@@ -218,7 +252,7 @@ impl<'de, T: Deserialize<'de>> Deserialize<'de> for Named<T> {
 }
 
 /// A point or vector `[x, y, z]`.
-#[derive(Debug)]
+#[derive(Clone, Debug)]
 pub(super) struct Triple(pub [f64; 3]);
 
 impl<'de> Deserialize<'de> for Triple {

@@ -105,7 +105,12 @@ impl Sidecar {
 
     /// [`Sidecar::stated_elevation`] with three decimals.
     pub fn shown_elevation(&self, z_m: f64) -> String {
-        crate::report::units::num(self.stated_elevation(z_m), 3)
+        // Three decimals, and no minus sign on a value that rounds to zero.
+        let s = format!("{:.3}", self.stated_elevation(z_m));
+        match s.strip_prefix('-') {
+            Some(rest) if rest.chars().all(|c| c == '0' || c == '.') => rest.to_owned(),
+            _ => s,
+        }
     }
 
     /// Every length of the sidecar moved from how it was written (in
@@ -193,6 +198,29 @@ pub struct NamedLiquid {
 pub struct Case {
     pub name: String,
     pub liquids: Vec<Liquid>,
+    /// The floating body of this case (the top-level `floating` with the case's own
+    /// keys over it), when the mesh floats freely.
+    pub floating: Option<Floating>,
+}
+
+/// A freely floating body (CONTRACT.md, "Pinned extension: floating bodies").
+#[derive(Clone, Debug, PartialEq)]
+pub struct Floating {
+    /// kg, > 0.
+    pub mass_kg: f64,
+    /// m, mesh axes after unit scaling.
+    pub centre_of_gravity_m: [f64; 3],
+    /// Index into the sidecar's liquids (one uniform density).
+    pub liquid: usize,
+    /// The axis the body heels about; `None`: the horizontal axis of the larger
+    /// bounding-box extent, chosen when the mesh is known.
+    pub length_axis: Option<UpAxis>,
+    /// Degrees, each in [−90, 90].
+    pub heel_angles_deg: Vec<f64>,
+    /// A named set of criteria from `config/stability.json`.
+    pub criteria: Option<super::stability::CriteriaSet>,
+    /// Slack tanks: name, second moment of the free surface (m⁴), liquid density (kg/m³).
+    pub free_surface: Vec<(String, f64, f64)>,
 }
 
 /// Which liquid wets a part.

@@ -5,6 +5,7 @@
 //! [`super::parse_sidecar`]); a broken rule comes back as a `Problem` at its key path.
 
 use super::error::{Problem, problem, quoted_list};
+use super::floating;
 use super::liquids::{Partial, Resolver, Spec, partial};
 use super::raw::{KeyPath, RawLiquid, RawSidecar};
 use super::types::sweep_steps;
@@ -106,10 +107,24 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
 
     let no_overrides = vec![Partial::default(); names.len()];
     let cases = match &raw.cases {
-        None => vec![Case {
-            name: DEFAULT_CASE_NAME.to_owned(),
-            liquids: resolver.resolve(&no_overrides, None)?,
-        }],
+        None => {
+            let liquids = resolver.resolve(&no_overrides, None)?;
+            let floating = match &raw.floating {
+                None => None,
+                Some(f) => Some(floating::validate_floating(
+                    f,
+                    &root.key("floating"),
+                    &names,
+                    &liquids,
+                    up,
+                )?),
+            };
+            vec![Case {
+                name: DEFAULT_CASE_NAME.to_owned(),
+                liquids,
+                floating,
+            }]
+        }
         Some(list) if list.is_empty() => {
             return Err(problem(
                 root.key("cases"),
@@ -172,9 +187,20 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
                     overrides[i] = partial(Spec::of_liquid(l), &at, g)?;
                 }
                 let liquids = resolver.resolve(&overrides, Some((name, &key)))?;
+                let merged = floating::merge(raw.floating.as_ref(), c.floating.as_ref());
+                let at = if c.floating.is_some() {
+                    key.key("floating")
+                } else {
+                    root.key("floating")
+                };
+                let floating = match merged {
+                    None => None,
+                    Some(f) => Some(floating::validate_floating(&f, &at, &names, &liquids, up)?),
+                };
                 cases.push(Case {
                     name: name.to_owned(),
                     liquids,
+                    floating,
                 });
             }
             cases

@@ -25,6 +25,8 @@ enum Kind {
     Array,
     /// `[x, y, z]`.
     Triple,
+    /// An array of numbers.
+    Numbers,
 }
 
 impl Kind {
@@ -44,6 +46,15 @@ impl Kind {
                 json!(true),
                 json!({}),
                 json!([1]),
+                json!(["x"]),
+                json!([null]),
+                json!([[]]),
+            ],
+            Kind::Numbers => vec![
+                json!(1),
+                json!("x"),
+                json!(true),
+                json!({}),
                 json!(["x"]),
                 json!([null]),
                 json!([[]]),
@@ -123,6 +134,34 @@ const KEYS: &[(Base, &str, Kind)] = &[
     (Base::Shorthand, "datum", Kind::Object),
     (Base::Shorthand, "datum.name", Kind::Text),
     (Base::Shorthand, "datum.mesh_origin_elevation", Kind::Number),
+    (Base::Shorthand, "floating", Kind::Object),
+    (Base::Shorthand, "floating.mass", Kind::Number),
+    (Base::Shorthand, "floating.centre_of_gravity", Kind::Triple),
+    (Base::Shorthand, "floating.liquid", Kind::Text),
+    (Base::Shorthand, "floating.length_axis", Kind::Text),
+    (Base::Shorthand, "floating.heel_angles", Kind::Numbers),
+    (Base::Shorthand, "floating.criteria", Kind::Text),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments",
+        Kind::Named,
+    ),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments.tank",
+        Kind::Object,
+    ),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments.tank.moment_m4",
+        Kind::Number,
+    ),
+    (
+        Base::Shorthand,
+        "floating.free_surface_moments.tank.density",
+        Kind::Number,
+    ),
+    (Base::Shorthand, "cases[0].floating", Kind::Object),
     (Base::Named, "liquids", Kind::Named),
     (Base::Named, "liquids.water", Kind::Object),
     (Base::Named, "liquids.water.level", Kind::Number),
@@ -151,14 +190,18 @@ fn shorthand() -> Value {
         "moment_about": [0, 0, 0],
         "axes": {"hinge": {"point": [0, 0, 0], "direction": [1, 0, 0]}},
         "cases": [
-            {"name": "flood", "level": 0.0, "surface_pressure": 10, "density": 1000},
+            {"name": "flood", "level": 0.0, "surface_pressure": 10, "density": 1000,
+             "floating": {"mass": 2000}},
             {"name": "sea", "preset": "sea_water"}
         ],
         "sweep": {"liquid": "liquid", "from": -2, "to": 0, "step": 0.5},
         "flotation": {"resisting": {"weight": 1000}, "required_factor": 1.3},
         "field_exports": "auto",
         "sidecar_units": "m",
-        "datum": {"name": "site datum", "mesh_origin_elevation": 0.0}
+        "datum": {"name": "site datum", "mesh_origin_elevation": 0.0},
+        "floating": {"mass": 12000, "centre_of_gravity": [2, -0.5, -2.5], "liquid": "liquid",
+            "length_axis": "+x", "heel_angles": [0, 10], "criteria": "imo-2008-is-code-general",
+            "free_surface_moments": {"tank": {"moment_m4": 1.0, "density": 1000}}}
     })
 }
 

@@ -410,6 +410,51 @@ pub fn box_solid(min: Point, max: Point, n: usize) -> Vec<Triangle> {
     out
 }
 
+/// A closed right prism on a regular `segments`-gon (a faceted solid cylinder) along the
+/// coordinate axis `axis` (0 = x, 1 = y, 2 = z; larger counts as z), wound outward.
+///
+/// The base polygon is centred on `base`, inscribed in the circle of `radius`, vertex `j`
+/// at the angle `2πj/segments` from the next coordinate axis after `axis` (for `axis` = z:
+/// from +x towards +y); the prism runs `length` along `+axis` (a negative length runs the
+/// other way and stays outward). The end faces are fans about their centres: `4·segments`
+/// facets. Volume: [`polygon_area`]`(radius, segments) · |length|`.
+pub fn cylinder_solid(
+    base: Point,
+    axis: usize,
+    radius: f64,
+    length: f64,
+    segments: usize,
+) -> Vec<Triangle> {
+    let n = segments.max(3);
+    let k = axis.min(2);
+    let (a, b) = ((k + 1) % 3, (k + 2) % 3);
+    let ring = |j: usize, h: f64| {
+        let (c, s) = unit_circle(j, n);
+        let mut p = base;
+        p[k] += h;
+        p[a] += radius * c;
+        p[b] += radius * s;
+        p
+    };
+    let mut top_c = base;
+    top_c[k] += length;
+    let flip = length < 0.0;
+    let mut out = Vec::new();
+    for j in 0..n {
+        let (b0, b1) = (ring(j, 0.0), ring(j + 1, 0.0));
+        let (t0, t1) = (ring(j, length), ring(j + 1, length));
+        push_quad(&mut out, b0, b1, t1, t0, flip);
+        if flip {
+            out.push([top_c, t1, t0]);
+            out.push([base, b0, b1]);
+        } else {
+            out.push([top_c, t0, t1]);
+            out.push([base, b1, b0]);
+        }
+    }
+    out
+}
+
 /// A closed straight tube of rectangular cross-section along `x` (a box culvert barrel or
 /// a hollow section), as one shell of genus 1, wound outward (away from the material,
 /// so the bore's facets face the tube's axis).
