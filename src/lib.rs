@@ -180,3 +180,136 @@ fn calc(args: &CalcArgs) -> ExitCode {
         ExitCode::SUCCESS
     }
 }
+
+/// The rules of the house (DEVELOPERS.md, "Architecture"), checked on the source itself.
+#[cfg(test)]
+mod house {
+    use std::collections::{BTreeMap, BTreeSet};
+    use std::path::{Path, PathBuf};
+
+    /// Every `.rs` file under `src/`.
+    fn sources() -> Vec<PathBuf> {
+        fn walk(dir: &Path, out: &mut Vec<PathBuf>) {
+            for e in std::fs::read_dir(dir).expect("src/ is readable") {
+                let p = e.expect("an entry").path();
+                if p.is_dir() {
+                    walk(&p, out);
+                } else if p.extension().is_some_and(|x| x == "rs") {
+                    out.push(p);
+                }
+            }
+        }
+        let mut out = Vec::new();
+        walk(&Path::new(env!("CARGO_MANIFEST_DIR")).join("src"), &mut out);
+        out.sort();
+        out
+    }
+
+    /// The text of a file before its `#[cfg(test)]` module.
+    fn product_part(path: &Path) -> String {
+        let text = std::fs::read_to_string(path).expect("a source file");
+        match text.find("#[cfg(test)]") {
+            Some(i) => text[..i].to_owned(),
+            None => text,
+        }
+    }
+
+    #[test]
+    fn no_source_file_is_over_900_lines_before_its_tests() {
+        for path in sources() {
+            let lines = product_part(&path).lines().count();
+            assert!(
+                lines <= 900,
+                "{} has {lines} lines before its tests",
+                path.display()
+            );
+        }
+    }
+
+    #[test]
+    fn the_top_level_modules_import_each_other_in_one_direction() {
+        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
+        let mut uses: BTreeMap<String, BTreeSet<String>> = BTreeMap::new();
+        for path in sources() {
+            let rel = path.strip_prefix(&src).expect("under src/");
+            let top = rel
+                .components()
+                .next()
+                .map(|c| {
+                    c.as_os_str()
+                        .to_string_lossy()
+                        .trim_end_matches(".rs")
+                        .to_owned()
+                })
+                .expect("a name");
+            if top == "lib" || top == "main" {
+                continue;
+            }
+            let text: String = product_part(&path)
+                .lines()
+                .map(|l| l.split("//").next().unwrap_or(""))
+                .collect::<Vec<_>>()
+                .join("\n");
+            let entry = uses.entry(top.clone()).or_default();
+            for (i, _) in text.match_indices("crate::") {
+                let rest = &text[i + "crate::".len()..];
+                if let Some(group) = rest.strip_prefix('{') {
+                    let group = &group[..group.find('}').unwrap_or(group.len())];
+                    for item in group.split(',') {
+                        let name: String = item
+                            .trim()
+                            .chars()
+                            .take_while(|c| c.is_alphanumeric() || *c == '_')
+                            .collect();
+                        if !name.is_empty() && name != top && name != "self" {
+                            entry.insert(name);
+                        }
+                    }
+                } else {
+                    let name: String = rest
+                        .chars()
+                        .take_while(|c| c.is_alphanumeric() || *c == '_')
+                        .collect();
+                    if !name.is_empty() && name != top {
+                        entry.insert(name);
+                    }
+                }
+            }
+        }
+        // Whether `to` can be reached from `from` along the imports.
+        let reaches = |from: &str, to: &str| {
+            let mut seen = BTreeSet::new();
+            let mut stack = vec![from.to_owned()];
+            while let Some(m) = stack.pop() {
+                for n in uses.get(&m).into_iter().flatten() {
+                    if n == to {
+                        return true;
+                    }
+                    if seen.insert(n.clone()) {
+                        stack.push(n.clone());
+                    }
+                }
+            }
+            false
+        };
+        for (m, used) in &uses {
+            for u in used {
+                assert!(
+                    !reaches(u, m),
+                    "{m} imports {u}, and {u} leads back to {m}: {uses:?}"
+                );
+            }
+        }
+        // The pure core stands alone, and the results room knows nothing of the rest.
+        assert!(
+            uses["hydro"].is_empty(),
+            "hydro imports {:?}",
+            uses["hydro"]
+        );
+        assert!(
+            uses["results"].is_empty(),
+            "results imports {:?}",
+            uses["results"]
+        );
+    }
+}
