@@ -36,7 +36,7 @@ pub use result::{
     AxisMoment, CaseResult, DatumEcho, FlotationCheck, Inputs, LineOut, LiquidEcho, Loads,
     MeshResult, PartInputs, PartResult, PresetEcho, SweepStep,
 };
-pub use sweep::{Extreme, Governing, governing};
+pub use sweep::{Extreme, FlotationLimit, Governing, governing};
 
 use thiserror::Error;
 
@@ -47,7 +47,7 @@ use cases::{assemble, echo, run};
 use finite::check_finite;
 use flotation::flotation_check;
 use prepare::{Prepared, prepare};
-use sweep::{diagonal, sweep_steps};
+use sweep::{diagonal, flotation_limit, sweep_steps};
 
 /// Version of the result document's layout.
 pub const SCHEMA: u32 = 1;
@@ -168,10 +168,16 @@ pub fn compute_model(
             None => None,
             Some(sw) => Some(sweep_steps(&prep, sidecar, case, sw, &accs)?),
         };
-        let sweep_governing = sweep
+        let mut sweep_governing = sweep
             .as_deref()
             .zip(sidecar.sweep.as_ref())
             .map(|(steps, sw)| governing(&sidecar.liquids[sw.liquid].name, steps, diagonal(&prep)));
+        if let (Some(g), Some(steps), Some(sw)) =
+            (&mut sweep_governing, sweep.as_deref(), &sidecar.sweep)
+            && sidecar.flotation.is_some()
+        {
+            g.flotation_limit = Some(flotation_limit(&prep, sidecar, case, sw, &accs, steps)?);
+        }
         let flotation = sidecar
             .flotation
             .as_ref()

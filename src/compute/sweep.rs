@@ -22,53 +22,11 @@ pub(super) fn sweep_steps(
     sw: &Sweep,
     accs: &[PartAccum],
 ) -> Result<Vec<SweepStep>, ComputeError> {
-    let closed = prep.wet.closed;
-    let mut fixed = PartAccum::default();
-    let mut parts = Vec::new();
-    for (i, (p, (liquid, _))) in prep.parts.iter().zip(&prep.wet.part_setup).enumerate() {
-        let wet = *liquid == Some(sw.liquid);
-        // Volumes are measured below the part's own liquid, or the first one (see `run`).
-        let volume = closed && liquid.unwrap_or(0) == sw.liquid;
-        if wet || volume {
-            parts.push(hydro::SweepPart {
-                facets: p.facets.clone(),
-                wet,
-                volume,
-            });
-        } else {
-            fixed = fixed.merge(&accs[i]);
-        }
-    }
     let levels = sw.levels();
-    let swept = hydro::SweptLiquid {
-        liquid: &case.liquids[sw.liquid],
-        g_m_s2: sidecar.gravity_m_s2,
-        origin_z: prep.centre.z,
-    };
-    let sums = hydro::sweep(
-        &prep.tris,
-        &parts,
-        &prep.wet.wetting,
-        &prep.wet.vol_sign,
-        &swept,
-        &levels,
-    )
-    .map_err(|source| ComputeError::Liquid {
-        case: case.name.clone(),
-        liquid: sidecar.liquids[sw.liquid].name.clone(),
-        source,
-    })?;
-    let loads: Vec<Loads> = sums
-        .iter()
-        .map(|acc| loads_of(prep, &fixed.merge(acc), closed, prep.mesh_plane.as_ref()))
-        .collect();
+    let loads = loads_at(prep, sidecar, case, sw, accs, &levels)?;
     // A net uplift within round-off of the sweep's largest loads counts as none (at a level
     // through a body's base the sums cancel to a few ulps, which would give FS ≈ 1e16).
-    let noise = 1e-12
-        * loads
-            .iter()
-            .map(|l| l.uplift + l.downthrust)
-            .fold(0.0, f64::max);
+    let noise = uplift_noise(&loads);
     Ok(levels
         .iter()
         .zip(loads)
@@ -87,6 +45,135 @@ pub(super) fn sweep_steps(
             axis_moments: l.axis_moments,
         })
         .collect())
+}
+
+/// Round-off of a net uplift among these loads: 1e-12 of their largest uplift + downthrust.
+fn uplift_noise(loads: &[Loads]) -> f64 {
+    1e-12
+        * loads
+            .iter()
+            .map(|l| l.uplift + l.downthrust)
+            .fold(0.0, f64::max)
+}
+
+/// The case's loads with the swept liquid at each of `levels` (m): the parts it does not
+/// reach keep the case's sums (`accs`), the others go through [`hydro::sweep`] in one pass.
+fn loads_at(
+    prep: &Prepared,
+    sidecar: &Sidecar,
+    case: &Case,
+    sw: &Sweep,
+    accs: &[PartAccum],
+    levels: &[f64],
+) -> Result<Vec<Loads>, ComputeError> {
+    let closed = prep.wet.closed;
+    let mut fixed = PartAccum::default();
+    let mut parts = Vec::new();
+    for (i, (p, (liquid, _))) in prep.parts.iter().zip(&prep.wet.part_setup).enumerate() {
+        let wet = *liquid == Some(sw.liquid);
+        // Volumes are measured below the part's own liquid, or the first one (see `run`).
+        let volume = closed && liquid.unwrap_or(0) == sw.liquid;
+        if wet || volume {
+            parts.push(hydro::SweepPart {
+                facets: p.facets.clone(),
+                wet,
+                volume,
+            });
+        } else {
+            fixed = fixed.merge(&accs[i]);
+        }
+    }
+    let swept = hydro::SweptLiquid {
+        liquid: &case.liquids[sw.liquid],
+        g_m_s2: sidecar.gravity_m_s2,
+        origin_z: prep.centre.z,
+    };
+    let sums = hydro::sweep(
+        &prep.tris,
+        &parts,
+        &prep.wet.wetting,
+        &prep.wet.vol_sign,
+        &swept,
+        levels,
+    )
+    .map_err(|source| ComputeError::Liquid {
+        case: case.name.clone(),
+        liquid: sidecar.liquids[sw.liquid].name.clone(),
+        source,
+    })?;
+    Ok(sums
+        .iter()
+        .map(|acc| loads_of(prep, &fixed.merge(acc), closed, prep.mesh_plane.as_ref()))
+        .collect())
+}
+
+/// Where the factor of safety against flotation falls to the required one as the swept
+/// level rises: found exactly between the first two steps that bracket it.
+#[derive(Clone, Copy, Debug, Serialize, PartialEq)]
+pub struct FlotationLimit {
+    /// m: the level at which the net uplift equals Σ resisting / required factor (to a
+    /// relative 1e-12 of the bracket), or the sweep's first level when the factor is
+    /// already below the requirement there.
+    pub level: f64,
+    /// The factor the level is solved for.
+    pub required_factor: f64,
+    /// The sweep's two levels around it (m); equal when the factor is short from the start.
+    pub between: [f64; 2],
+}
+
+/// The level at which the factor of safety against flotation falls to the required one,
+/// or `None` when it stays at or above it over the whole sweep (or there is no check).
+///
+/// The net uplift U(z) of the case is continuous in the level; between the first pair of
+/// steps where FS = R / U goes from ≥ required (or no uplift) to < required, U(z) = R /
+/// required is solved by bisection on exact integrations of the case at trial levels
+/// (at most 80 halvings, to 1e-12 of the bracket).
+pub(super) fn flotation_limit(
+    prep: &Prepared,
+    sidecar: &Sidecar,
+    case: &Case,
+    sw: &Sweep,
+    accs: &[PartAccum],
+    steps: &[SweepStep],
+) -> Result<Option<FlotationLimit>, ComputeError> {
+    let Some(f) = &sidecar.flotation else {
+        return Ok(None);
+    };
+    let required = f.required_factor;
+    let short = |s: &SweepStep| s.flotation_factor.flatten().is_some_and(|fs| fs < required);
+    let Some(k) = steps.iter().position(short) else {
+        return Ok(None);
+    };
+    if k == 0 {
+        let z = steps[0].level;
+        return Ok(Some(FlotationLimit {
+            level: z,
+            required_factor: required,
+            between: [z, z],
+        }));
+    }
+    let resisting: f64 = f.resisting.iter().map(|(_, v)| v).sum();
+    // The net uplift at which FS equals the requirement.
+    let target = resisting / required;
+    let (mut lo, mut hi) = (steps[k - 1].level, steps[k].level);
+    let width = hi - lo;
+    for _ in 0..80 {
+        if hi - lo <= 1e-12 * width.max(f64::MIN_POSITIVE) {
+            break;
+        }
+        let mid = 0.5 * (lo + hi);
+        let l = &loads_at(prep, sidecar, case, sw, accs, &[mid])?[0];
+        if l.vertical_force.max(0.0) > target {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    Ok(Some(FlotationLimit {
+        level: 0.5 * (lo + hi),
+        required_factor: required,
+        between: [steps[k - 1].level, steps[k].level],
+    }))
 }
 
 /// The largest magnitude of one quantity over a sweep, with its sign, and the level.
@@ -119,6 +206,10 @@ pub struct Governing {
     /// uplift, and its level (null when no level has one; absent without a check).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub flotation_factor: Option<Option<Extreme>>,
+    /// With a flotation check: where the factor falls to the required one (null when it
+    /// never does over the sweep; absent without a check).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub flotation_limit: Option<Option<FlotationLimit>>,
 }
 
 /// The governing values of a sweep's steps; `extent_m` (the mesh's size) scales the
@@ -194,6 +285,7 @@ pub fn governing(liquid: &str, steps: &[SweepStep], extent_m: f64) -> Governing 
                 .find(|&(fs, _)| fs <= lowest * (1.0 + 1e-9))
                 .map(|(value, level)| Extreme { value, level })
         }),
+        flotation_limit: None,
     }
 }
 

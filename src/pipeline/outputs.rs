@@ -93,16 +93,24 @@ fn sweep_chart(
         .as_ref()
         .and_then(|s| sidecar.liquids.get(s.liquid))
         .map(|l| l.name.as_str());
-    let level = swept
-        .and_then(|name| case.liquids.iter().find(|l| l.name == name))
-        .map(|l| l.level);
+    let marks = svg::SweepMarks {
+        case_level: swept
+            .and_then(|name| case.liquids.iter().find(|l| l.name == name))
+            .map(|l| l.level),
+        required_factor: case.flotation.as_ref().map(|f| f.required_factor),
+        limit_level: case
+            .sweep_governing
+            .as_ref()
+            .and_then(|g| g.flotation_limit.flatten())
+            .map(|l| l.level),
+    };
     let origin = result
         .inputs
         .datum
         .as_ref()
         .map_or(0.0, |d| d.mesh_origin_elevation);
     let units = Units::of(UnitSystem::Si).with_datum(origin);
-    svg::sweep_chart(&result.mesh, title, swept, &points, level, &units)
+    svg::sweep_chart(&result.mesh, title, swept, &points, &marks, &units)
 }
 
 /// Writes `report.html` and every mesh's `<stem>.history.svg` in `results_dir`, from the

@@ -441,6 +441,36 @@ fn sweep_block(
         }
         None => {}
     }
+    match &g.flotation_limit {
+        Some(Some(l)) if l.between[0] == l.between[1] => {
+            let _ = writeln!(
+                s,
+                "      flotation FS < required {:.3} from the first level, {} {}",
+                l.required_factor,
+                u.elevation(l.level),
+                u.length.name
+            );
+        }
+        Some(Some(l)) => {
+            let _ = writeln!(
+                s,
+                "      flotation FS falls to the required {:.3} at level {} {} (between the steps at {} and {} {})",
+                l.required_factor,
+                u.elevation(l.level),
+                u.length.name,
+                u.elevation(l.between[0]),
+                u.elevation(l.between[1]),
+                u.length.name
+            );
+        }
+        Some(None) => {
+            let _ = writeln!(
+                s,
+                "      flotation FS stays at or above the required factor over the whole sweep"
+            );
+        }
+        None => {}
+    }
 }
 
 fn loads_block(s: &mut String, l: &Loads, ind: &str, contained: bool, u: &Units) {

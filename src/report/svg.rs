@@ -85,6 +85,20 @@ pub struct SweepPoint {
     pub uplift: f64,
     /// N·m about each named axis, in name order.
     pub axis_moments: Vec<(String, f64)>,
+    /// The factor of safety against flotation at this level (with a check and a net
+    /// uplift).
+    pub flotation_factor: Option<f64>,
+}
+
+/// What a sweep chart marks besides its series (levels in m, the mesh's own elevations).
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct SweepMarks {
+    /// The case's own level of the swept liquid.
+    pub case_level: Option<f64>,
+    /// With a flotation check: the required factor, drawn as a line on the factor's panel.
+    pub required_factor: Option<f64>,
+    /// Where the factor falls to the required one.
+    pub limit_level: Option<f64>,
 }
 
 impl SweepPoint {
@@ -100,6 +114,7 @@ impl SweepPoint {
                 .iter()
                 .map(|(k, a)| (k.clone(), a.moment))
                 .collect(),
+            flotation_factor: s.flotation_factor.flatten(),
         }
     }
 
@@ -119,6 +134,7 @@ impl SweepPoint {
             moment: vec3(v.get("moment")?)?,
             uplift: v.get("uplift")?.as_f64()?,
             axis_moments,
+            flotation_factor: v.get("flotation_factor").and_then(Value::as_f64),
         })
     }
 }
@@ -136,14 +152,17 @@ const COMPONENTS: [&str; 3] = ["x", "y", "z"];
 /// The loads of one case against the swept level, in the units of `u` (levels in its
 /// datum): a force panel (Fx, Fy, Fz, uplift) and a moment panel (the moments about the
 /// named axes, or the moment components when the sidecar names no axis). `swept` names the
-/// swept liquid; `case_level`, the case's own level of it (m), is marked. Series that are
-/// zero at every level, and a panel left without series, are not drawn.
+/// swept liquid; the case's own level of it is marked. With a flotation check a third
+/// panel draws the factor of safety against level (values above four times the required
+/// one left out, as the factor grows without bound as the uplift vanishes), the required
+/// factor as a line, and the level where the factor falls to it. Series that are zero at
+/// every level, and a panel left without series, are not drawn.
 pub fn sweep_chart(
     mesh: &str,
     case: &str,
     swept: Option<&str>,
     steps: &[SweepPoint],
-    case_level: Option<f64>,
+    marks: &SweepMarks,
     u: &Units,
 ) -> Chart {
     let lu = u.length.name;
@@ -168,10 +187,11 @@ pub fn sweep_chart(
             .map(|s| (x(s.level), s.moment, s.axis_moments.as_slice())),
     );
     let noise = noise_of(&forces);
-    let marks: Vec<(f64, String)> = case_level
+    let mut level_marks: Vec<(f64, String)> = marks
+        .case_level
         .map(|z| vec![(x(z), "case level".to_owned())])
         .unwrap_or_default();
-    let panel = |title: &str, unit: Unit, quantity: &str, series| {
+    let panel = |title: &str, unit: Unit, quantity: &str, series, marks: &Vec<(f64, String)>| {
         Panel {
             title: title.to_owned(),
             x_label: x_label.clone(),
@@ -184,15 +204,55 @@ pub fn sweep_chart(
         }
         .in_unit(unit)
     };
+    let mut panels = vec![
+        panel(
+            "Force of the liquid",
+            u.force,
+            "force",
+            forces,
+            &level_marks,
+        ),
+        panel(moments.0, u.moment, "moment", moments.1, &level_marks),
+    ];
+    if let Some(required) = marks.required_factor {
+        let cap = 4.0 * required;
+        let fs: Vec<(f64, f64)> = steps
+            .iter()
+            .filter_map(|s| Some((x(s.level), s.flotation_factor.filter(|f| *f <= cap)?)))
+            .collect();
+        let ends = [
+            x(steps.first().map_or(0.0, |s| s.level)),
+            x(steps.last().map_or(0.0, |s| s.level)),
+        ];
+        if let Some(z) = marks.limit_level {
+            level_marks.push((x(z), "FS = required".to_owned()));
+        }
+        panels.push(Panel {
+            title: "Safety against flotation".to_owned(),
+            x_label: x_label.clone(),
+            y_label: "factor of safety".to_owned(),
+            series: vec![
+                Series {
+                    label: "FS".to_owned(),
+                    points: fs,
+                },
+                Series {
+                    label: format!("required {required:.2}"),
+                    points: ends.iter().map(|&e| (e, required)).collect(),
+                },
+            ],
+            marks: level_marks,
+            integer_x: false,
+            include_zero: true,
+            noise: 0.0,
+        });
+    }
     Chart {
         title: format!("{mesh} · {case} · loads against level"),
-        panels: [
-            panel("Force of the liquid", u.force, "force", forces),
-            panel(moments.0, u.moment, "moment", moments.1),
-        ]
-        .into_iter()
-        .filter(|p| !p.series.is_empty())
-        .collect(),
+        panels: panels
+            .into_iter()
+            .filter(|p| !p.series.is_empty())
+            .collect(),
     }
 }
 
@@ -882,18 +942,16 @@ mod tests {
                     moment: [0.0, f * h / 3.0, 0.0],
                     uplift: 0.0,
                     axis_moments: vec![("hinge".to_owned(), f * h / 3.0)],
+                    flotation_factor: None,
                 }
             })
             .collect();
         let si = Units::of(crate::report::units::UnitSystem::Si);
-        let chart = sweep_chart(
-            "wall.stl",
-            "normal",
-            Some("headwater"),
-            &steps,
-            Some(3.0),
-            &si,
-        );
+        let at3 = SweepMarks {
+            case_level: Some(3.0),
+            ..SweepMarks::default()
+        };
+        let chart = sweep_chart("wall.stl", "normal", Some("headwater"), &steps, &at3, &si);
         // Fx and the hinge moment; Fy, Fz and the uplift are zero throughout.
         assert_eq!(chart.series_count(), 2);
         assert_eq!(chart.panels[0].marks, vec![(3.0, "case level".to_owned())]);
@@ -910,7 +968,7 @@ mod tests {
         assert!(!has_text(&svg, "uplift"));
         // Levels in a datum and in feet: the mesh origin at 100 m; 3 m → 103 m = 337.93 ft.
         let us = Units::of(crate::report::units::UnitSystem::Us).with_datum(100.0);
-        let chart = sweep_chart("wall.stl", "normal", None, &steps, Some(3.0), &us);
+        let chart = sweep_chart("wall.stl", "normal", None, &steps, &at3, &us);
         assert!((chart.panels[0].marks[0].0 - 103.0 / 0.3048).abs() < 1e-9);
         assert_eq!(chart.panels[0].x_label, "swept level (ft)");
         // Round trip through the result document's JSON.
@@ -922,6 +980,43 @@ mod tests {
         assert_eq!(p.axis_moments, vec![("hinge".to_owned(), 8.0)]);
         assert_eq!(p.force, [1.0, 2.0, 3.0]);
         assert!(SweepPoint::from_json(&json!({"level": 1.0})).is_none());
+    }
+
+    #[test]
+    fn the_flotation_factor_is_drawn_against_level_with_the_required_line() {
+        // FS = R / (ρ g A z) for an empty box of base A: 4 / z here, infinite at z = 0.
+        let steps: Vec<SweepPoint> = (0..=8)
+            .map(|i| {
+                let z = 0.5 * i as f64;
+                SweepPoint {
+                    level: z,
+                    force: [0.0, 0.0, 1.0e4 * z],
+                    moment: [0.0; 3],
+                    uplift: 1.0e4 * z,
+                    axis_moments: Vec::new(),
+                    flotation_factor: (z > 0.0).then(|| 4.0 / z),
+                }
+            })
+            .collect();
+        let marks = SweepMarks {
+            case_level: Some(1.0),
+            required_factor: Some(1.5),
+            limit_level: Some(8.0 / 3.0),
+        };
+        let si = Units::of(crate::report::units::UnitSystem::Si);
+        let chart = sweep_chart("box.stl", "empty", None, &steps, &marks, &si);
+        let fs = chart
+            .panels
+            .iter()
+            .find(|p| p.title == "Safety against flotation")
+            .expect("a factor panel");
+        // 4 / 0.5 = 8 > 4 × 1.5 is left out: the factor runs to infinity as U → 0.
+        assert_eq!(fs.series[0].points.first(), Some(&(1.0, 4.0)));
+        assert_eq!(fs.series[1].label, "required 1.50");
+        assert_eq!(fs.series[1].points, vec![(0.0, 1.5), (4.0, 1.5)]);
+        assert!(fs.marks.contains(&(8.0 / 3.0, "FS = required".to_owned())));
+        let svg = String::from_utf8(render(&chart)).expect("utf-8");
+        assert!(has_text(&svg, "factor of safety") && has_text(&svg, "FS = required"));
     }
 
     #[test]

@@ -196,3 +196,45 @@ fn sweep_of_a_box_follows_archimedes_and_governs_at_the_deepest_level() {
         1e-13,
     );
 }
+
+/// An empty closed box 2 × 3 × 4 m, base at z = 0, held down by 200 kN and required to
+/// have 1.5 against flotation, with the water level swept over its height in 0.5 m steps.
+/// Closed form: the net uplift is U(z) = ρ g A z (A = 6 m² of base), so FS = R / U falls to
+/// 1.5 at z* = R / (1.5 ρ g A) = 200 000 / (1.5 · 1000 · 9.80665 · 6) = 2.26604… m, between
+/// the steps at 2.0 and 2.5 m.
+#[test]
+fn the_level_where_the_flotation_factor_falls_to_the_required_one() {
+    let mesh = single(shapes::box_solid([0.0; 3], [2.0, 3.0, 4.0], 3));
+    let json = r#"{"units": "m", "liquid": {"level": 1.0, "density": 1000},
+        "flotation": {"resisting": {"structure": 200000}, "required_factor": 1.5},
+        "sweep": {"from": 0.0, "to": 4.0, "step": 0.5}}"#;
+    let r = run(&mesh, json);
+    let g = r.cases[0].sweep_governing.as_ref().expect("governing");
+    let limit = g
+        .flotation_limit
+        .expect("a check")
+        .expect("the factor falls short");
+    let z = 200_000.0 / (1.5 * 1000.0 * G * 6.0);
+    abs("limit level", limit.level, z, 1e-9);
+    assert_eq!(limit.between, [2.0, 2.5]);
+    assert_eq!(limit.required_factor, 1.5);
+
+    // Held down by more than the whole box can lift (ρ g V = 235.4 kN < 1.5 × 1 MN):
+    // the factor never falls to the requirement.
+    let strong = json.replace("200000", "1000000");
+    let r = run(&mesh, &strong);
+    let g = r.cases[0].sweep_governing.as_ref().expect("governing");
+    assert_eq!(g.flotation_limit, Some(None));
+    // Without a flotation check, no limit is reported at all.
+    let none = r#"{"units": "m", "liquid": {"level": 1.0, "density": 1000},
+        "sweep": {"from": 0.0, "to": 4.0, "step": 0.5}}"#;
+    let r = run(&mesh, none);
+    assert_eq!(
+        r.cases[0]
+            .sweep_governing
+            .as_ref()
+            .expect("governing")
+            .flotation_limit,
+        None
+    );
+}

@@ -158,12 +158,17 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: 
             .find(|l| swept.is_some() && l["name"].as_str() == swept)
             .and_then(|l| l["level"].as_f64())
             .filter(|_| !shared);
+        let marks = svg::SweepMarks {
+            case_level: level,
+            required_factor: c["flotation"]["required_factor"].as_f64(),
+            limit_level: c["sweep_governing"]["flotation_limit"]["level"].as_f64(),
+        };
         let chart = svg::sweep_chart(
             &m.mesh,
             if shared { "every case" } else { name },
             swept,
             &steps,
-            level,
+            &marks,
             u,
         );
         let title = if shared {
@@ -255,6 +260,10 @@ fn governing_table(s: &mut String, g: &Value, u: &Units) {
     if let Some(e) = g.get("flotation_factor").filter(|e| e.is_object()) {
         let v = f(&e["value"]).map_or_else(|| "—".to_owned(), |x| num(x, 3));
         row("flotation factor (lowest)", e, v);
+    }
+    if let Some(l) = g.get("flotation_limit").filter(|l| l.is_object()) {
+        let v = f(&l["required_factor"]).map_or_else(|| "—".to_owned(), |x| num(x, 3));
+        row("flotation factor falls to the required", l, v);
     }
     s.push_str("</table></div>\n");
 }
