@@ -163,17 +163,37 @@ pub enum ReadError {
 
 /// Opens a regular file of at most `limit` bytes (checked before anything is read);
 /// returns it with its size.
+///
+/// The kind of file is judged twice: from the path's metadata before the open (so a
+/// device is never opened at all), and from the opened handle after it, because another
+/// file can be renamed over the name in between. The open itself never waits: a FIFO
+/// swapped in at that moment is opened without blocking (`O_NONBLOCK`) and then refused
+/// like any other non-regular file.
 pub fn open_capped(path: &Path, limit: u64) -> Result<(fs::File, u64), ReadError> {
-    let meta = fs::metadata(path).map_err(ReadError::Io)?;
-    if !meta.is_file() {
-        return Err(ReadError::Io(io::Error::other(if meta.is_dir() {
+    let not_regular = |meta: &fs::Metadata| {
+        ReadError::Io(io::Error::other(if meta.is_dir() {
             "it is a folder, not a file"
         } else {
             "it is not a regular file (a pipe, socket or device); wetload reads regular files only"
-        })));
+        }))
+    };
+    let meta = fs::metadata(path).map_err(ReadError::Io)?;
+    if !meta.is_file() {
+        return Err(not_regular(&meta));
     }
-    let file = fs::File::open(path).map_err(ReadError::Io)?;
-    let len = file.metadata().map_err(ReadError::Io)?.len();
+    let mut options = fs::OpenOptions::new();
+    options.read(true);
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::OpenOptionsExt;
+        options.custom_flags(libc::O_NONBLOCK);
+    }
+    let file = options.open(path).map_err(ReadError::Io)?;
+    let meta = file.metadata().map_err(ReadError::Io)?;
+    if !meta.is_file() {
+        return Err(not_regular(&meta));
+    }
+    let len = meta.len();
     if len > limit {
         return Err(ReadError::TooLarge { len, limit });
     }
@@ -183,8 +203,8 @@ pub fn open_capped(path: &Path, limit: u64) -> Result<(fs::File, u64), ReadError
 /// Reads a whole file, refusing one larger than `limit` bytes before reading it, and
 /// never holding more than `limit + 1` bytes of one that grows while it is read.
 ///
-/// Only regular files are opened: a FIFO or a device named like a mesh would block or never
-/// end, so it is refused from its metadata first.
+/// Only regular files are read: a FIFO or a device named like a mesh would block or never
+/// end, so it is refused (see [`open_capped`]).
 pub fn read_capped(path: &Path, limit: u64) -> Result<Vec<u8>, ReadError> {
     let (file, len) = open_capped(path, limit)?;
     read_rest_capped(file, len, limit, Vec::new())
