@@ -273,18 +273,36 @@ pub fn calc_file_in(mesh_path: &Path, units: UnitSystem) -> Result<MeshResult, R
     let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
     computed.result.project = project;
     let layout = Layout::of_mesh(mesh_path);
-    results::write_atomic(
+    if let Some(dropped) = write_computed(&layout, mesh_path, &computed)? {
+        return Err(dropped.error.into());
+    }
+    outputs::write_folder_page(layout.dir(), false, units)?;
+    Ok(computed.result)
+}
+
+/// Writes the result document of a computed mesh and its exports together (see
+/// [`results::Batch`]): `Err` when nothing could be written (the old files stay, and
+/// agree with each other); `Ok(Some(..))` when the result was written but its exports
+/// could not be, and were removed.
+pub fn write_computed(
+    layout: &Layout,
+    mesh_path: &Path,
+    computed: &Computed,
+) -> Result<Option<results::ExportsDropped>, RunError> {
+    let mut batch = results::Batch::new();
+    batch.put_result(
         &layout.result(mesh_path),
         &report::json::render(&computed.result),
     )?;
-    outputs::write_outputs(
+    outputs::stage_outputs(
+        &mut batch,
+        layout,
         mesh_path,
         &computed.model,
         &computed.sidecar,
         &computed.result,
     )?;
-    outputs::write_folder_page(layout.dir(), false, units)?;
-    Ok(computed.result)
+    Ok(batch.commit()?)
 }
 
 #[cfg(test)]

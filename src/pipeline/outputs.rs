@@ -4,7 +4,8 @@
 //!
 //! Owns which writer runs for which file, and when an export is written or removed. The
 //! names and places of the files are [`crate::results`]'s (its module doc draws the tree),
-//! and so is writing them ([`results::write_atomic`]); the writers themselves live in
+//! and so is writing them (a result and its exports together through [`results::Batch`],
+//! the page and charts through [`results::write_atomic_unsynced`]); the writers themselves live in
 //! [`crate::report`] and render bytes. It computes nothing of its own beyond asking
 //! [`Model::field`] for the pressure field.
 //!
@@ -13,6 +14,7 @@
 //! `field_exports` says `always` or `never`; when they are not written, those of an earlier
 //! iteration are removed so that no export disagrees with the result beside it.
 
+use std::collections::BTreeMap;
 use std::fs;
 use std::path::{Path, PathBuf};
 
@@ -22,23 +24,91 @@ use super::{RunError, sidecar_path};
 use crate::compute::{self, CaseResult, MeshResult, Model, SweepStep};
 use crate::report::units::{UnitSystem, Units};
 use crate::report::{csv, html, svg, vtk};
-use crate::results::{self, Layout, changelog};
+use crate::results::{self, Batch, Layout, changelog};
 use crate::sidecar::Sidecar;
 
-/// Writes the pressure field, the facet loads and the sweep charts of every case of a
-/// computed mesh under `results/` beside it; returns the paths written.
+/// The export files a result of `mesh` computed with `sidecar` may have, for a mesh of
+/// `facets` facets: the `.vtp` and `.csv` of every case when field exports are written,
+/// and with a sweep the `.sweep.svg` of every case and the one drawn for all cases when
+/// their sweeps are the same. The list a change of names removes by.
+pub fn export_files(
+    layout: &Layout,
+    mesh_path: &Path,
+    sidecar: &Sidecar,
+    facets: usize,
+) -> Vec<PathBuf> {
+    let (fields, sweeps) = exports_by_kind(layout, mesh_path, sidecar, facets);
+    let mut files = fields;
+    if let Some((cases, whole)) = sweeps {
+        files.extend(cases);
+        files.extend(whole);
+    }
+    files
+}
+
+/// Per-case sweep charts, and the one for every case when there are several cases.
+type SweepCharts = (Vec<PathBuf>, Option<PathBuf>);
+
+/// The field exports, and with a sweep its charts as the alternatives they are.
+fn exports_by_kind(
+    layout: &Layout,
+    mesh_path: &Path,
+    sidecar: &Sidecar,
+    facets: usize,
+) -> (Vec<PathBuf>, Option<SweepCharts>) {
+    let parts = results::case_parts(sidecar.cases.iter().map(|c| c.name.as_str()));
+    let mut fields = Vec::new();
+    let mut cases = Vec::new();
+    for part in &parts {
+        let e = layout.exports(mesh_path, part.as_deref());
+        if sidecar.field_exports.writes(facets) {
+            fields.push(e.field);
+            fields.push(e.facet_loads);
+        }
+        cases.push(e.sweep_chart);
+    }
+    let whole = (parts.len() > 1).then(|| layout.exports(mesh_path, None).sweep_chart);
+    (fields, sidecar.sweep.is_some().then_some((cases, whole)))
+}
+
+/// The files of a computed mesh (its result and exports) that are not on disk. Sweep
+/// charts count as present when either the per-case charts or the one for every case are.
+pub fn missing_files(
+    layout: &Layout,
+    mesh_path: &Path,
+    sidecar: &Sidecar,
+    facets: usize,
+) -> Vec<PathBuf> {
+    let (fields, sweeps) = exports_by_kind(layout, mesh_path, sidecar, facets);
+    let mut missing: Vec<PathBuf> = std::iter::once(layout.result(mesh_path))
+        .chain(fields)
+        .filter(|p| !p.is_file())
+        .collect();
+    if let Some((cases, whole)) = sweeps {
+        let cases_there = cases.iter().all(|p| p.is_file());
+        let whole_there = whole.as_ref().is_some_and(|p| p.is_file());
+        if !cases_there && !whole_there {
+            missing.extend(cases.into_iter().filter(|p| !p.is_file()));
+        }
+    }
+    missing
+}
+
+/// Stages the pressure field, the facet loads and the sweep charts of every case of a
+/// computed mesh into `batch` (see [`results::Batch`]), and the removal of field exports
+/// an earlier result had when this one has none.
 ///
 /// `model` and `sidecar` must be the ones `result` was computed from.
-pub fn write_outputs(
+pub fn stage_outputs(
+    batch: &mut Batch,
+    layout: &Layout,
     mesh_path: &Path,
     model: &Model,
     sidecar: &Sidecar,
     result: &MeshResult,
-) -> Result<Vec<PathBuf>, RunError> {
-    let layout = Layout::of_mesh(mesh_path);
+) -> Result<(), RunError> {
     let parts = results::case_parts(result.cases.iter().map(|c| c.name.as_str()));
     let shared = crate::report::summary::shared_sweep(result);
-    let mut written = Vec::new();
     for (i, (case, part)) in result.cases.iter().zip(parts).enumerate() {
         let files = layout.exports(mesh_path, part.as_deref());
         if sidecar.field_exports.writes(model.facets()) {
@@ -49,33 +119,33 @@ pub fn write_outputs(
                     sidecar: sidecar_path(mesh_path),
                     source: Box::new(source),
                 })?;
-            let vtp = vtk::render(&field, &result.mesh, &case.name);
-            results::write_atomic(&files.field, &vtp)?;
-            written.push(files.field);
-            results::write_atomic(&files.facet_loads, &csv::render(&field))?;
-            written.push(files.facet_loads);
+            batch.put(&files.field, &vtk::render(&field, &result.mesh, &case.name))?;
+            batch.put(&files.facet_loads, &csv::render(&field))?;
         } else {
             // Exports of an earlier iteration would no longer match the result: remove them.
-            for stale in [&files.field, &files.facet_loads] {
-                results::remove_if_present(stale)?;
+            batch.remove(files.field);
+            batch.remove(files.facet_loads);
+        }
+        // A sweep the same in every case is drawn once, as `<name>.sweep.svg`.
+        match case.sweep.as_ref().filter(|_| shared.is_none()) {
+            Some(steps) => {
+                let chart = sweep_chart(result, sidecar, case, &case.name, steps);
+                batch.put(&files.sweep_chart, &svg::render(&chart))?;
             }
-        }
-        // A sweep the same in every case is drawn once, as `<stem>.sweep.svg`.
-        if let Some(steps) = case.sweep.as_ref().filter(|_| shared.is_none()) {
-            let chart = sweep_chart(result, sidecar, case, &case.name, steps);
-            results::write_atomic(&files.sweep_chart, &svg::render(&chart))?;
-            written.push(files.sweep_chart);
+            None => batch.remove(files.sweep_chart),
         }
     }
-    if let Some(case) = shared
-        && let Some(steps) = &case.sweep
-    {
-        let chart = sweep_chart(result, sidecar, case, "every case", steps);
-        let path = layout.exports(mesh_path, None).sweep_chart;
-        results::write_atomic(&path, &svg::render(&chart))?;
-        written.push(path);
+    if result.cases.len() > 1 {
+        let whole = layout.exports(mesh_path, None).sweep_chart;
+        match shared.and_then(|case| case.sweep.as_ref().map(|steps| (case, steps))) {
+            Some((case, steps)) => {
+                let chart = sweep_chart(result, sidecar, case, "every case", steps);
+                batch.put(&whole, &svg::render(&chart))?;
+            }
+            None => batch.remove(whole),
+        }
     }
-    Ok(written)
+    Ok(())
 }
 
 /// The chart of a case's sweep (SI units; levels in the sidecar's datum), the case's own
@@ -124,66 +194,149 @@ pub fn write_folder_page(
     live: bool,
     units: UnitSystem,
 ) -> Result<Vec<PathBuf>, RunError> {
-    let layout = Layout::new(results_dir.to_owned());
-    let log = changelog::read_lines(results_dir);
-    let mut meshes = read_results(results_dir);
-    // Meshes that never computed but are in the log (their last event failed).
-    let mut only_logged: Vec<&str> = Vec::new();
-    for line in &log {
-        let Some(name) = line["mesh"].as_str() else {
-            continue;
-        };
-        if !meshes.iter().any(|m| m.mesh == name) && !only_logged.contains(&name) {
-            only_logged.push(name);
-        }
-    }
-    for name in only_logged {
-        let last = log.iter().rev().find(|l| l["mesh"] == name);
-        if last.is_some_and(|l| l["event"] == "failed") {
-            meshes.push(html::MeshEntry {
-                stem: results::stem(Path::new(name)),
-                mesh: name.to_owned(),
-                result: None,
-            });
-        }
-    }
-    meshes.sort_by(|a, b| a.mesh.cmp(&b.mesh));
+    let page = Page::load(
+        Layout::new(results_dir.to_owned()),
+        changelog::read_lines(results_dir),
+        units,
+    );
+    page.write(None, live)
+}
 
-    let mut written = Vec::new();
-    for m in &meshes {
-        let up = m.result.as_ref().and_then(|r| r["inputs"]["up"].as_str());
-        if let Some(chart) = svg::history_chart(&m.mesh, &log, up, &Units::of(units)) {
-            let path = layout.history_chart(&m.stem);
-            results::write_atomic(&path, &svg::render(&chart))?;
-            written.push(path);
+/// The folder's page as a watcher keeps it: the change log's lines and the result
+/// documents held in memory, read once, so that a save costs the writing of its own
+/// history chart and of the page, not a new reading of the log or of every result.
+pub struct Page {
+    layout: Layout,
+    units: UnitSystem,
+    log: Vec<Value>,
+    /// By mesh file name.
+    meshes: BTreeMap<String, html::MeshEntry>,
+}
+
+impl Page {
+    /// Reads the result documents in the layout's folder; `log` is the change log's lines;
+    /// the page shows its numbers in `units`.
+    pub fn load(layout: Layout, log: Vec<Value>, units: UnitSystem) -> Page {
+        let meshes = read_results(layout.dir())
+            .into_iter()
+            .map(|m| (m.mesh.clone(), m))
+            .collect();
+        Page {
+            layout,
+            units,
+            log,
+            meshes,
         }
     }
-    let folder = results_dir
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let folder = fs::canonicalize(folder).unwrap_or_else(|_| folder.to_owned());
-    let generated = jiff::Zoned::now()
-        .strftime("%Y-%m-%d %H:%M:%S %:z")
-        .to_string();
-    // A header that cannot be read is reported by every computation; the page goes
-    // without it rather than not at all.
-    // (`read_project` looks beside the path it is given: the folder that holds results/.)
-    let project = super::read_project(results_dir).ok().flatten();
-    let page = html::FolderPage {
-        units: Units::of(units),
-        project: project.as_ref(),
-        folder: &folder.display().to_string(),
-        generated: &generated,
-        live,
-        meshes: &meshes,
-        log: &log,
-        caution: compute::CAUTION,
-    };
-    let path = layout.page();
-    results::write_atomic(&path, &html::render(&page))?;
-    written.push(path);
-    Ok(written)
+
+    /// The layout the page writes into.
+    pub fn layout(&self) -> &Layout {
+        &self.layout
+    }
+
+    /// The layout, to keep it current (the watcher tells it the folder's meshes).
+    pub fn layout_mut(&mut self) -> &mut Layout {
+        &mut self.layout
+    }
+
+    /// A line appended to the change log.
+    pub fn record(&mut self, line: Value) {
+        self.log.push(line);
+    }
+
+    /// Reads the result document of `mesh` again (after it was written or marked).
+    pub fn reload(&mut self, mesh_path: &Path) {
+        let name = file_name(mesh_path);
+        let doc = fs::read(self.layout.result(mesh_path))
+            .ok()
+            .and_then(|b| serde_json::from_slice::<Value>(&b).ok());
+        match doc {
+            Some(doc) => {
+                self.meshes.insert(
+                    name.clone(),
+                    html::MeshEntry {
+                        stem: self.layout.name(mesh_path),
+                        mesh: name,
+                        result: Some(doc),
+                    },
+                );
+            }
+            None => {
+                self.meshes.remove(&name);
+            }
+        }
+    }
+
+    /// Writes the page, and the history charts of `changed` (mesh file names; `None`:
+    /// every mesh's); returns the paths written. Both are derived files, written
+    /// atomically but not flushed to disk.
+    pub fn write(&self, changed: Option<&[String]>, live: bool) -> Result<Vec<PathBuf>, RunError> {
+        let mut meshes: Vec<html::MeshEntry> = self.meshes.values().cloned().collect();
+        // Meshes that never computed but are in the log (their last event failed).
+        let mut last: BTreeMap<&str, &Value> = BTreeMap::new();
+        for line in &self.log {
+            if let Some(name) = line["mesh"].as_str() {
+                last.insert(name, line);
+            }
+        }
+        for (name, line) in last {
+            if !self.meshes.contains_key(name) && line["event"] == "failed" {
+                meshes.push(html::MeshEntry {
+                    stem: results::stem(Path::new(name)),
+                    mesh: name.to_owned(),
+                    result: None,
+                });
+            }
+        }
+        meshes.sort_by(|a, b| a.mesh.cmp(&b.mesh));
+
+        let mut written = Vec::new();
+        for m in &meshes {
+            if changed.is_some_and(|c| !c.contains(&m.mesh)) {
+                continue;
+            }
+            let up = m.result.as_ref().and_then(|r| r["inputs"]["up"].as_str());
+            if let Some(chart) = svg::history_chart(&m.mesh, &self.log, up, &Units::of(self.units))
+            {
+                let path = self.layout.history_chart(&m.stem);
+                results::write_atomic_unsynced(&path, &svg::render(&chart))?;
+                written.push(path);
+            }
+        }
+        let results_dir = self.layout.dir();
+        let folder = results_dir
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        let folder = fs::canonicalize(folder).unwrap_or_else(|_| folder.to_owned());
+        let generated = jiff::Zoned::now()
+            .strftime("%Y-%m-%d %H:%M:%S %:z")
+            .to_string();
+        // A header that cannot be read is reported by every computation; the page goes
+        // without it rather than not at all.
+        // (`read_project` looks beside the path it is given: the folder that holds results/.)
+        let project = super::read_project(results_dir).ok().flatten();
+        let page = html::FolderPage {
+            units: Units::of(self.units),
+            project: project.as_ref(),
+            folder: &folder.display().to_string(),
+            generated: &generated,
+            live,
+            meshes: &meshes,
+            log: &self.log,
+            caution: compute::CAUTION,
+        };
+        let path = self.layout.page();
+        results::write_atomic_unsynced(&path, &html::render(&page))?;
+        written.push(path);
+        Ok(written)
+    }
+}
+
+fn file_name(p: &Path) -> String {
+    p.file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default()
 }
 
 /// The result documents in `dir`: `*.json` files with `schema`, `mesh` and `cases`.

@@ -20,6 +20,22 @@
 //! Each line is written with one `write` of the whole line and flushed to disk before the
 //! next, so a crash can only tear the last line; [`ChangeLog::open`] moves a torn tail
 //! aside into `changes.jsonl.torn` and says so.
+//!
+//! # Locks, and a log or lock removed under a running watcher
+//!
+//! Two locks are held for as long as the log is open: an advisory lock on the watched
+//! folder itself (the folder that holds `results/`), which no deletion inside it can
+//! defeat, and the lock file `results/.wetload.lock` as before. A second watcher of the
+//! same folder is refused by the first.
+//!
+//! Before every line, [`ChangeLog::append`] compares the file it has open with what the
+//! path holds now (device and inode), for the log and the lock file. When the log was
+//! deleted (alone or with all of `results/`) or replaced by another file, the log is
+//! written again at its path from the open file, which still holds every line, and
+//! appending goes on there: no line is lost and no iteration numbered twice. A file that
+//! took the log's place is first moved aside to `changes.jsonl.replaced-<time>`. A lock
+//! file that went is created and locked again. Each repair is returned as a note for the
+//! terminal.
 
 use std::fs::{self, File, OpenOptions};
 use std::io::{self, Read, Seek, SeekFrom, Write};
@@ -52,8 +68,54 @@ pub enum LogError {
 pub struct ChangeLog {
     path: PathBuf,
     file: File,
-    /// Held for the life of the log: the advisory lock lives as long as the handle.
-    _lock: File,
+    /// The lock file, locked; replaced when it is deleted.
+    lock: File,
+    /// The watched folder, locked for the life of the log: the advisory lock lives as
+    /// long as the handle.
+    _folder: File,
+}
+
+/// Device and inode of an open file.
+fn identity(meta: &fs::Metadata) -> (u64, u64) {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        (meta.dev(), meta.ino())
+    }
+    #[cfg(not(unix))]
+    {
+        let _ = meta;
+        (0, 0)
+    }
+}
+
+/// Whether `path` now holds the file open as `file` (false when it is gone or another).
+fn same_file(path: &Path, file: &File) -> bool {
+    match (fs::metadata(path), file.metadata()) {
+        (Ok(a), Ok(b)) => identity(&a) == identity(&b),
+        _ => false,
+    }
+}
+
+/// Opens and locks the lock file at `path`.
+fn take_lock(path: &Path, log: &Path) -> Result<File, LogError> {
+    let io_err = |source| LogError::Io {
+        path: path.to_owned(),
+        source,
+    };
+    let lock = OpenOptions::new()
+        .create(true)
+        .truncate(false)
+        .write(true)
+        .open(path)
+        .map_err(io_err)?;
+    match lock.try_lock() {
+        Ok(()) => Ok(lock),
+        Err(fs::TryLockError::WouldBlock) => Err(LogError::Locked {
+            path: log.to_owned(),
+        }),
+        Err(fs::TryLockError::Error(e)) => Err(io_err(e)),
+    }
 }
 
 /// What was in the log when it was opened.
@@ -75,19 +137,24 @@ impl ChangeLog {
             path: path.clone(),
             source,
         };
-        fs::create_dir_all(dir).map_err(io_err)?;
-        let lock_path = layout.lock();
-        let lock = OpenOptions::new()
-            .create(true)
-            .truncate(false)
-            .write(true)
-            .open(&lock_path)
-            .map_err(io_err)?;
-        match lock.try_lock() {
+        // The folder that holds results/ is locked first: deleting results/ or the lock
+        // file cannot defeat this one.
+        let folder_path = dir
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        let folder = File::open(folder_path).map_err(io_err)?;
+        match folder.try_lock() {
             Ok(()) => {}
             Err(fs::TryLockError::WouldBlock) => return Err(LogError::Locked { path }),
             Err(fs::TryLockError::Error(e)) => return Err(io_err(e)),
         }
+        match fs::create_dir(dir) {
+            Ok(()) => {}
+            Err(e) if e.kind() == io::ErrorKind::AlreadyExists => {}
+            Err(e) => return Err(io_err(e)),
+        }
+        let lock = take_lock(&layout.lock(), &path)?;
 
         let mut file = OpenOptions::new()
             .create(true)
@@ -121,6 +188,14 @@ impl ChangeLog {
             ));
         }
         file.seek(SeekFrom::End(0)).map_err(io_err)?;
+        let orphans = super::clean_orphans(dir);
+        if !orphans.is_empty() {
+            recovered.notes.push(format!(
+                "removed {} temporary file(s) in {} left by an interrupted run",
+                orphans.len(),
+                dir.display()
+            ));
+        }
         for (i, line) in bytes[..complete].split(|&b| b == b'\n').enumerate() {
             if line.iter().all(u8::is_ascii_whitespace) {
                 continue;
@@ -138,14 +213,17 @@ impl ChangeLog {
             ChangeLog {
                 path,
                 file,
-                _lock: lock,
+                lock,
+                _folder: folder,
             },
             recovered,
         ))
     }
 
-    /// Appends one line and flushes it to disk.
-    pub fn append(&mut self, line: &Value) -> Result<(), LogError> {
+    /// Appends one line and flushes it to disk; first repairs a log or lock file that was
+    /// removed or replaced (see the module doc) and returns what it repaired.
+    pub fn append(&mut self, line: &Value) -> Result<Vec<String>, LogError> {
+        let notes = self.repair()?;
         let mut bytes = serde_json::to_vec(line).expect("a JSON value always serializes");
         bytes.push(b'\n');
         let err = |source| LogError::Io {
@@ -153,7 +231,74 @@ impl ChangeLog {
             source,
         };
         self.file.write_all(&bytes).map_err(err)?;
-        self.file.sync_data().map_err(err)
+        self.file.sync_data().map_err(err)?;
+        Ok(notes)
+    }
+
+    /// Puts the log and the lock file back at their paths when they are not there.
+    fn repair(&mut self) -> Result<Vec<String>, LogError> {
+        let mut notes = Vec::new();
+        let io_err = |path: &Path| {
+            let path = path.to_owned();
+            move |source| LogError::Io { path, source }
+        };
+        let dir = self.path.parent().unwrap_or(Path::new(".")).to_owned();
+        let layout = Layout::new(dir.clone());
+        if !dir.is_dir() {
+            fs::create_dir(&dir).map_err(io_err(&dir))?;
+            notes.push(format!(
+                "the results folder {} was deleted while wetload watched; it was created again",
+                dir.display()
+            ));
+        }
+        let lock_path = layout.lock();
+        if !same_file(&lock_path, &self.lock) {
+            // The folder lock is still held, so no other watcher can hold a new lock file.
+            self.lock = take_lock(&lock_path, &self.path)?;
+            notes.push(format!(
+                "the lock file {} was deleted or replaced while wetload watched; it was created and locked again",
+                lock_path.display()
+            ));
+        }
+        if !same_file(&self.path, &self.file) {
+            let path = self.path.clone();
+            let replaced = path.exists();
+            if replaced {
+                let aside = dir.join(format!(
+                    "{LOG_NAME}.replaced-{}",
+                    jiff::Timestamp::now().strftime("%Y%m%dT%H%M%S%.3fZ")
+                ));
+                fs::rename(&path, &aside).map_err(io_err(&path))?;
+                notes.push(format!(
+                    "another file took the place of the change log {}; it was moved to {}",
+                    path.display(),
+                    aside.display()
+                ));
+            }
+            // The open file still holds every line: write it again at the path.
+            let mut old = Vec::new();
+            self.file.seek(SeekFrom::Start(0)).map_err(io_err(&path))?;
+            self.file.read_to_end(&mut old).map_err(io_err(&path))?;
+            let mut fresh = OpenOptions::new()
+                .create_new(true)
+                .read(true)
+                .append(true)
+                .open(&path)
+                .map_err(io_err(&path))?;
+            fresh.write_all(&old).map_err(io_err(&path))?;
+            fresh.sync_all().map_err(io_err(&path))?;
+            if let Ok(d) = File::open(&dir) {
+                let _ = d.sync_all();
+            }
+            self.file = fresh;
+            let lines = old.iter().filter(|&&b| b == b'\n').count();
+            notes.push(format!(
+                "the change log {} was {} while wetload watched; it was written again with its {lines} line(s) from the open file, and logging goes on there",
+                path.display(),
+                if replaced { "replaced" } else { "deleted" }
+            ));
+        }
+        Ok(notes)
     }
 
     /// The log's path.
@@ -182,33 +327,69 @@ mod tests {
 
     #[test]
     fn a_torn_tail_is_moved_aside_and_complete_lines_survive() {
-        let dir = tempfile::tempdir().expect("temp dir");
+        let top = tempfile::tempdir().expect("temp dir");
+        let dir = &top.path().join("results");
+        fs::create_dir(dir).expect("results");
         fs::write(
-            dir.path().join(LOG_NAME),
+            dir.join(LOG_NAME),
             "{\"event\":\"computed\",\"mesh\":\"a.stl\"}\n{\"event\":\"comp",
         )
         .expect("write");
-        let (mut log, rec) = ChangeLog::open(dir.path()).expect("open");
+        let (mut log, rec) = ChangeLog::open(dir).expect("open");
         assert_eq!(rec.lines.len(), 1);
         assert_eq!(rec.notes.len(), 1);
         log.append(&json!({"event": "removed"})).expect("append");
         drop(log);
-        let text = fs::read_to_string(dir.path().join(LOG_NAME)).expect("read");
+        let text = fs::read_to_string(dir.join(LOG_NAME)).expect("read");
         assert_eq!(
             text,
             "{\"event\":\"computed\",\"mesh\":\"a.stl\"}\n{\"event\":\"removed\"}\n"
         );
-        let torn = fs::read_to_string(dir.path().join("changes.jsonl.torn")).expect("torn");
+        let torn = fs::read_to_string(dir.join("changes.jsonl.torn")).expect("torn");
         assert_eq!(torn, "{\"event\":\"comp\n");
     }
 
     #[test]
     fn a_second_log_on_the_same_folder_is_refused() {
-        let dir = tempfile::tempdir().expect("temp dir");
-        let (_first, _) = ChangeLog::open(dir.path()).expect("open");
-        match ChangeLog::open(dir.path()) {
+        let top = tempfile::tempdir().expect("temp dir");
+        let dir = top.path().join("results");
+        let (_first, _) = ChangeLog::open(&dir).expect("open");
+        match ChangeLog::open(&dir) {
             Err(LogError::Locked { .. }) => {}
             other => panic!("expected Locked, got {other:?}"),
         }
+        // Neither deleting the lock file nor the whole results folder lets a second in.
+        fs::remove_file(dir.join(LOCK_NAME)).expect("rm lock");
+        assert!(matches!(
+            ChangeLog::open(&dir),
+            Err(LogError::Locked { .. })
+        ));
+        fs::remove_dir_all(&dir).expect("rm results");
+        assert!(matches!(
+            ChangeLog::open(&dir),
+            Err(LogError::Locked { .. })
+        ));
+    }
+
+    #[test]
+    fn a_deleted_or_replaced_log_is_written_again_with_every_line() {
+        let top = tempfile::tempdir().expect("temp dir");
+        let dir = top.path().join("results");
+        let (mut log, _) = ChangeLog::open(&dir).expect("open");
+        assert!(log.append(&json!({"n": 1})).expect("append").is_empty());
+        fs::remove_file(dir.join(LOG_NAME)).expect("rm log");
+        let notes = log.append(&json!({"n": 2})).expect("append");
+        assert!(notes.iter().any(|n| n.contains("deleted")), "{notes:?}");
+        fs::remove_dir_all(&dir).expect("rm results");
+        let notes = log.append(&json!({"n": 3})).expect("append");
+        assert_eq!(notes.len(), 3, "{notes:?}");
+        assert!(dir.join(LOCK_NAME).exists());
+        // Another file renamed over the log.
+        fs::write(dir.join("other"), "{\"foreign\":true}\n").expect("write");
+        fs::rename(dir.join("other"), dir.join(LOG_NAME)).expect("replace");
+        let notes = log.append(&json!({"n": 4})).expect("append");
+        assert!(notes.iter().any(|n| n.contains("moved to")), "{notes:?}");
+        let text = fs::read_to_string(dir.join(LOG_NAME)).expect("read");
+        assert_eq!(text, "{\"n\":1}\n{\"n\":2}\n{\"n\":3}\n{\"n\":4}\n");
     }
 }

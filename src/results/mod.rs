@@ -4,18 +4,27 @@
 //! ```text
 //! <folder>/                       the meshes and their sidecars (never written here)
 //! └── results/                    [`DIR_NAME`]; only ever a real folder, never a link
-//!     ├── <stem>.json             result document of one mesh (`report::json`)
-//!     ├── <stem>[.<case>].vtp     pressure field, VTK XML PolyData (`report::vtk`)
-//!     ├── <stem>[.<case>].csv     load per facet (`report::csv`)
-//!     ├── <stem>[.<case>].sweep.svg  loads against level, with a sweep (`report::svg`)
-//!     ├── <stem>.history.svg      headline loads at every computation in the change log
-//!     ├── <stem>.edges.obj        open and non-manifold edges found by `wetload check`
+//!     ├── <name>.json             result document of one mesh (`report::json`)
+//!     ├── <name>[.<case>].vtp     pressure field, VTK XML PolyData (`report::vtk`)
+//!     ├── <name>[.<case>].csv     load per facet (`report::csv`)
+//!     ├── <name>[.<case>].sweep.svg  loads against level, with a sweep (`report::svg`)
+//!     ├── <name>.history.svg      headline loads at every computation in the change log
+//!     ├── <name>.edges.obj        open and non-manifold edges found by `wetload check`
 //!     ├── report.html             the folder's page (`report::html`)
 //!     ├── changes.jsonl           the change log, one line per recomputation ([`changelog`])
 //!     ├── changes.jsonl.torn      torn last lines of interrupted runs, moved aside
 //!     ├── .wetload.lock           held by the watcher that writes the change log
-//!     └── .wetload-*.tmp          an atomic write in progress ([`write_atomic`])
+//!     └── .wetload-<pid>-*.tmp    an atomic write in progress ([`write_atomic`]); those
+//!                                 of a process that no longer runs are removed when a
+//!                                 watcher starts ([`clean_orphans`])
 //! ```
+//!
+//! `<name>` is the mesh's file stem (`gate.stl` → `gate`) when no other mesh in the folder
+//! has the same stem. When two or more do (`gate.stl` and `gate.obj`), each of them is
+//! named by its whole file name instead (`gate.stl.json`, `gate.obj.json`,
+//! `gate.obj.flood.csv`, …), so that no mesh's files overwrite another's. The rule depends
+//! only on which meshes are in the folder, not on their order or history; it lives in
+//! [`Layout::name`] and nowhere else.
 //!
 //! `<case>` appears when the sidecar has several cases ([`case_parts`]); names that come
 //! from files and sidecars pass through [`file_part`] before they become part of a path,
@@ -28,9 +37,14 @@
 pub mod changelog;
 mod write;
 
+use std::collections::BTreeMap;
+use std::fs;
 use std::path::{Path, PathBuf};
 
-pub use write::{WriteError, remove_if_present, write_atomic};
+pub use write::{
+    Batch, ExportsDropped, TEMP_PREFIX, WriteError, clean_orphans, remove_if_present, write_atomic,
+    write_atomic_unsynced,
+};
 
 /// Name of the folder, beside the meshes, that receives every output.
 pub const DIR_NAME: &str = "results";
@@ -59,17 +73,81 @@ pub fn stem(path: &Path) -> String {
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Layout {
     dir: PathBuf,
+    /// How many meshes of the folder have each file stem.
+    stems: BTreeMap<String, usize>,
 }
 
 impl Layout {
-    /// The layout of the results folder at `dir` (a `results/` folder itself).
+    /// The layout of the results folder at `dir` (a `results/` folder itself), for a
+    /// folder whose meshes are not known (every mesh is named by its stem until
+    /// [`Layout::set_meshes`] says otherwise).
     pub fn new(dir: PathBuf) -> Layout {
-        Layout { dir }
+        Layout {
+            dir,
+            stems: BTreeMap::new(),
+        }
     }
 
-    /// The layout of the results folder beside `mesh`.
+    /// The layout of the results folder beside `mesh`, knowing the other meshes there.
     pub fn of_mesh(mesh: &Path) -> Layout {
-        Layout::new(dir_of(mesh))
+        let mut layout = Layout::new(dir_of(mesh));
+        let folder = mesh
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        let siblings: Vec<PathBuf> = fs::read_dir(folder)
+            .map(|rd| {
+                rd.filter_map(Result::ok)
+                    .map(|e| e.path())
+                    .filter(|p| crate::mesh::is_mesh_path(p))
+                    .collect()
+            })
+            .unwrap_or_default();
+        layout.set_meshes(siblings.iter().map(PathBuf::as_path).chain([mesh]));
+        layout
+    }
+
+    /// Tells the layout which meshes are in the folder (each path once; `mesh` may be
+    /// among them). Returns the stems shared by more than one mesh that were not shared
+    /// before, so a caller can say so once.
+    pub fn set_meshes<'a>(&mut self, meshes: impl IntoIterator<Item = &'a Path>) -> Vec<String> {
+        let mut names: Vec<&'a Path> = meshes.into_iter().collect();
+        names.sort();
+        names.dedup_by(|a, b| a.file_name() == b.file_name());
+        let mut stems: BTreeMap<String, usize> = BTreeMap::new();
+        for m in names {
+            *stems.entry(stem(m)).or_default() += 1;
+        }
+        let newly: Vec<String> = stems
+            .iter()
+            .filter(|(s, n)| **n > 1 && self.stems.get(*s).is_none_or(|old| *old < 2))
+            .map(|(s, _)| s.clone())
+            .collect();
+        self.stems = stems;
+        newly
+    }
+
+    /// Whether another mesh of the folder has the stem of `mesh`.
+    pub fn is_shared(&self, mesh: &Path) -> bool {
+        self.stems.get(&stem(mesh)).is_some_and(|n| *n > 1)
+    }
+
+    /// The name every file of `mesh` starts with: its stem, or its whole file name when
+    /// another mesh of the folder has the same stem (see the module doc). Sanitised.
+    pub fn name(&self, mesh: &Path) -> String {
+        file_part(&self.raw_name(mesh))
+    }
+
+    /// [`Layout::name`] before sanitising (the result document keeps the stem as it is,
+    /// as it always has).
+    fn raw_name(&self, mesh: &Path) -> String {
+        if self.is_shared(mesh) {
+            mesh.file_name()
+                .map(|n| n.to_string_lossy().into_owned())
+                .unwrap_or_default()
+        } else {
+            stem(mesh)
+        }
     }
 
     /// The `results/` folder itself.
@@ -77,17 +155,17 @@ impl Layout {
         &self.dir
     }
 
-    /// `<stem>.json`: the result document of `mesh`.
+    /// `<name>.json`: the result document of `mesh`.
     pub fn result(&self, mesh: &Path) -> PathBuf {
-        self.dir.join(format!("{}.json", stem(mesh)))
+        self.dir.join(format!("{}.json", self.raw_name(mesh)))
     }
 
     /// The exports of one case of `mesh`; `case` is its name part from [`case_parts`].
     pub fn exports(&self, mesh: &Path, case: Option<&str>) -> Exports {
-        let stem = file_part(&stem(mesh));
+        let name = self.name(mesh);
         let base = match case {
-            Some(c) => format!("{stem}.{c}"),
-            None => stem,
+            Some(c) => format!("{name}.{c}"),
+            None => name,
         };
         Exports {
             field: self.dir.join(format!("{base}.vtp")),
@@ -96,13 +174,17 @@ impl Layout {
         }
     }
 
-    /// `<stem>.edges.obj`: the open and non-manifold edges `wetload check` found.
+    /// `<name>.edges.obj`: the open and non-manifold edges `wetload check` found.
     pub fn edges(&self, mesh: &Path) -> PathBuf {
-        self.dir
-            .join(format!("{}.edges.obj", file_part(&stem(mesh))))
+        self.dir.join(format!("{}.edges.obj", self.name(mesh)))
     }
 
-    /// `<stem>.history.svg` for a mesh whose file stem is `stem`.
+    /// `<name>.history.svg` for `mesh`.
+    pub fn history_of(&self, mesh: &Path) -> PathBuf {
+        self.dir.join(format!("{}.history.svg", self.name(mesh)))
+    }
+
+    /// `<name>.history.svg` for a result document named `<name>.json`.
     pub fn history_chart(&self, stem: &str) -> PathBuf {
         self.dir.join(format!("{}.history.svg", file_part(stem)))
     }
@@ -247,5 +329,32 @@ mod tests {
         assert_eq!(layout.change_log(), Path::new("/p/results/changes.jsonl"));
         assert_eq!(layout.lock(), Path::new("/p/results/.wetload.lock"));
         assert_eq!(dir_of(Path::new("gate.stl")), Path::new("results"));
+    }
+
+    #[test]
+    fn meshes_that_share_a_stem_are_named_by_their_whole_file_name() {
+        let mut layout = Layout::new(PathBuf::from("/p/results"));
+        let (stl, obj, other) = (
+            Path::new("/p/gate.stl"),
+            Path::new("/p/gate.obj"),
+            Path::new("/p/wall.STL"),
+        );
+        assert!(layout.set_meshes([stl, other]).is_empty());
+        assert_eq!(layout.result(stl), Path::new("/p/results/gate.json"));
+        assert_eq!(layout.set_meshes([stl, obj, other]), ["gate"]);
+        // Said once: the same folder again reports nothing new.
+        assert!(layout.set_meshes([obj, stl, other]).is_empty());
+        assert_eq!(layout.result(stl), Path::new("/p/results/gate.stl.json"));
+        assert_eq!(layout.result(obj), Path::new("/p/results/gate.obj.json"));
+        assert_eq!(layout.result(other), Path::new("/p/results/wall.json"));
+        let e = layout.exports(obj, Some("flood"));
+        assert_eq!(e.facet_loads, Path::new("/p/results/gate.obj.flood.csv"));
+        assert_eq!(
+            layout.history_of(stl),
+            Path::new("/p/results/gate.stl.history.svg")
+        );
+        // One of them gone: back to the stem.
+        layout.set_meshes([stl, other]);
+        assert_eq!(layout.result(stl), Path::new("/p/results/gate.json"));
     }
 }

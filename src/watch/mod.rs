@@ -41,7 +41,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc;
 use std::time::{Duration, Instant, SystemTime};
 
-use notify::event::{AccessKind, AccessMode, EventKind, ModifyKind};
+use notify::event::{AccessKind, AccessMode, EventKind, MetadataKind, ModifyKind};
 use notify::{RecursiveMode, Watcher};
 use serde_json::{Value, json};
 use thiserror::Error;
@@ -105,6 +105,11 @@ pub enum WatchError {
         path.display()
     )]
     ResultsLink { path: PathBuf },
+    #[error(
+        "the watched folder {} was moved or deleted; wetload stopped watching it and writes nothing more there or at its old place; start wetload watch again on the folder where it is now",
+        dir.display()
+    )]
+    FolderGone { dir: PathBuf },
 }
 
 /// How a run ended: whether every mesh computed in the last pass (for `--once`).
@@ -119,6 +124,8 @@ struct MeshState {
     /// Hashes of the last computed mesh and sidecar.
     hashes: Option<(String, String)>,
     iteration: u64,
+    /// Facets of the last computed mesh (which exports it has depends on it).
+    facets: Option<usize>,
     /// `cases` of the previous and of the first `computed` line.
     previous: Option<Value>,
     baseline: Option<Value>,
@@ -131,15 +138,39 @@ struct Watch<'a> {
     opts: &'a WatchOptions,
     /// The watched folder, canonical, so event paths compare equal to scanned ones.
     dir: PathBuf,
-    results: Layout,
+    /// Device and inode of the watched folder when the watcher started.
+    folder_id: Option<(u64, u64)>,
     log: ChangeLog,
+    /// The page, with the change log's lines and the results in memory, and the layout.
+    page: outputs::Page,
+    /// Meshes whose history chart is to be written with the next page.
+    changed: Vec<String>,
     meshes: BTreeMap<PathBuf, MeshState>,
+    /// Links in the folder to files in the folder: target → links.
+    links: BTreeMap<PathBuf, BTreeSet<PathBuf>>,
     out: Box<dyn Write + 'a>,
     /// Meshes whose result could not be written before the schedule existed (first pass).
     write_retry: Vec<PathBuf>,
     /// The last note about the folder's page, so an identical one is not repeated.
     page_note: Option<String>,
 }
+
+/// Device and inode of a file or folder.
+fn identity(meta: &fs::Metadata) -> Option<(u64, u64)> {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        Some((meta.dev(), meta.ino()))
+    }
+    #[cfg(not(unix))]
+    {
+        let _ = meta;
+        None
+    }
+}
+
+/// One file-system event or error, with the instant it arrived.
+type Arrival = (Instant, notify::Result<notify::Event>);
 
 /// Runs the watcher until `stop` is set (or once, with `opts.once`).
 pub fn run(
@@ -153,19 +184,23 @@ pub fn run(
     };
     let dir = fs::canonicalize(&opts.dir).map_err(folder_err)?;
     fs::read_dir(&dir).map_err(folder_err)?;
-    let results = Layout::new(dir.join(results::DIR_NAME));
-    if fs::symlink_metadata(results.dir()).is_ok_and(|m| m.file_type().is_symlink()) {
+    let folder_id = fs::metadata(&dir).ok().as_ref().and_then(identity);
+    let layout = Layout::new(dir.join(results::DIR_NAME));
+    if fs::symlink_metadata(layout.dir()).is_ok_and(|m| m.file_type().is_symlink()) {
         return Err(WatchError::ResultsLink {
-            path: results.dir().to_owned(),
+            path: layout.dir().to_owned(),
         });
     }
-    let (log, recovered) = ChangeLog::open(results.dir())?;
+    let (log, recovered) = ChangeLog::open(layout.dir())?;
     let mut w = Watch {
         opts,
         dir: dir.clone(),
-        results,
+        folder_id,
         log,
+        page: outputs::Page::load(layout, Vec::new(), opts.units),
+        changed: Vec::new(),
         meshes: BTreeMap::new(),
+        links: BTreeMap::new(),
         out,
         write_retry: Vec::new(),
         page_note: None,
@@ -174,22 +209,33 @@ pub fn run(
         w.say(&format!("note: {note}\n"));
     }
     w.restore(&recovered.lines);
+    for line in recovered.lines {
+        w.page.record(line);
+    }
 
-    // Start watching before the first scan, so a save during the scan is not lost.
-    let (tx, rx) = mpsc::channel();
+    // Start watching before the first scan, so a save during the scan is not lost. Each
+    // event is stamped with the instant it arrives.
+    let (tx, rx) = mpsc::channel::<Arrival>();
+    let handler = move |res| {
+        let _ = tx.send((Instant::now(), res));
+    };
     let mut watcher: Box<dyn Watcher> = if opts.once {
         Box::new(notify::NullWatcher)
     } else if let Some(interval) = opts.poll {
-        let config = notify::Config::default().with_poll_interval(interval);
-        Box::new(
-            notify::PollWatcher::new(tx, config).map_err(|source| WatchError::Notify {
+        // Modification times are compared in whole seconds: the contents are compared
+        // too, so two saves within one second are both seen.
+        let config = notify::Config::default()
+            .with_poll_interval(interval)
+            .with_compare_contents(true);
+        Box::new(notify::PollWatcher::new(handler, config).map_err(|source| {
+            WatchError::Notify {
                 dir: dir.clone(),
                 source,
-            })?,
-        )
+            }
+        })?)
     } else {
         Box::new(
-            notify::recommended_watcher(tx).map_err(|source| WatchError::Notify {
+            notify::recommended_watcher(handler).map_err(|source| WatchError::Notify {
                 dir: dir.clone(),
                 source,
             })?,
@@ -205,12 +251,14 @@ pub fn run(
     }
 
     let mut failures = 0;
+    w.refresh_names(Instant::now());
     for mesh in scan(&dir) {
         if !w.process(&mesh, None)? {
             failures += 1;
         }
     }
-    w.refresh_page(!opts.once);
+    w.changed.clear();
+    w.refresh_page(!opts.once, true);
     if opts.once {
         return Ok(Outcome { failures });
     }
@@ -224,42 +272,45 @@ pub fn run(
     for mesh in std::mem::take(&mut w.write_retry) {
         schedule.retry(mesh, Instant::now() + WRITE_RETRY);
     }
+    let mut unread: Vec<(PathBuf, Instant)> = Vec::new();
+    let mut page_due = false;
     while !stop.load(Ordering::SeqCst) {
+        if w.folder_gone() {
+            return Err(WatchError::FolderGone { dir });
+        }
+        // Everything that has arrived counts before anything is released.
+        loop {
+            match rx.try_recv() {
+                Ok((at, res)) => unread.extend(w.touches(at, res)),
+                Err(mpsc::TryRecvError::Empty) => break,
+                Err(mpsc::TryRecvError::Disconnected) => return Ok(Outcome { failures: 0 }),
+            }
+        }
+        if let Some(mesh) = schedule.next_due(unread.drain(..), Instant::now()) {
+            w.process(&mesh, Some(&mut schedule))?;
+            page_due = true;
+            continue;
+        }
+        if page_due {
+            w.refresh_page(true, false);
+            page_due = false;
+            continue;
+        }
         let wait = schedule
             .next_in(Instant::now())
             .unwrap_or(Duration::from_millis(200))
             .min(Duration::from_millis(200));
         match rx.recv_timeout(wait) {
-            Ok(Ok(event)) => {
-                let now = Instant::now();
-                if event.need_rescan() {
-                    for mesh in scan(&dir) {
-                        schedule.touch(mesh, now);
-                    }
-                }
-                if is_write(&event.kind) {
-                    for p in &event.paths {
-                        for mesh in w.meshes_for(p) {
-                            schedule.touch(mesh, now);
-                        }
-                    }
-                }
-            }
-            Ok(Err(e)) => w.say(&format!("note: file-system event error: {e}; rescanning\n")),
+            Ok((at, res)) => unread.extend(w.touches(at, res)),
             Err(mpsc::RecvTimeoutError::Timeout) => {}
             Err(mpsc::RecvTimeoutError::Disconnected) => break,
-        }
-        let due = schedule.due(Instant::now());
-        for mesh in &due {
-            w.process(mesh, Some(&mut schedule))?;
-        }
-        if !due.is_empty() {
-            w.refresh_page(true);
         }
     }
     drop(watcher);
     // Stopped: the page no longer needs to reload itself.
-    w.refresh_page(false);
+    if !w.folder_gone() {
+        w.refresh_page(false, false);
+    }
     Ok(Outcome { failures: 0 })
 }
 
@@ -291,14 +342,32 @@ fn is_temp_name(p: &Path) -> bool {
             .any(|s| name.to_ascii_lowercase().ends_with(s))
 }
 
-/// Events that can mean new content (not the tool's own reads).
+/// Events that can mean new content (not the tool's own reads). The poll watcher reports
+/// a changed file as a new modification time.
 fn is_write(kind: &EventKind) -> bool {
     matches!(
         kind,
         EventKind::Create(_)
             | EventKind::Remove(_)
-            | EventKind::Modify(ModifyKind::Data(_) | ModifyKind::Name(_) | ModifyKind::Any)
+            | EventKind::Modify(
+                ModifyKind::Data(_)
+                    | ModifyKind::Name(_)
+                    | ModifyKind::Any
+                    | ModifyKind::Metadata(MetadataKind::WriteTime)
+            )
             | EventKind::Access(AccessKind::Close(AccessMode::Write))
+            | EventKind::Any
+    )
+}
+
+/// Events after which the folder may hold other names (so links and shared stems are
+/// looked at again).
+fn renames(kind: &EventKind) -> bool {
+    matches!(
+        kind,
+        EventKind::Create(_)
+            | EventKind::Remove(_)
+            | EventKind::Modify(ModifyKind::Name(_))
             | EventKind::Any
     )
 }
@@ -308,6 +377,31 @@ fn is_write(kind: &EventKind) -> bool {
 fn leads_outside(dir: &Path, p: &Path) -> bool {
     fs::symlink_metadata(p).is_ok_and(|m| m.file_type().is_symlink())
         && fs::canonicalize(p).is_ok_and(|target| !target.starts_with(dir))
+}
+
+/// The links among the meshes and sidecars of `dir` (canonical) that lead to a file
+/// directly in `dir`: target → links.
+fn link_map(dir: &Path) -> BTreeMap<PathBuf, BTreeSet<PathBuf>> {
+    let mut map: BTreeMap<PathBuf, BTreeSet<PathBuf>> = BTreeMap::new();
+    let Ok(rd) = fs::read_dir(dir) else {
+        return map;
+    };
+    for e in rd.filter_map(Result::ok) {
+        let p = e.path();
+        let relevant = crate::mesh::is_mesh_path(&p)
+            || p.extension()
+                .is_some_and(|x| x.eq_ignore_ascii_case("json"));
+        if !relevant || !e.file_type().is_ok_and(|t| t.is_symlink()) {
+            continue;
+        }
+        if let Ok(target) = fs::canonicalize(&p)
+            && target.parent() == Some(dir)
+            && target != p
+        {
+            map.entry(target).or_default().insert(p);
+        }
+    }
+    map
 }
 
 fn hash(bytes: &[u8]) -> String {
@@ -324,10 +418,45 @@ fn clock() -> String {
     jiff::Zoned::now().strftime("%H:%M:%S").to_string()
 }
 
+fn file_name(p: &Path) -> String {
+    p.file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default()
+}
+
+/// Size and modification time of a file, to tell whether it changed while it was read.
+fn fingerprint(p: &Path) -> Option<(u64, Option<SystemTime>)> {
+    fs::metadata(p).ok().map(|m| (m.len(), m.modified().ok()))
+}
+
 impl Watch<'_> {
     fn say(&mut self, text: &str) {
         let _ = self.out.write_all(text.as_bytes());
         let _ = self.out.flush();
+    }
+
+    fn layout(&self) -> &Layout {
+        self.page.layout()
+    }
+
+    /// Whether the watched folder is no longer where it was (moved, deleted, or another
+    /// folder now has its name).
+    fn folder_gone(&self) -> bool {
+        match fs::metadata(&self.dir) {
+            Ok(m) => identity(&m) != self.folder_id,
+            Err(_) => true,
+        }
+    }
+
+    /// Appends a line to the change log, says loudly what had to be repaired first, and
+    /// keeps the line for the page.
+    fn append(&mut self, line: Value) -> Result<(), WatchError> {
+        let notes = self.log.append(&line)?;
+        for note in notes {
+            self.say(&format!("WARNING: {note}\n"));
+        }
+        self.page.record(line);
+        Ok(())
     }
 
     /// Rebuilds per-mesh iteration, previous and baseline from an existing change log.
@@ -345,6 +474,9 @@ impl Watch<'_> {
                     if st.baseline.is_none() {
                         st.baseline = Some(line["cases"].clone());
                     }
+                    st.facets = line["facets"]
+                        .as_u64()
+                        .and_then(|f| usize::try_from(f).ok());
                     if let (Some(m), Some(s)) =
                         (line["mesh_hash"].as_str(), line["sidecar_hash"].as_str())
                     {
@@ -359,13 +491,90 @@ impl Watch<'_> {
         }
     }
 
+    /// Looks at the folder's names again: links to files in it, and meshes that share a
+    /// stem (said once; the meshes whose file names change are computed again).
+    fn refresh_names(&mut self, at: Instant) -> Vec<(PathBuf, Instant)> {
+        self.links = link_map(&self.dir);
+        let meshes = scan(&self.dir);
+        let before = self.layout().clone();
+        let newly = self
+            .page
+            .layout_mut()
+            .set_meshes(meshes.iter().map(PathBuf::as_path));
+        for stem in newly {
+            let sharing: Vec<&PathBuf> =
+                meshes.iter().filter(|m| results::stem(m) == stem).collect();
+            let names: Vec<String> = sharing.iter().map(|m| file_name(m)).collect();
+            let files: Vec<String> = sharing
+                .iter()
+                .map(|m| format!("results/{}", file_name(&self.layout().result(m))))
+                .collect();
+            let text = format!(
+                "note: {} share the stem {stem:?}: their results are {} (exports and charts are named the same way)\n",
+                names.join(" and "),
+                files.join(" and ")
+            );
+            self.say(&text);
+        }
+        let mut touched = Vec::new();
+        for m in &meshes {
+            if before.name(m) != self.layout().name(m) {
+                // Its files have a new name: write them there.
+                if let Some(st) = self.meshes.get_mut(m) {
+                    st.hashes = None;
+                }
+                touched.push((m.clone(), at));
+            }
+        }
+        touched
+    }
+
+    /// The meshes an event concerns, each with the instant it arrived.
+    fn touches(
+        &mut self,
+        at: Instant,
+        res: notify::Result<notify::Event>,
+    ) -> Vec<(PathBuf, Instant)> {
+        let event = match res {
+            Ok(event) => event,
+            Err(e) => {
+                self.say(&format!("note: file-system event error: {e}; rescanning\n"));
+                return scan(&self.dir).into_iter().map(|m| (m, at)).collect();
+            }
+        };
+        let mut out = Vec::new();
+        if event.need_rescan() {
+            out.extend(self.refresh_names(at));
+            out.extend(scan(&self.dir).into_iter().map(|m| (m, at)));
+        }
+        if is_write(&event.kind) {
+            if renames(&event.kind) {
+                out.extend(self.refresh_names(at));
+            }
+            for p in &event.paths {
+                out.extend(self.meshes_for(p).into_iter().map(|m| (m, at)));
+            }
+        }
+        out
+    }
+
     /// The meshes a changed path concerns: itself if it is a mesh, the meshes with its
-    /// stem if it is a sidecar; nothing for anything else.
+    /// stem if it is a sidecar, and the same for every link in the folder to it; nothing
+    /// for anything else.
     fn meshes_for(&self, p: &Path) -> Vec<PathBuf> {
         // Only direct children of the folder count: never anything inside results/.
         if is_temp_name(p) || p.parent() != Some(self.dir.as_path()) {
             return Vec::new();
         }
+        let mut out: BTreeSet<PathBuf> = BTreeSet::new();
+        let links = self.links.get(p).into_iter().flatten();
+        for q in std::iter::once(p).chain(links.map(PathBuf::as_path)) {
+            out.extend(self.direct_meshes_for(q));
+        }
+        out.into_iter().collect()
+    }
+
+    fn direct_meshes_for(&self, p: &Path) -> Vec<PathBuf> {
         if crate::mesh::is_mesh_path(p) {
             return vec![p.to_owned()];
         }
@@ -397,16 +606,19 @@ impl Watch<'_> {
         mesh: &Path,
         schedule: Option<&mut Schedule>,
     ) -> Result<bool, WatchError> {
-        let name = mesh
-            .file_name()
-            .map(|n| n.to_string_lossy().into_owned())
-            .unwrap_or_default();
+        let name = file_name(mesh);
         if !mesh.exists() {
+            // Not a removal when the whole folder went (or moved).
+            if self.folder_gone() {
+                return Err(WatchError::FolderGone {
+                    dir: self.dir.clone(),
+                });
+            }
             let known = self.meshes.get(mesh).is_some_and(|s| s.hashes.is_some());
             if known {
                 self.meshes.entry(mesh.to_owned()).or_default().hashes = None;
                 self.mark_stale(mesh, "the mesh file was deleted");
-                self.log.append(&json!({
+                self.append(json!({
                     "time": now_rfc3339(), "mesh": name, "event": "removed",
                 }))?;
                 self.say(&format!(
@@ -429,12 +641,15 @@ impl Watch<'_> {
             };
             return self.failed(mesh, &name, &e, None);
         }
+        let before = fingerprint(mesh);
         let inputs = match pipeline::read_inputs(mesh) {
             Ok(i) => i,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
         };
-        // A file still growing while we read it is half-written: look again later.
-        let settled = fs::metadata(mesh).is_ok_and(|m| m.len() == inputs.mesh_bytes.len() as u64);
+        // A file that changed while we read it is half-written: look again later.
+        let after = fingerprint(mesh);
+        let settled =
+            before == after && after.is_some_and(|(len, _)| len == inputs.mesh_bytes.len() as u64);
         if !settled && let Some(s) = schedule {
             s.retry(mesh.to_owned(), Instant::now());
             return Ok(true);
@@ -444,57 +659,95 @@ impl Watch<'_> {
             hash(inputs.sidecar_text.as_bytes()),
         );
         let st = self.meshes.entry(mesh.to_owned()).or_default();
+        let mut rewrite = Vec::new();
         if st.hashes.as_ref() == Some(&hashes) {
-            let iteration = st.iteration;
-            st.retries = 0;
-            self.log.append(&json!({
-                "time": now_rfc3339(), "mesh": name, "event": "unchanged",
-                "iteration": iteration, "mesh_hash": hashes.0, "sidecar_hash": hashes.1,
-            }))?;
-            self.say(&format!(
-                "{} {name} · unchanged (iteration {iteration})\n",
-                clock()
-            ));
-            return Ok(true);
+            // The same content: nothing to compute, unless files of its result are gone.
+            let facets = st.facets;
+            rewrite = match (
+                crate::sidecar::parse_sidecar(&side, &inputs.sidecar_text),
+                facets,
+            ) {
+                (Ok(sc), Some(f)) => outputs::missing_files(self.layout(), mesh, &sc, f),
+                _ => vec![self.layout().result(mesh)]
+                    .into_iter()
+                    .filter(|p| !p.is_file())
+                    .collect(),
+            };
+            if rewrite.is_empty() {
+                let st = self.meshes.entry(mesh.to_owned()).or_default();
+                let iteration = st.iteration;
+                st.retries = 0;
+                self.append(json!({
+                    "time": now_rfc3339(), "mesh": name, "event": "unchanged",
+                    "iteration": iteration, "mesh_hash": hashes.0, "sidecar_hash": hashes.1,
+                }))?;
+                self.say(&format!(
+                    "{} {name} · unchanged (iteration {iteration})\n",
+                    clock()
+                ));
+                return Ok(true);
+            }
         }
-        let pipeline::Computed {
-            model,
-            sidecar,
-            result,
-        } = match pipeline::compute_parsed(mesh, inputs) {
+        let computed = match pipeline::compute_parsed(mesh, inputs) {
             Ok(c) => c,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
         };
-        let out = self.results.result(mesh);
-        if let Err(e) = results::write_atomic(&out, &crate::report::json::render(&result)) {
-            // A full or read-only results folder: say so once, keep running, try again
-            // every WRITE_RETRY (and on the next save).
-            let st = self.meshes.entry(mesh.to_owned()).or_default();
-            let first = !st.write_failing;
-            st.write_failing = true;
-            match schedule {
-                Some(s) => s.retry(mesh.to_owned(), Instant::now() + WRITE_RETRY),
-                None if !self.opts.once => self.write_retry.push(mesh.to_owned()),
-                None => {}
+        let layout = self.layout().clone();
+        let dropped = match pipeline::write_computed(&layout, mesh, &computed) {
+            Ok(d) => d,
+            Err(e) => {
+                // A full or read-only results folder: say so once, keep running, try
+                // again every WRITE_RETRY (and on the next save). Nothing was replaced.
+                let st = self.meshes.entry(mesh.to_owned()).or_default();
+                let first = !st.write_failing;
+                st.write_failing = true;
+                match schedule {
+                    Some(s) => s.retry(mesh.to_owned(), Instant::now() + WRITE_RETRY),
+                    None if !self.opts.once => self.write_retry.push(mesh.to_owned()),
+                    None => {}
+                }
+                if first {
+                    let again = if self.opts.once {
+                        String::new()
+                    } else {
+                        format!("; trying again every {} s", WRITE_RETRY.as_secs())
+                    };
+                    self.say(&format!("{} {name} · error: {e}{again}\n", clock()));
+                }
+                return Ok(false);
             }
-            if first {
-                let again = if self.opts.once {
-                    String::new()
-                } else {
-                    format!("; trying again every {} s", WRITE_RETRY.as_secs())
-                };
-                self.say(&format!("{} {name} · error: {e}{again}\n", clock()));
-            }
-            return Ok(false);
+        };
+        if let Some(d) = dropped {
+            self.say(&format!(
+                "{} {name} · note: {}; the exports were not written, and {} export(s) of the earlier result were removed so that none disagrees with the result\n",
+                clock(),
+                d.error,
+                d.removed.len()
+            ));
         }
-        // Pictures and exports: the result is written, so a failure here is only reported.
-        if let Err(e) = outputs::write_outputs(mesh, &model, &sidecar, &result) {
-            self.say(&format!("{} {name} · note: {e}\n", clock()));
-        }
+        self.page.reload(mesh);
+        self.changed.push(name.clone());
+        let result = computed.result;
         let st = self.meshes.entry(mesh.to_owned()).or_default();
-        st.iteration += 1;
         st.retries = 0;
+        st.facets = Some(result.inputs.facets);
         let recovered = std::mem::take(&mut st.write_failing);
+        if !rewrite.is_empty() {
+            let iteration = st.iteration;
+            let files: Vec<String> = rewrite.iter().map(|p| file_name(p)).collect();
+            self.append(json!({
+                "time": now_rfc3339(), "mesh": name, "event": "unchanged",
+                "iteration": iteration, "mesh_hash": hashes.0, "sidecar_hash": hashes.1,
+                "rewritten": files,
+            }))?;
+            self.say(&format!(
+                "{} {name} · unchanged (iteration {iteration}); missing result files written again: {}\n",
+                clock(),
+                files.join(", ")
+            ));
+            return Ok(true);
+        }
+        st.iteration += 1;
         let cases = record::cases_with_changes(&result, st.previous.as_ref(), st.baseline.as_ref());
         let cases = Value::Array(cases);
         st.previous = Some(cases.clone());
@@ -503,7 +756,7 @@ impl Watch<'_> {
         }
         st.hashes = Some(hashes.clone());
         let iteration = st.iteration;
-        self.log.append(&json!({
+        self.append(json!({
             "time": now_rfc3339(), "mesh": name, "event": "computed", "iteration": iteration,
             "mesh_hash": hashes.0, "sidecar_hash": hashes.1, "facets": result.inputs.facets,
             "warnings": result.warnings.len(), "cases": cases,
@@ -530,6 +783,11 @@ impl Watch<'_> {
         e: &RunError,
         schedule: Option<&mut Schedule>,
     ) -> Result<bool, WatchError> {
+        if self.folder_gone() {
+            return Err(WatchError::FolderGone {
+                dir: self.dir.clone(),
+            });
+        }
         let st = self.meshes.entry(mesh.to_owned()).or_default();
         // Deleted between the event and the read: look again (it will be noted removed).
         let vanished = !mesh.exists();
@@ -552,9 +810,10 @@ impl Watch<'_> {
         st.hashes = None;
         let message = e.to_string();
         let kept = self.mark_stale(mesh, &message);
-        self.log.append(&json!({
+        self.append(json!({
             "time": now_rfc3339(), "mesh": name, "event": "failed", "error": message,
         }))?;
+        self.changed.push(name.to_owned());
         let tail = if kept {
             "the last good result is kept, marked stale"
         } else {
@@ -567,9 +826,13 @@ impl Watch<'_> {
         Ok(false)
     }
 
-    /// Rewrites the folder's page (`live`: it reloads itself); a failure is only reported.
-    fn refresh_page(&mut self, live: bool) {
-        match outputs::write_folder_page(self.results.dir(), live, self.opts.units) {
+    /// Writes the folder's page (`live`: it reloads itself) and the history charts of the
+    /// meshes changed since the last time (`all`: of every mesh); a failure is only
+    /// reported.
+    fn refresh_page(&mut self, live: bool, all: bool) {
+        let changed = std::mem::take(&mut self.changed);
+        let only = (!all).then_some(changed.as_slice());
+        match self.page.write(only, live) {
             Ok(_) => self.page_note = None,
             Err(e) => {
                 // Said once while it keeps failing the same way.
@@ -582,9 +845,9 @@ impl Watch<'_> {
         }
     }
 
-    /// Marks `results/<stem>.json` stale with a reason; returns whether one existed.
+    /// Marks the result of `mesh` stale with a reason; returns whether one existed.
     fn mark_stale(&mut self, mesh: &Path, reason: &str) -> bool {
-        let path = self.results.result(mesh);
+        let path = self.layout().result(mesh);
         let Ok(bytes) = fs::read(&path) else {
             return false;
         };
@@ -602,6 +865,7 @@ impl Watch<'_> {
         if let Err(e) = results::write_atomic(&path, &text) {
             self.say(&format!("note: {e}\n"));
         }
+        self.page.reload(mesh);
         true
     }
 }

@@ -4,8 +4,17 @@
 //! it, or truncate and write in chunks, and the file system reports several events per
 //! save. The schedule holds each touched path until no event has arrived for it for the
 //! quiet window, then hands it out once. It knows nothing of files or notify; the watcher
-//! feeds it events and asks it which paths are due, so the logic is testable with
-//! invented instants.
+//! feeds it events and asks it which path is due, so the logic is testable with invented
+//! instants.
+//!
+//! The one way to ask is [`Schedule::next_due`], which takes every event the watcher has
+//! received but not yet fed (each with the instant it arrived) before it decides, and
+//! hands out one path at a time. So no path is released while an event for it is still
+//! waiting to be read: after a long computation, the events that queued up meanwhile
+//! count before anything else is released, and the watcher asks again after each
+//! recomputation rather than working through a list decided before it. Retries of files
+//! that looked half-written and of results that could not be written go through the
+//! same schedule.
 
 use std::collections::BTreeMap;
 use std::path::PathBuf;
@@ -40,19 +49,24 @@ impl Schedule {
         self.touch(path, at);
     }
 
-    /// Removes and returns the paths quiet since `now − quiet`, in path order.
-    pub fn due(&mut self, now: Instant) -> Vec<PathBuf> {
+    /// Feeds every event in `unread` (path, instant of arrival), then removes and
+    /// returns the first path, in path order, that has been quiet since `now − quiet`.
+    pub fn next_due(
+        &mut self,
+        unread: impl IntoIterator<Item = (PathBuf, Instant)>,
+        now: Instant,
+    ) -> Option<PathBuf> {
+        for (path, at) in unread {
+            self.touch(path, at);
+        }
         let quiet = self.quiet;
-        let due: Vec<PathBuf> = self
+        let due = self
             .pending
             .iter()
-            .filter(|(_, last)| now.saturating_duration_since(**last) >= quiet)
-            .map(|(p, _)| p.clone())
-            .collect();
-        for p in &due {
-            self.pending.remove(p);
-        }
-        due
+            .find(|(_, last)| now.saturating_duration_since(**last) >= quiet)
+            .map(|(p, _)| p.clone())?;
+        self.pending.remove(&due);
+        Some(due)
     }
 
     /// How long until the next path falls due (`None` when nothing is pending).
@@ -77,6 +91,40 @@ mod tests {
         Duration::from_millis(n)
     }
 
+    /// Every path due at `now` with nothing unread, in order.
+    fn due(s: &mut Schedule, now: Instant) -> Vec<PathBuf> {
+        std::iter::from_fn(|| s.next_due([], now)).collect()
+    }
+
+    #[test]
+    fn a_path_with_unread_events_is_not_released_on_its_last_read_one() {
+        // A slow computation held the watcher from 100 ms to 2000 ms; meanwhile b.obj was
+        // written every 250 ms up to 1900 ms. Its events wait unread; the last one read
+        // is from 0 ms.
+        let t0 = Instant::now();
+        let mut s = Schedule::new(ms(500));
+        s.touch(PathBuf::from("b.obj"), t0);
+        let unread: Vec<(PathBuf, Instant)> = (1..=7)
+            .map(|k| (PathBuf::from("b.obj"), t0 + ms(250 * k + 150)))
+            .collect();
+        assert_eq!(s.next_due(unread, t0 + ms(2000)), None);
+        assert_eq!(s.next_in(t0 + ms(2000)), Some(ms(400)));
+        assert_eq!(s.next_due([], t0 + ms(2400)), Some(PathBuf::from("b.obj")));
+    }
+
+    #[test]
+    fn paths_are_released_one_at_a_time_so_events_between_count() {
+        let t0 = Instant::now();
+        let mut s = Schedule::new(ms(100));
+        s.touch(PathBuf::from("a.stl"), t0);
+        s.touch(PathBuf::from("b.obj"), t0);
+        assert_eq!(s.next_due([], t0 + ms(100)), Some(PathBuf::from("a.stl")));
+        // While a.stl computed, b.obj was written again.
+        let later = [(PathBuf::from("b.obj"), t0 + ms(150))];
+        assert_eq!(s.next_due(later, t0 + ms(200)), None);
+        assert_eq!(s.next_due([], t0 + ms(250)), Some(PathBuf::from("b.obj")));
+    }
+
     #[test]
     fn a_burst_of_events_is_released_once_after_the_last() {
         let t0 = Instant::now();
@@ -85,10 +133,10 @@ mod tests {
             s.touch(PathBuf::from("gate.stl"), t0 + ms(10 * i));
         }
         // Last event at 490 ms: nothing is due before 790 ms.
-        assert!(s.due(t0 + ms(789)).is_empty());
+        assert!(due(&mut s, t0 + ms(789)).is_empty());
         assert_eq!(s.next_in(t0 + ms(700)), Some(ms(90)));
-        assert_eq!(s.due(t0 + ms(790)), vec![PathBuf::from("gate.stl")]);
-        assert!(s.due(t0 + ms(2000)).is_empty());
+        assert_eq!(due(&mut s, t0 + ms(790)), vec![PathBuf::from("gate.stl")]);
+        assert!(due(&mut s, t0 + ms(2000)).is_empty());
         assert!(s.is_empty());
     }
 
@@ -98,8 +146,8 @@ mod tests {
         let mut s = Schedule::new(ms(100));
         s.touch(PathBuf::from("a.stl"), t0);
         s.touch(PathBuf::from("b.obj"), t0 + ms(80));
-        assert_eq!(s.due(t0 + ms(120)), vec![PathBuf::from("a.stl")]);
-        assert_eq!(s.due(t0 + ms(180)), vec![PathBuf::from("b.obj")]);
+        assert_eq!(due(&mut s, t0 + ms(120)), vec![PathBuf::from("a.stl")]);
+        assert_eq!(due(&mut s, t0 + ms(180)), vec![PathBuf::from("b.obj")]);
     }
 
     #[test]
@@ -108,7 +156,7 @@ mod tests {
         let mut s = Schedule::new(ms(100));
         s.touch(PathBuf::from("a.stl"), t0 + ms(50));
         s.touch(PathBuf::from("a.stl"), t0);
-        assert!(s.due(t0 + ms(120)).is_empty());
-        assert_eq!(s.due(t0 + ms(150)).len(), 1);
+        assert!(due(&mut s, t0 + ms(120)).is_empty());
+        assert_eq!(due(&mut s, t0 + ms(150)).len(), 1);
     }
 }

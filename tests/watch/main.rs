@@ -8,6 +8,7 @@
 //! `WETLOAD_CRASH_SEED` to repeat a run's kill moments.
 
 mod crash;
+mod defects;
 mod policy;
 mod runs;
 mod saves;
