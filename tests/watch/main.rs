@@ -12,4 +12,5 @@ mod defects;
 mod policy;
 mod runs;
 mod saves;
+mod soak;
 mod support;
