@@ -11,6 +11,19 @@
 //! iterations it ran (warm-up included) and the part above the debounce window, which is
 //! what the watcher itself adds (event delivery, read, hash, compute, atomic write with
 //! fsync, change-log append). Target: debounce + under 100 ms.
+//!
+//! Two more set-ups measure what grows with the folder and with its history:
+//!
+//! * `save_to_result_1000_meshes`: 1,000 small closed boxes (48 facets each) with their
+//!   sidecars in the folder; each save rewrites one box's sidecar, in turn.
+//! * `save_to_result_100k_log`: 20 boxes and a change log of 100,000 lines about them
+//!   (written before the watcher starts); each save rewrites one box's sidecar.
+//!
+//! For both, the bench also times save → the folder's page `report.html` rewritten (the
+//! page follows the result) and reads the watcher's resident memory (`VmRSS`, and the peak
+//! `VmHWM`) after the first pass and at the end, to show whether memory stays flat.
+//! Target: within the window + 150 ms. `WETLOAD_LATENCY=torus|meshes|log` runs one set-up
+//! only (default: all three).
 
 use std::fs;
 use std::io::{BufRead, BufReader};
@@ -84,7 +97,157 @@ fn median(v: &mut [Duration]) -> Duration {
     }
 }
 
+/// Whether the set-up `name` is to run (`WETLOAD_LATENCY`, default all).
+fn wanted(name: &str) -> bool {
+    std::env::var("WETLOAD_LATENCY").map_or(true, |v| v.split(',').any(|x| x == name))
+}
+
+/// `VmRSS` and `VmHWM` of a process, MB (0 where `/proc` has no answer).
+fn memory_mb(pid: u32) -> (f64, f64) {
+    let status = fs::read_to_string(format!("/proc/{pid}/status")).unwrap_or_default();
+    let field = |key: &str| {
+        status
+            .lines()
+            .find(|l| l.starts_with(key))
+            .and_then(|l| l.split_whitespace().nth(1))
+            .and_then(|kb| kb.parse::<f64>().ok())
+            .map_or(0.0, |kb| kb / 1024.0)
+    };
+    (field("VmRSS:"), field("VmHWM:"))
+}
+
+/// A closed box 2 × 1 × `h` m (48 facets) as a binary STL.
+fn small_box(h: f64) -> Vec<u8> {
+    let tris = shapes::box_solid([0.0, 0.0, 0.0], [2.0, 1.0, h], 2);
+    shapes::encode::stl_binary(&tris, "wetload latency bench box")
+}
+
+/// Times `saves` saves of the sidecars of `stems` in turn (levels alternating), each from
+/// the save to the new result and to the rewritten page; prints medians and memory.
+fn saves_in_a_folder(c: &mut Criterion, label: &str, dir: &Path, stems: &[String]) {
+    let watcher = start(dir);
+    let pid = watcher.0.id();
+    let first = memory_mb(pid);
+    let page = dir.join("results").join("report.html");
+    let mut to_result = Vec::new();
+    let mut to_page = Vec::new();
+    let mut k = 0usize;
+    let mut g = c.benchmark_group("watch");
+    g.sample_size(10)
+        .sampling_mode(SamplingMode::Flat)
+        .warm_up_time(Duration::from_secs(1))
+        .measurement_time(Duration::from_secs(8));
+    g.bench_function(label, |b| {
+        b.iter_custom(|iters| {
+            let mut total = Duration::ZERO;
+            for _ in 0..iters {
+                let stem = &stems[k % stems.len()];
+                k += 1;
+                let result = dir.join("results").join(format!("{stem}.json"));
+                let before = fs::read(&result).expect("read result");
+                let page_before = fs::read(&page).unwrap_or_default();
+                let level = if (k / stems.len()).is_multiple_of(2) {
+                    0.5
+                } else {
+                    0.25
+                };
+                let t0 = Instant::now();
+                fs::write(dir.join(format!("{stem}.json")), sidecar(level)).expect("save");
+                let mut got_result = None;
+                loop {
+                    thread::sleep(Duration::from_millis(2));
+                    if got_result.is_none() && fs::read(&result).is_ok_and(|now| now != before) {
+                        got_result = Some(t0.elapsed());
+                    }
+                    if got_result.is_some() && fs::read(&page).is_ok_and(|now| now != page_before) {
+                        break;
+                    }
+                    assert!(
+                        t0.elapsed() < Duration::from_secs(30),
+                        "no new result and page 30 s after a save"
+                    );
+                }
+                let dr = got_result.expect("result seen");
+                to_result.push(dr);
+                to_page.push(t0.elapsed());
+                total += dr;
+            }
+            total
+        })
+    });
+    g.finish();
+    let last = memory_mb(pid);
+    let (mr, mp) = (median(&mut to_result), median(&mut to_page));
+    println!(
+        "{label}: over {} saves (warm-up included): save → result median {:.1} ms (debounce {} ms + {:.1} ms), save → page median {:.1} ms; \
+         watcher memory after the first pass {:.1} MB (peak {:.1} MB), at the end {:.1} MB (peak {:.1} MB)",
+        to_result.len(),
+        mr.as_secs_f64() * 1e3,
+        DEBOUNCE.as_millis(),
+        mr.saturating_sub(DEBOUNCE).as_secs_f64() * 1e3,
+        mp.as_secs_f64() * 1e3,
+        first.0,
+        first.1,
+        last.0,
+        last.1,
+    );
+}
+
+fn thousand_meshes(c: &mut Criterion) {
+    if !wanted("meshes") {
+        return;
+    }
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    let stems: Vec<String> = (0..1000).map(|i| format!("m{i:04}")).collect();
+    for s in &stems {
+        fs::write(p.join(format!("{s}.stl")), small_box(1.0)).expect("mesh");
+        fs::write(p.join(format!("{s}.json")), sidecar(0.25)).expect("sidecar");
+    }
+    // Saves spread over the folder, every one a different mesh.
+    let picked: Vec<String> = stems.iter().step_by(37).cloned().collect();
+    saves_in_a_folder(c, "save_to_result_1000_meshes", p, &picked);
+}
+
+fn long_log(c: &mut Criterion) {
+    if !wanted("log") {
+        return;
+    }
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    let stems: Vec<String> = (0..20).map(|i| format!("m{i:02}")).collect();
+    for s in &stems {
+        fs::write(p.join(format!("{s}.stl")), small_box(1.0)).expect("mesh");
+        fs::write(p.join(format!("{s}.json")), sidecar(0.25)).expect("sidecar");
+    }
+    // 100,000 `computed` lines, 5,000 a mesh, in the change log's format (the hashes are
+    // of no content, so the first pass computes every mesh once more).
+    fs::create_dir(p.join("results")).expect("results");
+    let mut log = String::with_capacity(100_000 * 700);
+    for i in 0..100_000usize {
+        let stem = &stems[i % 20];
+        let it = i / 20 + 1;
+        let f = 9806.65 * (0.25 + (it % 7) as f64 * 0.01) * 2.0;
+        log.push_str(&format!(
+            concat!(
+                "{{\"time\":\"2026-01-01T00:00:00.000Z\",\"mesh\":\"{}.stl\",\"event\":\"computed\",",
+                "\"iteration\":{},\"mesh_hash\":\"{:064x}\",\"sidecar_hash\":\"{:064x}\",\"facets\":48,\"warnings\":0,",
+                "\"cases\":[{{\"name\":\"default\",\"force\":[0.0,0.0,{}],\"moment\":[{},{},0.0],",
+                "\"vertical_force\":{},\"uplift\":{},\"downthrust\":0.0,\"wetted_area\":5.0,",
+                "\"submerged_volume\":0.5,\"axis_moments\":{{}},\"flotation_factor\":null,",
+                "\"change\":null,\"since_baseline\":null}}]}}\n"
+            ),
+            stem, it, i, i, f, 0.5 * f, -f, f, f
+        ));
+    }
+    fs::write(p.join("results").join("changes.jsonl"), log).expect("log");
+    saves_in_a_folder(c, "save_to_result_100k_log", p, &stems);
+}
+
 fn latency(c: &mut Criterion) {
+    if !wanted("torus") {
+        return;
+    }
     let dir = tempfile::tempdir().expect("temp dir");
     let p = dir.path();
     // 250 × 200 quads: 100,000 facets, closed, wound outward.
@@ -154,5 +317,5 @@ fn latency(c: &mut Criterion) {
     );
 }
 
-criterion_group!(benches, latency);
+criterion_group!(benches, latency, thousand_meshes, long_log);
 criterion_main!(benches);
