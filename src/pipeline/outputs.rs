@@ -14,7 +14,7 @@
 //! `field_exports` says `always` or `never`; when they are not written, those of an earlier
 //! iteration are removed so that no export disagrees with the result beside it.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 use std::fs;
 use std::path::{Path, PathBuf};
 
@@ -194,23 +194,33 @@ pub fn write_folder_page(
     live: bool,
     units: UnitSystem,
 ) -> Result<Vec<PathBuf>, RunError> {
-    let page = Page::load(
+    let mut page = Page::load(
         Layout::new(results_dir.to_owned()),
         changelog::read_lines(results_dir),
         units,
     );
-    page.write(None, live)
+    page.write(true, live)
 }
 
-/// The folder's page as a watcher keeps it: the change log's lines and the result
-/// documents held in memory, read once, so that a save costs the writing of its own
-/// history chart and of the page, not a new reading of the log or of every result.
+/// The folder's page as a watcher keeps it: the change log read once and kept, each
+/// mesh's lines apart (as their JSON text, parsed only when that mesh's section or chart is
+/// drawn again), the result documents, and every mesh's rendered section. A save costs the
+/// drawing of its own mesh's section and history chart and the assembling of the page;
+/// the other meshes' sections are reused, and nothing is read again from disk but the one
+/// result document written.
 pub struct Page {
     layout: Layout,
     units: UnitSystem,
-    log: Vec<Value>,
+    /// Each mesh's change-log lines, by mesh file name.
+    history: BTreeMap<String, Vec<Box<str>>>,
+    /// Whether each mesh's last line is a failure.
+    last_failed: BTreeMap<String, bool>,
     /// By mesh file name.
     meshes: BTreeMap<String, html::MeshEntry>,
+    /// Each mesh's section as last drawn.
+    sections: BTreeMap<String, String>,
+    /// Meshes whose section (and history chart) is to be drawn again.
+    dirty: BTreeSet<String>,
 }
 
 impl Page {
@@ -221,12 +231,19 @@ impl Page {
             .into_iter()
             .map(|m| (m.mesh.clone(), m))
             .collect();
-        Page {
+        let mut page = Page {
             layout,
             units,
-            log,
+            history: BTreeMap::new(),
+            last_failed: BTreeMap::new(),
             meshes,
+            sections: BTreeMap::new(),
+            dirty: BTreeSet::new(),
+        };
+        for line in log {
+            page.record(line);
         }
+        page
     }
 
     /// The layout the page writes into.
@@ -241,7 +258,16 @@ impl Page {
 
     /// A line appended to the change log.
     pub fn record(&mut self, line: Value) {
-        self.log.push(line);
+        let Some(name) = line["mesh"].as_str().map(str::to_owned) else {
+            return;
+        };
+        self.last_failed
+            .insert(name.clone(), line["event"] == "failed");
+        self.history
+            .entry(name.clone())
+            .or_default()
+            .push(line.to_string().into_boxed_str());
+        self.dirty.insert(name);
     }
 
     /// Reads the result document of `mesh` again (after it was written or marked).
@@ -256,7 +282,7 @@ impl Page {
                     name.clone(),
                     html::MeshEntry {
                         stem: self.layout.name(mesh_path),
-                        mesh: name,
+                        mesh: name.clone(),
                         result: Some(doc),
                     },
                 );
@@ -265,44 +291,63 @@ impl Page {
                 self.meshes.remove(&name);
             }
         }
+        self.dirty.insert(name);
     }
 
-    /// Writes the page, and the history charts of `changed` (mesh file names; `None`:
-    /// every mesh's); returns the paths written. Both are derived files, written
-    /// atomically but not flushed to disk.
-    pub fn write(&self, changed: Option<&[String]>, live: bool) -> Result<Vec<PathBuf>, RunError> {
+    /// The change-log lines of one mesh, parsed.
+    fn lines_of(&self, mesh: &str) -> Vec<Value> {
+        self.history
+            .get(mesh)
+            .into_iter()
+            .flatten()
+            .filter_map(|l| serde_json::from_str(l).ok())
+            .collect()
+    }
+
+    /// Writes the page, and the history charts of the meshes that changed since the last
+    /// write (`all`: of every mesh); returns the paths written. Both are derived files,
+    /// written atomically but not flushed to disk.
+    pub fn write(&mut self, all: bool, live: bool) -> Result<Vec<PathBuf>, RunError> {
         let mut meshes: Vec<html::MeshEntry> = self.meshes.values().cloned().collect();
         // Meshes that never computed but are in the log (their last event failed).
-        let mut last: BTreeMap<&str, &Value> = BTreeMap::new();
-        for line in &self.log {
-            if let Some(name) = line["mesh"].as_str() {
-                last.insert(name, line);
-            }
-        }
-        for (name, line) in last {
-            if !self.meshes.contains_key(name) && line["event"] == "failed" {
+        for (name, failed) in &self.last_failed {
+            if *failed && !self.meshes.contains_key(name) {
                 meshes.push(html::MeshEntry {
                     stem: results::stem(Path::new(name)),
-                    mesh: name.to_owned(),
+                    mesh: name.clone(),
                     result: None,
                 });
             }
         }
         meshes.sort_by(|a, b| a.mesh.cmp(&b.mesh));
 
+        let units = Units::of(self.units);
         let mut written = Vec::new();
+        let dirty = std::mem::take(&mut self.dirty);
         for m in &meshes {
-            if changed.is_some_and(|c| !c.contains(&m.mesh)) {
+            let again = all || dirty.contains(&m.mesh) || !self.sections.contains_key(&m.mesh);
+            if !again {
                 continue;
             }
+            let lines = self.lines_of(&m.mesh);
             let up = m.result.as_ref().and_then(|r| r["inputs"]["up"].as_str());
-            if let Some(chart) = svg::history_chart(&m.mesh, &self.log, up, &Units::of(self.units))
+            if (all || dirty.contains(&m.mesh))
+                && let Some(chart) = svg::history_chart(&m.mesh, &lines, up, &units)
             {
                 let path = self.layout.history_chart(&m.stem);
                 results::write_atomic_unsynced(&path, &svg::render(&chart))?;
                 written.push(path);
             }
+            self.sections
+                .insert(m.mesh.clone(), html::section(m, &lines, &units));
         }
+        self.sections
+            .retain(|name, _| meshes.iter().any(|m| &m.mesh == name));
+        let sections: Vec<String> = meshes
+            .iter()
+            .map(|m| self.sections.get(&m.mesh).cloned().unwrap_or_default())
+            .collect();
+
         let results_dir = self.layout.dir();
         let folder = results_dir
             .parent()
@@ -317,17 +362,17 @@ impl Page {
         // (`read_project` looks beside the path it is given: the folder that holds results/.)
         let project = super::read_project(results_dir).ok().flatten();
         let page = html::FolderPage {
-            units: Units::of(self.units),
+            units,
             project: project.as_ref(),
             folder: &folder.display().to_string(),
             generated: &generated,
             live,
             meshes: &meshes,
-            log: &self.log,
+            log: &[],
             caution: compute::CAUTION,
         };
         let path = self.layout.page();
-        results::write_atomic_unsynced(&path, &html::render(&page))?;
+        results::write_atomic_unsynced(&path, &html::render_with_sections(&page, &sections))?;
         written.push(path);
         Ok(written)
     }

@@ -118,19 +118,21 @@ fn take_lock(path: &Path, log: &Path) -> Result<File, LogError> {
     }
 }
 
-/// What was in the log when it was opened.
+/// What was in the log when it was opened, besides its lines.
 #[derive(Debug, Default)]
 pub struct Recovered {
-    /// Every complete line that parsed, in order.
-    pub lines: Vec<Value>,
     /// What was repaired or skipped, for the terminal.
     pub notes: Vec<String>,
 }
 
 impl ChangeLog {
     /// Opens (creating) `dir/changes.jsonl` for appending, takes the folder lock, repairs
-    /// a torn last line and returns the complete lines.
-    pub fn open(dir: &Path) -> Result<(ChangeLog, Recovered), LogError> {
+    /// a torn last line, and hands every complete line that parses to `each`, in order (one
+    /// at a time: the lines are never all held parsed at once).
+    pub fn open(
+        dir: &Path,
+        mut each: impl FnMut(Value),
+    ) -> Result<(ChangeLog, Recovered), LogError> {
         let layout = Layout::new(dir.to_owned());
         let path = layout.change_log();
         let io_err = |source| LogError::Io {
@@ -201,7 +203,7 @@ impl ChangeLog {
                 continue;
             }
             match serde_json::from_slice::<Value>(line) {
-                Ok(v) => recovered.lines.push(v),
+                Ok(v) => each(v),
                 Err(e) => recovered.notes.push(format!(
                     "{} line {}: not JSON ({e}); left as it is and ignored",
                     path.display(),
@@ -335,8 +337,9 @@ mod tests {
             "{\"event\":\"computed\",\"mesh\":\"a.stl\"}\n{\"event\":\"comp",
         )
         .expect("write");
-        let (mut log, rec) = ChangeLog::open(dir).expect("open");
-        assert_eq!(rec.lines.len(), 1);
+        let mut lines = 0;
+        let (mut log, rec) = ChangeLog::open(dir, |_| lines += 1).expect("open");
+        assert_eq!(lines, 1);
         assert_eq!(rec.notes.len(), 1);
         log.append(&json!({"event": "removed"})).expect("append");
         drop(log);
@@ -353,20 +356,20 @@ mod tests {
     fn a_second_log_on_the_same_folder_is_refused() {
         let top = tempfile::tempdir().expect("temp dir");
         let dir = top.path().join("results");
-        let (_first, _) = ChangeLog::open(&dir).expect("open");
-        match ChangeLog::open(&dir) {
+        let (_first, _) = ChangeLog::open(&dir, |_| {}).expect("open");
+        match ChangeLog::open(&dir, |_| {}) {
             Err(LogError::Locked { .. }) => {}
             other => panic!("expected Locked, got {other:?}"),
         }
         // Neither deleting the lock file nor the whole results folder lets a second in.
         fs::remove_file(dir.join(LOCK_NAME)).expect("rm lock");
         assert!(matches!(
-            ChangeLog::open(&dir),
+            ChangeLog::open(&dir, |_| {}),
             Err(LogError::Locked { .. })
         ));
         fs::remove_dir_all(&dir).expect("rm results");
         assert!(matches!(
-            ChangeLog::open(&dir),
+            ChangeLog::open(&dir, |_| {}),
             Err(LogError::Locked { .. })
         ));
     }
@@ -375,7 +378,7 @@ mod tests {
     fn a_deleted_or_replaced_log_is_written_again_with_every_line() {
         let top = tempfile::tempdir().expect("temp dir");
         let dir = top.path().join("results");
-        let (mut log, _) = ChangeLog::open(&dir).expect("open");
+        let (mut log, _) = ChangeLog::open(&dir, |_| {}).expect("open");
         assert!(log.append(&json!({"n": 1})).expect("append").is_empty());
         fs::remove_file(dir.join(LOG_NAME)).expect("rm log");
         let notes = log.append(&json!({"n": 2})).expect("append");

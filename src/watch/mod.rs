@@ -143,8 +143,6 @@ struct Watch<'a> {
     log: ChangeLog,
     /// The page, with the change log's lines and the results in memory, and the layout.
     page: outputs::Page,
-    /// Meshes whose history chart is to be written with the next page.
-    changed: Vec<String>,
     meshes: BTreeMap<PathBuf, MeshState>,
     /// Links in the folder to files in the folder: target → links.
     links: BTreeMap<PathBuf, BTreeSet<PathBuf>>,
@@ -191,15 +189,20 @@ pub fn run(
             path: layout.dir().to_owned(),
         });
     }
-    let (log, recovered) = ChangeLog::open(layout.dir())?;
+    // The change log is read once, a line at a time, into the meshes' state and the page.
+    let mut page = outputs::Page::load(layout, Vec::new(), opts.units);
+    let mut meshes = BTreeMap::new();
+    let (log, recovered) = ChangeLog::open(page.layout().dir().to_owned().as_path(), |line| {
+        restore(&dir, &mut meshes, &line);
+        page.record(line);
+    })?;
     let mut w = Watch {
         opts,
         dir: dir.clone(),
         folder_id,
         log,
-        page: outputs::Page::load(layout, Vec::new(), opts.units),
-        changed: Vec::new(),
-        meshes: BTreeMap::new(),
+        page,
+        meshes,
         links: BTreeMap::new(),
         out,
         write_retry: Vec::new(),
@@ -207,10 +210,6 @@ pub fn run(
     };
     for note in &recovered.notes {
         w.say(&format!("note: {note}\n"));
-    }
-    w.restore(&recovered.lines);
-    for line in recovered.lines {
-        w.page.record(line);
     }
 
     // Start watching before the first scan, so a save during the scan is not lost. Each
@@ -257,7 +256,6 @@ pub fn run(
             failures += 1;
         }
     }
-    w.changed.clear();
     w.refresh_page(!opts.once, true);
     if opts.once {
         return Ok(Outcome { failures });
@@ -404,6 +402,35 @@ fn link_map(dir: &Path) -> BTreeMap<PathBuf, BTreeSet<PathBuf>> {
     map
 }
 
+/// Rebuilds a mesh's iteration, previous and baseline from a line of an existing change
+/// log (`dir`: the watched folder).
+fn restore(dir: &Path, meshes: &mut BTreeMap<PathBuf, MeshState>, line: &Value) {
+    let Some(mesh) = line["mesh"].as_str() else {
+        return;
+    };
+    let st = meshes.entry(dir.join(mesh)).or_default();
+    match line["event"].as_str() {
+        Some("computed") => {
+            st.iteration = line["iteration"].as_u64().unwrap_or(st.iteration + 1);
+            st.previous = Some(line["cases"].clone());
+            if st.baseline.is_none() {
+                st.baseline = Some(line["cases"].clone());
+            }
+            st.facets = line["facets"]
+                .as_u64()
+                .and_then(|f| usize::try_from(f).ok());
+            if let (Some(m), Some(s)) = (line["mesh_hash"].as_str(), line["sidecar_hash"].as_str())
+            {
+                st.hashes = Some((m.to_owned(), s.to_owned()));
+            }
+        }
+        // After a failure or a removal the next save must compute even if it restores the
+        // last good content, or the stale mark would stay.
+        Some("removed" | "failed") => st.hashes = None,
+        _ => {}
+    }
+}
+
 fn hash(bytes: &[u8]) -> String {
     blake3::hash(bytes).to_hex().to_string()
 }
@@ -457,38 +484,6 @@ impl Watch<'_> {
         }
         self.page.record(line);
         Ok(())
-    }
-
-    /// Rebuilds per-mesh iteration, previous and baseline from an existing change log.
-    fn restore(&mut self, lines: &[Value]) {
-        for line in lines {
-            let Some(mesh) = line["mesh"].as_str() else {
-                continue;
-            };
-            let path = self.dir.join(mesh);
-            let st = self.meshes.entry(path).or_default();
-            match line["event"].as_str() {
-                Some("computed") => {
-                    st.iteration = line["iteration"].as_u64().unwrap_or(st.iteration + 1);
-                    st.previous = Some(line["cases"].clone());
-                    if st.baseline.is_none() {
-                        st.baseline = Some(line["cases"].clone());
-                    }
-                    st.facets = line["facets"]
-                        .as_u64()
-                        .and_then(|f| usize::try_from(f).ok());
-                    if let (Some(m), Some(s)) =
-                        (line["mesh_hash"].as_str(), line["sidecar_hash"].as_str())
-                    {
-                        st.hashes = Some((m.to_owned(), s.to_owned()));
-                    }
-                }
-                // After a failure or a removal the next save must compute even if it
-                // restores the last good content, or the stale mark would stay.
-                Some("removed" | "failed") => st.hashes = None,
-                _ => {}
-            }
-        }
     }
 
     /// Looks at the folder's names again: links to files in it, and meshes that share a
@@ -726,7 +721,6 @@ impl Watch<'_> {
             ));
         }
         self.page.reload(mesh);
-        self.changed.push(name.clone());
         let result = computed.result;
         let st = self.meshes.entry(mesh.to_owned()).or_default();
         st.retries = 0;
@@ -813,7 +807,6 @@ impl Watch<'_> {
         self.append(json!({
             "time": now_rfc3339(), "mesh": name, "event": "failed", "error": message,
         }))?;
-        self.changed.push(name.to_owned());
         let tail = if kept {
             "the last good result is kept, marked stale"
         } else {
@@ -830,9 +823,7 @@ impl Watch<'_> {
     /// meshes changed since the last time (`all`: of every mesh); a failure is only
     /// reported.
     fn refresh_page(&mut self, live: bool, all: bool) {
-        let changed = std::mem::take(&mut self.changed);
-        let only = (!all).then_some(changed.as_slice());
-        match self.page.write(only, live) {
+        match self.page.write(all, live) {
             Ok(_) => self.page_note = None,
             Err(e) => {
                 // Said once while it keeps failing the same way.

@@ -99,6 +99,27 @@ fn folder_name(folder: &str) -> &str {
 
 /// Renders the page as UTF-8 bytes.
 pub fn render(page: &FolderPage) -> Vec<u8> {
+    let sections: Vec<String> = page
+        .meshes
+        .iter()
+        .map(|m| section(m, page.log, &page.units))
+        .collect();
+    render_with_sections(page, &sections)
+}
+
+/// The section of one mesh, as [`render`] places it; `log` needs to hold only the lines
+/// about this mesh (the others are passed over). A caller that keeps the sections of the
+/// meshes that did not change renders only the one that did, and assembles the page with
+/// [`render_with_sections`].
+pub fn section(m: &MeshEntry, log: &[Value], units: &Units) -> String {
+    let mut s = String::new();
+    mesh_section(&mut s, m, log, units);
+    s
+}
+
+/// Renders the page with the meshes' sections already rendered by [`section`], one per
+/// entry of `page.meshes` and in its order (`page.log` is not read).
+pub fn render_with_sections(page: &FolderPage, sections: &[String]) -> Vec<u8> {
     let mut s = String::with_capacity(64 * 1024);
     s.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
     s.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
@@ -150,8 +171,8 @@ pub fn render(page: &FolderPage) -> Vec<u8> {
     );
 
     overview(&mut s, page);
-    for m in page.meshes {
-        mesh_section(&mut s, m, page.log, &page.units);
+    for section in sections {
+        s.push_str(section);
     }
     s.push_str(
         "<footer>Sign conventions: forces are the force of the liquid on the surface, in the mesh's \
