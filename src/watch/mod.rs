@@ -514,7 +514,29 @@ impl Watch<'_> {
         let mut touched = Vec::new();
         for m in &meshes {
             if before.name(m) != self.layout().name(m) {
-                // Its files have a new name: write them there.
+                // Its files have a new name: remove those under the old one (nobody's now,
+                // and no longer kept up to date) and write them under the new.
+                let facets = self.meshes.get(m).and_then(|st| st.facets);
+                let mut old = vec![before.result(m), before.history_of(m)];
+                let side = pipeline::sidecar_path(m);
+                if let (Ok(text), Some(f)) = (fs::read_to_string(&side), facets)
+                    && let Ok(sc) = crate::sidecar::parse_sidecar(&side, &text)
+                {
+                    old.extend(outputs::export_files(&before, m, &sc, f));
+                }
+                let removed: Vec<String> = old
+                    .iter()
+                    .filter(|p| p.is_file() && results::remove_if_present(p).is_ok())
+                    .map(|p| file_name(p))
+                    .collect();
+                if !removed.is_empty() {
+                    self.say(&format!(
+                        "note: {}'s results are now named {}; removed under the old name: {}\n",
+                        file_name(m),
+                        self.layout().name(m),
+                        removed.join(", ")
+                    ));
+                }
                 if let Some(st) = self.meshes.get_mut(m) {
                     st.hashes = None;
                 }
