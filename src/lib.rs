@@ -63,7 +63,7 @@ fn check_meshes(args: &CheckArgs) -> ExitCode {
         ok &= h.usable_as_is;
         // The holes as a file that opens over the mesh in CAD or a viewer; an old one
         // goes when the mesh has none.
-        let edges_path = results::Layout::of_mesh(path).edges(path);
+        let edges_path = results::Layout::of_mesh(path, mesh::is_mesh_path).edges(path);
         let written = match check::edges_obj(&h) {
             Some(obj) => results::write_atomic(&edges_path, obj.as_bytes()).map(|()| true),
             None => results::remove_if_present(&edges_path).map(|()| false),

@@ -272,7 +272,7 @@ pub fn calc_file_in(mesh_path: &Path, units: UnitSystem) -> Result<MeshResult, R
     let mesh = read_mesh_streamed(mesh_path, file, len)?;
     let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
     computed.result.project = project;
-    let layout = Layout::of_mesh(mesh_path);
+    let layout = Layout::of_mesh(mesh_path, mesh::is_mesh_path);
     if let Some(dropped) = write_computed(&layout, mesh_path, &computed)? {
         return Err(dropped.error.into());
     }

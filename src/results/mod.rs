@@ -88,8 +88,9 @@ impl Layout {
         }
     }
 
-    /// The layout of the results folder beside `mesh`, knowing the other meshes there.
-    pub fn of_mesh(mesh: &Path) -> Layout {
+    /// The layout of the results folder beside `mesh`, knowing the other meshes there
+    /// (the files of its folder for which `is_mesh` holds).
+    pub fn of_mesh(mesh: &Path, is_mesh: impl Fn(&Path) -> bool) -> Layout {
         let mut layout = Layout::new(dir_of(mesh));
         let folder = mesh
             .parent()
@@ -99,7 +100,7 @@ impl Layout {
             .map(|rd| {
                 rd.filter_map(Result::ok)
                     .map(|e| e.path())
-                    .filter(|p| crate::mesh::is_mesh_path(p))
+                    .filter(|p| is_mesh(p))
                     .collect()
             })
             .unwrap_or_default();
@@ -111,12 +112,12 @@ impl Layout {
     /// among them). Returns the stems shared by more than one mesh that were not shared
     /// before, so a caller can say so once.
     pub fn set_meshes<'a>(&mut self, meshes: impl IntoIterator<Item = &'a Path>) -> Vec<String> {
-        let mut names: Vec<&'a Path> = meshes.into_iter().collect();
-        names.sort();
-        names.dedup_by(|a, b| a.file_name() == b.file_name());
+        // Each file name once, however the paths are written.
+        let names: std::collections::BTreeSet<&std::ffi::OsStr> =
+            meshes.into_iter().filter_map(Path::file_name).collect();
         let mut stems: BTreeMap<String, usize> = BTreeMap::new();
         for m in names {
-            *stems.entry(stem(m)).or_default() += 1;
+            *stems.entry(stem(Path::new(m))).or_default() += 1;
         }
         let newly: Vec<String> = stems
             .iter()
@@ -311,7 +312,7 @@ mod tests {
 
     #[test]
     fn every_file_of_a_mesh_is_inside_its_results_folder() {
-        let layout = Layout::of_mesh(Path::new("/p/gate.stl"));
+        let layout = Layout::of_mesh(Path::new("/p/gate.stl"), |_| true);
         assert_eq!(layout.dir(), Path::new("/p/results"));
         assert_eq!(
             layout.result(Path::new("/p/gate.stl")),
@@ -342,8 +343,14 @@ mod tests {
         assert!(layout.set_meshes([stl, other]).is_empty());
         assert_eq!(layout.result(stl), Path::new("/p/results/gate.json"));
         assert_eq!(layout.set_meshes([stl, obj, other]), ["gate"]);
-        // Said once: the same folder again reports nothing new.
+        // Said once: the same folder again reports nothing new; a mesh named twice, by
+        // different paths, is one mesh.
         assert!(layout.set_meshes([obj, stl, other]).is_empty());
+        assert!(
+            Layout::new(PathBuf::from("results"))
+                .set_meshes([Path::new("/p/a.stl"), Path::new("a.stl")])
+                .is_empty()
+        );
         assert_eq!(layout.result(stl), Path::new("/p/results/gate.stl.json"));
         assert_eq!(layout.result(obj), Path::new("/p/results/gate.obj.json"));
         assert_eq!(layout.result(other), Path::new("/p/results/wall.json"));
