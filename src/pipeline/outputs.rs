@@ -145,7 +145,51 @@ pub fn stage_outputs(
             None => batch.remove(whole),
         }
     }
+    // Exports of cases the previous result had and this one has not (a case renamed or
+    // removed, one default case become several): they would describe loads no longer
+    // computed. The previous result document says which cases those were.
+    let mut current: Vec<PathBuf> =
+        results::case_parts(result.cases.iter().map(|c| c.name.as_str()))
+            .iter()
+            .flat_map(|part| {
+                let e = layout.exports(mesh_path, part.as_deref());
+                [e.field, e.facet_loads, e.sweep_chart]
+            })
+            .collect();
+    current.push(layout.exports(mesh_path, None).sweep_chart);
+    for stale in previous_exports(layout, mesh_path) {
+        if !current.contains(&stale) {
+            batch.remove(stale);
+        }
+    }
     Ok(())
+}
+
+/// Every export file the result now on disk for `mesh_path` could have had: the field
+/// exports and sweep chart of each of its cases, and the chart for every case. Empty when
+/// there is no readable previous result.
+fn previous_exports(layout: &Layout, mesh_path: &Path) -> Vec<PathBuf> {
+    let Ok(bytes) = fs::read(layout.result(mesh_path)) else {
+        return Vec::new();
+    };
+    let Ok(doc) = serde_json::from_slice::<Value>(&bytes) else {
+        return Vec::new();
+    };
+    let names: Vec<&str> = doc["cases"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .filter_map(|c| c["name"].as_str())
+        .collect();
+    let mut files: Vec<PathBuf> = results::case_parts(names.into_iter())
+        .iter()
+        .flat_map(|part| {
+            let e = layout.exports(mesh_path, part.as_deref());
+            [e.field, e.facet_loads, e.sweep_chart]
+        })
+        .collect();
+    files.push(layout.exports(mesh_path, None).sweep_chart);
+    files
 }
 
 /// The chart of a case's sweep (SI units; levels in the sidecar's datum), the case's own

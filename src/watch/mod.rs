@@ -457,6 +457,14 @@ fn fingerprint(p: &Path) -> Option<(u64, Option<SystemTime>)> {
 }
 
 impl Watch<'_> {
+    /// `text` with the watched folder's own path left out of the paths it names, so that
+    /// files are named as `calc` run in the folder names them (`gate.json`,
+    /// `results/gate.json`), not by the canonical path the watcher holds.
+    fn in_folder(&self, text: &str) -> String {
+        let prefix = format!("{}{}", self.dir.display(), std::path::MAIN_SEPARATOR);
+        text.replace(&prefix, "")
+    }
+
     fn say(&mut self, text: &str) {
         let _ = self.out.write_all(text.as_bytes());
         let _ = self.out.flush();
@@ -729,6 +737,7 @@ impl Watch<'_> {
                     } else {
                         format!("; trying again every {} s", WRITE_RETRY.as_secs())
                     };
+                    let e = self.in_folder(&e.to_string());
                     self.say(&format!("{} {name} · error: {e}{again}\n", clock()));
                 }
                 return Ok(false);
@@ -824,7 +833,7 @@ impl Watch<'_> {
         st.retries = 0;
         // The next good save must compute even if it restores the last good content.
         st.hashes = None;
-        let message = e.to_string();
+        let message = self.in_folder(&e.to_string());
         let kept = self.mark_stale(mesh, &message);
         self.append(json!({
             "time": now_rfc3339(), "mesh": name, "event": "failed", "error": message,
@@ -849,7 +858,7 @@ impl Watch<'_> {
             Ok(_) => self.page_note = None,
             Err(e) => {
                 // Said once while it keeps failing the same way.
-                let note = format!("note: {e}\n");
+                let note = format!("note: {}\n", self.in_folder(&e.to_string()));
                 if self.page_note.as_ref() != Some(&note) {
                     self.say(&note);
                     self.page_note = Some(note);

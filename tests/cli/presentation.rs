@@ -203,3 +203,97 @@ fn the_contents_of_a_tank_are_named_as_the_liquid_inside() {
     assert!(page.contains("centroid of the liquid inside"));
     assert!(!page.contains("centre of buoyancy"));
 }
+
+#[test]
+fn exports_of_cases_that_no_longer_exist_are_removed() {
+    let f = Folder::new();
+    wall(&f);
+    f.calc(&["wall.stl"]).expect_code(0);
+    let exports = |f: &Folder| -> Vec<String> {
+        f.results_listing()
+            .into_iter()
+            .filter(|n| n.ends_with(".vtp") || n.ends_with(".csv") || n.ends_with(".svg"))
+            .collect()
+    };
+    assert_eq!(exports(&f), ["wall.csv", "wall.vtp"]);
+    // One default case becomes two named ones: the default's files go.
+    f.write(
+        "wall.json",
+        r#"{"units": "m", "wet_side": "front", "liquid": {"level": 3.0, "density": 1000},
+            "cases": [{"name": "normal"}, {"name": "flood", "level": 3.5}]}"#,
+    );
+    f.calc(&["wall.stl"]).expect_code(0);
+    assert_eq!(
+        exports(&f),
+        [
+            "wall.flood.csv",
+            "wall.flood.vtp",
+            "wall.normal.csv",
+            "wall.normal.vtp"
+        ]
+    );
+    // A case renamed: the old name's files go too.
+    f.write(
+        "wall.json",
+        r#"{"units": "m", "wet_side": "front", "liquid": {"level": 3.0, "density": 1000},
+            "cases": [{"name": "normal"}, {"name": "extreme", "level": 3.5}]}"#,
+    );
+    Run::from(f.wetload().args(["watch", ".", "--once"]).output()).expect_code(0);
+    assert_eq!(
+        exports(&f),
+        [
+            "wall.extreme.csv",
+            "wall.extreme.vtp",
+            "wall.history.svg",
+            "wall.normal.csv",
+            "wall.normal.vtp"
+        ]
+    );
+    // Every remaining export agrees with the result beside it: the CSV rows sum to the
+    // case force (closed form for the 3.5 m level on the 3 m wall: ½ρgw(3.5² − 0.5²)).
+    let csv = fs::read_to_string(f.path("results").join("wall.extreme.csv")).expect("csv");
+    let fx: f64 = csv
+        .lines()
+        .skip(1)
+        .map(|l| {
+            l.split(',')
+                .nth(10)
+                .expect("fx")
+                .parse::<f64>()
+                .expect("number")
+        })
+        .sum();
+    let want = 0.5 * 1000.0 * G * 2.0 * (3.5 * 3.5 - 0.5 * 0.5);
+    assert!((fx.abs() - want).abs() < 1e-9 * want, "{fx} vs {want}");
+}
+
+#[test]
+fn watch_and_calc_name_files_the_same_way() {
+    let f = Folder::new();
+    wall(&f);
+    f.write(
+        "wall.json",
+        r#"{"units": "m", "wet_side": "front", "liquid": {"level": "3", "density": 1000}}"#,
+    );
+    let calc = f.calc(&["wall.stl"]);
+    calc.expect_code(1);
+    let watch = Run::from(f.wetload().args(["watch", ".", "--once"]).output());
+    watch.expect_code(1);
+    // calc's one line, word for word in the watcher's output: the file named as given.
+    let said = calc
+        .stderr
+        .lines()
+        .find(|l| l.starts_with("error: sidecar wall.json, line 1, column "))
+        .unwrap_or_else(|| panic!("{}", calc.stderr));
+    assert!(
+        said.ends_with("expected a number, found the text \"3\""),
+        "{said}"
+    );
+    assert!(watch.stdout.contains(said), "{}", watch.stdout);
+    let root = fs::canonicalize(f.root()).expect("canonical");
+    assert!(
+        !watch.stdout.contains(&root.display().to_string()),
+        "{}",
+        watch.stdout
+    );
+}
