@@ -22,8 +22,14 @@
 //! For both, the bench also times save → the folder's page `report.html` rewritten (the
 //! page follows the result) and reads the watcher's resident memory (`VmRSS`, and the peak
 //! `VmHWM`) after the first pass and at the end, to show whether memory stays flat.
-//! Target: within the window + 150 ms. `WETLOAD_LATENCY=torus|meshes|log` runs one set-up
-//! only (default: all three).
+//! Target: within the window + 150 ms.
+//!
+//! * `save_by_rename_100k_stl` / `_obj`: the 100,000-facet torus as binary STL and as OBJ,
+//!   saved by atomic rename (a finished temporary file renamed over the mesh) with two
+//!   contents in turn; save → new result. A completed save is computed at once, without
+//!   the quiet window. Target: a median of 150 ms.
+//!
+//! `WETLOAD_LATENCY=torus|meshes|log|rename` runs one set-up only (default: all four).
 
 use std::fs;
 use std::io::{BufRead, BufReader};
@@ -317,5 +323,93 @@ fn latency(c: &mut Criterion) {
     );
 }
 
-criterion_group!(benches, latency, thousand_meshes, long_log);
+/// Saves the mesh `name` in `dir` by atomic rename (a finished temporary file renamed over
+/// it, as CAD tools save), alternating between two contents, and times each save to the
+/// new result. Prints the median.
+fn mesh_saves_by_rename(
+    c: &mut Criterion,
+    label: &str,
+    dir: &Path,
+    name: &str,
+    contents: &[Vec<u8>; 2],
+) {
+    let stem = name.rsplit_once('.').map_or(name, |(s, _)| s);
+    let result = dir.join("results").join(format!("{stem}.json"));
+    let _watcher = start(dir);
+    assert!(result.exists(), "the first pass wrote no result");
+    let mut all = Vec::new();
+    let mut saves = 0usize;
+    let mut g = c.benchmark_group("watch");
+    g.sample_size(10)
+        .sampling_mode(SamplingMode::Flat)
+        .warm_up_time(Duration::from_secs(1))
+        .measurement_time(Duration::from_secs(6));
+    g.bench_function(label, |b| {
+        b.iter_custom(|iters| {
+            let mut total = Duration::ZERO;
+            for _ in 0..iters {
+                let before = fs::read(&result).expect("read result");
+                saves += 1;
+                let bytes = &contents[saves % 2];
+                let tmp = dir.join(format!(".{name}.tmp"));
+                let t0 = Instant::now();
+                fs::write(&tmp, bytes).expect("write the temporary file");
+                fs::rename(&tmp, dir.join(name)).expect("rename it over the mesh");
+                loop {
+                    thread::sleep(Duration::from_millis(1));
+                    if fs::read(&result).is_ok_and(|now| now != before) {
+                        break;
+                    }
+                    assert!(
+                        t0.elapsed() < Duration::from_secs(10),
+                        "no new result 10 s after a save"
+                    );
+                }
+                let dt = t0.elapsed();
+                all.push(dt);
+                total += dt;
+            }
+            total
+        })
+    });
+    g.finish();
+    let n = all.len();
+    let med = median(&mut all);
+    println!(
+        "{label}: save by rename → result, median {:.1} ms over {n} saves (warm-up included; debounce window {} ms)",
+        med.as_secs_f64() * 1e3,
+        DEBOUNCE.as_millis()
+    );
+}
+
+/// A 100,000-facet torus saved by rename as binary STL and as OBJ: completed saves are
+/// computed at once, not after the quiet window.
+fn renamed_saves(c: &mut Criterion) {
+    if !wanted("rename") {
+        return;
+    }
+    let ring = |r: f64| shapes::torus([0.0, 0.0, 0.0], r, 1.0, 250, 200);
+    for (label, name, encode) in [
+        (
+            "save_by_rename_100k_stl",
+            "ring.stl",
+            (|t: &[shapes::Triangle]| shapes::encode::stl_binary(t, "wetload latency bench torus"))
+                as fn(&[shapes::Triangle]) -> Vec<u8>,
+        ),
+        (
+            "save_by_rename_100k_obj",
+            "ring.obj",
+            |t: &[shapes::Triangle]| shapes::encode::obj(&[("ring", t)]).into_bytes(),
+        ),
+    ] {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let p = dir.path();
+        let contents = [encode(&ring(3.0)), encode(&ring(3.25))];
+        fs::write(p.join(name), &contents[0]).expect("write mesh");
+        fs::write(p.join("ring.json"), sidecar(0.25)).expect("write sidecar");
+        mesh_saves_by_rename(c, label, p, name, &contents);
+    }
+}
+
+criterion_group!(benches, latency, thousand_meshes, long_log, renamed_saves);
 criterion_main!(benches);

@@ -29,6 +29,7 @@
 //!   quiet window (and then noted as removed); one that changes while it is read is read
 //!   again.
 
+mod complete;
 pub mod record;
 pub mod schedule;
 
@@ -41,7 +42,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc;
 use std::time::{Duration, Instant, SystemTime};
 
-use notify::event::{AccessKind, AccessMode, EventKind, MetadataKind, ModifyKind};
+use notify::event::{AccessKind, AccessMode, EventKind, MetadataKind, ModifyKind, RenameMode};
 use notify::{RecursiveMode, Watcher};
 use serde_json::{Value, json};
 use thiserror::Error;
@@ -52,7 +53,7 @@ use crate::results::{self, Layout};
 
 /// How often a result that could not be written is tried again.
 pub const WRITE_RETRY: Duration = Duration::from_secs(2);
-pub use schedule::Schedule;
+pub use schedule::{Schedule, Signal, Touch};
 
 /// Settings of a watch run.
 #[derive(Clone, Debug)]
@@ -270,7 +271,7 @@ pub fn run(
     for mesh in std::mem::take(&mut w.write_retry) {
         schedule.retry(mesh, Instant::now() + WRITE_RETRY);
     }
-    let mut unread: Vec<(PathBuf, Instant)> = Vec::new();
+    let mut unread: Vec<Touch> = Vec::new();
     let mut page_due = false;
     while !stop.load(Ordering::SeqCst) {
         if w.folder_gone() {
@@ -555,32 +556,73 @@ impl Watch<'_> {
     }
 
     /// The meshes an event concerns, each with the instant it arrived.
-    fn touches(
-        &mut self,
-        at: Instant,
-        res: notify::Result<notify::Event>,
-    ) -> Vec<(PathBuf, Instant)> {
+    fn touches(&mut self, at: Instant, res: notify::Result<notify::Event>) -> Vec<Touch> {
         let event = match res {
             Ok(event) => event,
             Err(e) => {
                 self.say(&format!("note: file-system event error: {e}; rescanning\n"));
-                return scan(&self.dir).into_iter().map(|m| (m, at)).collect();
+                return scan(&self.dir)
+                    .into_iter()
+                    .map(|m| Touch::progress(m, at))
+                    .collect();
             }
         };
-        let mut out = Vec::new();
+        let mut out: Vec<Touch> = Vec::new();
         if event.need_rescan() {
-            out.extend(self.refresh_names(at));
-            out.extend(scan(&self.dir).into_iter().map(|m| (m, at)));
+            out.extend(
+                self.refresh_names(at)
+                    .into_iter()
+                    .chain(scan(&self.dir).into_iter().map(|m| (m, at)))
+                    .map(|(m, at)| Touch::progress(m, at)),
+            );
         }
         if is_write(&event.kind) {
             if renames(&event.kind) {
-                out.extend(self.refresh_names(at));
+                out.extend(
+                    self.refresh_names(at)
+                        .into_iter()
+                        .map(|(m, at)| Touch::progress(m, at)),
+                );
             }
-            for p in &event.paths {
-                out.extend(self.meshes_for(p).into_iter().map(|m| (m, at)));
+            // A writer closed the file, or a finished file was renamed into place: the
+            // save is complete if its format says it is whole (see `complete`).
+            let renamed_in = matches!(
+                event.kind,
+                EventKind::Modify(ModifyKind::Name(RenameMode::To | RenameMode::Both))
+            );
+            let closed = matches!(
+                event.kind,
+                EventKind::Access(AccessKind::Close(AccessMode::Write))
+            );
+            for (i, p) in event.paths.iter().enumerate() {
+                // The rename's source (the first of two paths) only lost its name.
+                let target = (renamed_in && i + 1 == event.paths.len()) || closed;
+                for m in self.meshes_for(p) {
+                    let whole = target && self.save_is_whole(p, &m, renamed_in);
+                    out.push(Touch {
+                        path: m,
+                        at,
+                        signal: if whole {
+                            Signal::Complete
+                        } else {
+                            Signal::Progress
+                        },
+                    });
+                }
             }
         }
         out
+    }
+
+    /// Whether a save of `p` that a writer has finished leaves mesh `m` ready to compute:
+    /// `p` is whole by its format (an OBJ renamed into place counts, its writer finished
+    /// it under another name), and when `p` is `m`'s sidecar, `m` is a whole STL too (an
+    /// OBJ that is not itself being saved has no end marker to show it is not half-written,
+    /// so it waits for the quiet window).
+    fn save_is_whole(&self, p: &Path, m: &Path, renamed_in: bool) -> bool {
+        let obj = |q: &Path| q.extension().is_some_and(|e| e.eq_ignore_ascii_case("obj"));
+        let p_whole = (renamed_in && obj(p)) || complete::whole(p);
+        p_whole && (p == m || (!obj(m) && complete::whole(m)))
     }
 
     /// The meshes a changed path concerns: itself if it is a mesh, the meshes with its

@@ -20,15 +20,54 @@ use std::collections::BTreeMap;
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
+/// What an event says about a path.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Signal {
+    /// Something changed and more may follow (a write, a create, a truncation): the path
+    /// waits for the quiet window, and any completion seen before it no longer counts.
+    Progress,
+    /// A save is known to be complete: a writer closed the file or renamed a finished file
+    /// into place, and the content passed its format's completeness check (see
+    /// `watch::complete`). The path is due at once unless another event follows.
+    Complete,
+}
+
+/// One event as the schedule takes it: a path, when the event arrived, what it says.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Touch {
+    pub path: PathBuf,
+    pub at: Instant,
+    pub signal: Signal,
+}
+
+impl Touch {
+    /// A progress event on `path` at `at`.
+    pub fn progress(path: PathBuf, at: Instant) -> Touch {
+        Touch {
+            path,
+            at,
+            signal: Signal::Progress,
+        }
+    }
+}
+
+/// A pending path: its last event, and whether that event completed a save.
+#[derive(Clone, Copy, Debug)]
+struct Pending {
+    last: Instant,
+    complete: bool,
+}
+
 /// Pending paths and the instant each was last touched.
 #[derive(Debug)]
 pub struct Schedule {
     quiet: Duration,
-    pending: BTreeMap<PathBuf, Instant>,
+    pending: BTreeMap<PathBuf, Pending>,
 }
 
 impl Schedule {
-    /// A schedule that releases a path once it has been quiet for `quiet`.
+    /// A schedule that releases a path once it has been quiet for `quiet`, or at once
+    /// when its last event completed a save.
     pub fn new(quiet: Duration) -> Schedule {
         Schedule {
             quiet,
@@ -36,12 +75,32 @@ impl Schedule {
         }
     }
 
-    /// Records an event on `path` at `at`; a later event restarts the path's window.
-    pub fn touch(&mut self, path: PathBuf, at: Instant) {
-        let slot = self.pending.entry(path).or_insert(at);
-        if at > *slot {
-            *slot = at;
+    /// Records an event. The latest event decides: a completion followed by any later
+    /// event waits for the quiet window again, and an event older than the latest one
+    /// (instants can arrive out of order) only keeps the window from shortening.
+    pub fn feed(&mut self, touch: Touch) {
+        let complete = touch.signal == Signal::Complete;
+        match self.pending.get_mut(&touch.path) {
+            None => {
+                self.pending.insert(
+                    touch.path,
+                    Pending {
+                        last: touch.at,
+                        complete,
+                    },
+                );
+            }
+            Some(p) if touch.at >= p.last => {
+                p.last = touch.at;
+                p.complete = complete;
+            }
+            Some(_) => {}
         }
+    }
+
+    /// Records a progress event on `path` at `at`: a later event restarts the window.
+    pub fn touch(&mut self, path: PathBuf, at: Instant) {
+        self.feed(Touch::progress(path, at));
     }
 
     /// Schedules `path` to be released at `at + quiet` unless touched again (a retry).
@@ -49,22 +108,23 @@ impl Schedule {
         self.touch(path, at);
     }
 
-    /// Feeds every event in `unread` (path, instant of arrival), then removes and
-    /// returns the first path, in path order, that has been quiet since `now − quiet`.
+    /// Feeds every event in `unread`, then removes and returns the first path, in path
+    /// order, that is due at `now`: its last event completed a save, or it has been quiet
+    /// since `now − quiet`.
     pub fn next_due(
         &mut self,
-        unread: impl IntoIterator<Item = (PathBuf, Instant)>,
+        unread: impl IntoIterator<Item = Touch>,
         now: Instant,
     ) -> Option<PathBuf> {
-        for (path, at) in unread {
-            self.touch(path, at);
+        for touch in unread {
+            self.feed(touch);
         }
         let quiet = self.quiet;
         let due = self
             .pending
             .iter()
-            .find(|(_, last)| now.saturating_duration_since(**last) >= quiet)
-            .map(|(p, _)| p.clone())?;
+            .find(|(_, p)| p.complete || now.saturating_duration_since(p.last) >= quiet)
+            .map(|(path, _)| path.clone())?;
         self.pending.remove(&due);
         Some(due)
     }
@@ -73,7 +133,13 @@ impl Schedule {
     pub fn next_in(&self, now: Instant) -> Option<Duration> {
         self.pending
             .values()
-            .map(|last| (*last + self.quiet).saturating_duration_since(now))
+            .map(|p| {
+                if p.complete {
+                    Duration::ZERO
+                } else {
+                    (p.last + self.quiet).saturating_duration_since(now)
+                }
+            })
             .min()
     }
 
@@ -96,6 +162,18 @@ mod tests {
         std::iter::from_fn(|| s.next_due([], now)).collect()
     }
 
+    fn progress(path: &str, at: Instant) -> Touch {
+        Touch::progress(PathBuf::from(path), at)
+    }
+
+    fn complete(path: &str, at: Instant) -> Touch {
+        Touch {
+            path: PathBuf::from(path),
+            at,
+            signal: Signal::Complete,
+        }
+    }
+
     #[test]
     fn a_path_with_unread_events_is_not_released_on_its_last_read_one() {
         // A slow computation held the watcher from 100 ms to 2000 ms; meanwhile b.obj was
@@ -104,8 +182,8 @@ mod tests {
         let t0 = Instant::now();
         let mut s = Schedule::new(ms(500));
         s.touch(PathBuf::from("b.obj"), t0);
-        let unread: Vec<(PathBuf, Instant)> = (1..=7)
-            .map(|k| (PathBuf::from("b.obj"), t0 + ms(250 * k + 150)))
+        let unread: Vec<Touch> = (1..=7)
+            .map(|k| progress("b.obj", t0 + ms(250 * k + 150)))
             .collect();
         assert_eq!(s.next_due(unread, t0 + ms(2000)), None);
         assert_eq!(s.next_in(t0 + ms(2000)), Some(ms(400)));
@@ -120,7 +198,7 @@ mod tests {
         s.touch(PathBuf::from("b.obj"), t0);
         assert_eq!(s.next_due([], t0 + ms(100)), Some(PathBuf::from("a.stl")));
         // While a.stl computed, b.obj was written again.
-        let later = [(PathBuf::from("b.obj"), t0 + ms(150))];
+        let later = [progress("b.obj", t0 + ms(150))];
         assert_eq!(s.next_due(later, t0 + ms(200)), None);
         assert_eq!(s.next_due([], t0 + ms(250)), Some(PathBuf::from("b.obj")));
     }
@@ -158,5 +236,34 @@ mod tests {
         s.touch(PathBuf::from("a.stl"), t0);
         assert!(due(&mut s, t0 + ms(120)).is_empty());
         assert_eq!(due(&mut s, t0 + ms(150)).len(), 1);
+    }
+
+    #[test]
+    fn a_completed_save_is_due_at_once_unless_something_follows() {
+        let t0 = Instant::now();
+        let mut s = Schedule::new(ms(500));
+        // Written in three chunks, then renamed into place: due as soon as that is read.
+        let save = [
+            progress("gate.stl", t0),
+            progress("gate.stl", t0 + ms(20)),
+            complete("gate.stl", t0 + ms(40)),
+        ];
+        assert_eq!(
+            s.next_due(save, t0 + ms(41)),
+            Some(PathBuf::from("gate.stl"))
+        );
+        // A writer that closes and then writes again: the later event takes the
+        // completion back, and the quiet window decides.
+        let reopen = [complete("b.stl", t0), progress("b.stl", t0 + ms(30))];
+        assert_eq!(s.next_due(reopen, t0 + ms(31)), None);
+        assert_eq!(s.next_in(t0 + ms(31)), Some(ms(499)));
+        assert_eq!(s.next_due([], t0 + ms(530)), Some(PathBuf::from("b.stl")));
+        // An older completion read after a newer write does not release the path.
+        s.feed(progress("c.stl", t0 + ms(100)));
+        s.feed(complete("c.stl", t0 + ms(90)));
+        assert_eq!(s.next_due([], t0 + ms(101)), None);
+        // Nothing pending: nothing to wait for.
+        assert_eq!(s.next_due([], t0 + ms(600)), Some(PathBuf::from("c.stl")));
+        assert!(s.is_empty() && s.next_in(t0).is_none());
     }
 }

@@ -7,6 +7,7 @@
 //! The crash test SIGKILLs watchers computing 200k-facet meshes at random moments; set
 //! `WETLOAD_CRASH_SEED` to repeat a run's kill moments.
 
+mod complete;
 mod crash;
 mod defects;
 mod policy;

@@ -56,10 +56,15 @@ fn collect(mut pipe: impl Read + Send + 'static) -> Arc<Mutex<String>> {
 impl Watcher {
     /// Spawns `wetload watch DIR --debounce-ms 150 EXTRA...` without waiting for anything.
     pub fn spawn(dir: &Path, extra: &[&str]) -> Watcher {
+        Watcher::spawn_with_window(dir, DEBOUNCE_MS, extra)
+    }
+
+    /// Spawns `wetload watch DIR --debounce-ms WINDOW EXTRA...` without waiting.
+    pub fn spawn_with_window(dir: &Path, window_ms: u64, extra: &[&str]) -> Watcher {
         let mut child = Command::new(assert_cmd::cargo::cargo_bin("wetload"))
             .arg("watch")
             .arg(dir)
-            .args(["--debounce-ms", &DEBOUNCE_MS.to_string()])
+            .args(["--debounce-ms", &window_ms.to_string()])
             .args(extra)
             .stdin(Stdio::null())
             .stdout(Stdio::piped())
