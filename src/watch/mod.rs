@@ -4,7 +4,9 @@
 //! itself (not each file: an atomic replace silently ends a per-file watch), non-recursively
 //! (so the tool's own `results/` never triggers anything), reacts only to write-type
 //! events (the tool's own reads fire access events too), holds each touched path in a
-//! [`Schedule`] until it has been quiet for the debounce window, skips content it has
+//! [`Schedule`] until its save is known to be complete (renamed into place, or closed by
+//! its writer and whole by its format: `complete.rs`) or it has been quiet for the
+//! debounce window, skips content it has
 //! already computed (BLAKE3 of mesh and sidecar bytes), and rescans when notify says
 //! events were lost.
 //!
