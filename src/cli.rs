@@ -14,7 +14,7 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Compute the loads of one or more meshes once, write results/<stem>.json beside
+    /// Compute the loads of one or more meshes once, write `results/<stem>.json` beside
     /// each, and print a summary.
     Calc(CalcArgs),
     /// Compute every mesh in a folder, then recompute whenever a mesh or its sidecar is
@@ -82,7 +82,7 @@ pub struct WatchArgs {
 
 #[derive(Debug, clap::Args)]
 pub struct CalcArgs {
-    /// Mesh files (.stl or .obj); each needs a sidecar <stem>.json beside it.
+    /// Mesh files (.stl or .obj); each needs a sidecar `<stem>.json` beside it.
     #[arg(required = true, value_name = "MESH")]
     pub meshes: Vec<PathBuf>,
     /// Print the result documents as JSON instead of the summary (an array for several

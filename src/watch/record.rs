@@ -94,7 +94,7 @@ pub fn cases_with_changes(
 ///   normal     horizontal 490.33 kN ▲ grows 1.2%   vertical +288.10 kN ▲ grows 0.8%   uplift 288.24 kN =   |F| 568.71 kN   |M| 0.69 kN·m
 /// ```
 /// The horizontal force leads (the headline figure of a gate). Markers compare
-/// magnitudes ([`marker`]), so a moment that goes from −364 to −399 kN·m *grows*.
+/// magnitudes (see `marker`), so a moment that goes from −364 to −399 kN·m *grows*.
 /// With `verbose`, every force and moment component and the warnings follow.
 pub fn block(
     clock: &str,
