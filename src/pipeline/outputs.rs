@@ -465,8 +465,9 @@ mod tests {
         p
     }
 
-    #[test]
-    fn calc_writes_every_output_with_case_names_in_file_names() {
+    /// A 2 × 3 m wall (`wall.stl`, facing +y) with `sidecar`, computed by `calc`: its
+    /// folder and the names in its `results/`, sorted.
+    fn calc_wall(sidecar: &[u8]) -> (tempfile::TempDir, Vec<String>) {
         let tmp = tempfile::tempdir().expect("temp dir");
         let plate = shapes::rectangle([0.0, 0.0, -3.0], [2.0, 0.0, 0.0], [0.0, 0.0, 3.0], 2, 3);
         let mesh = write(
@@ -474,21 +475,25 @@ mod tests {
             "wall.stl",
             encode::stl_ascii(&[("wall", &plate)]).as_bytes(),
         );
-        write(
-            tmp.path(),
-            "wall.json",
+        write(tmp.path(), "wall.json", sidecar);
+        super::super::calc_file(&mesh).expect("computes");
+        let mut names: Vec<String> = fs::read_dir(tmp.path().join("results"))
+            .expect("results")
+            .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
+            .collect();
+        names.sort();
+        (tmp, names)
+    }
+
+    #[test]
+    fn calc_writes_every_output_with_case_names_in_file_names() {
+        let (tmp, names) = calc_wall(
             br#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000},
                 "cases": [{"name": "normal", "level": -1.0},
                           {"name": "..:flood", "level": 0.0, "density": 1025}],
                 "sweep": {"liquid": "liquid", "from": -3.0, "to": 0.0, "step": 1.0}}"#,
         );
-        super::super::calc_file(&mesh).expect("computes");
         let results = tmp.path().join("results");
-        let mut names: Vec<String> = fs::read_dir(&results)
-            .expect("results")
-            .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
-            .collect();
-        names.sort();
         assert_eq!(
             names,
             [
@@ -512,27 +517,13 @@ mod tests {
 
     #[test]
     fn a_sweep_the_same_in_every_case_is_one_chart() {
-        let tmp = tempfile::tempdir().expect("temp dir");
-        let plate = shapes::rectangle([0.0, 0.0, -3.0], [2.0, 0.0, 0.0], [0.0, 0.0, 3.0], 2, 3);
-        let mesh = write(
-            tmp.path(),
-            "wall.stl",
-            encode::stl_ascii(&[("wall", &plate)]).as_bytes(),
-        );
-        write(
-            tmp.path(),
-            "wall.json",
+        let (tmp, names) = calc_wall(
             br#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000},
                 "cases": [{"name": "normal", "level": -1.0}, {"name": "flood", "level": 0.0}],
                 "sweep": {"liquid": "liquid", "from": -3.0, "to": 0.0, "step": 1.0}}"#,
         );
-        super::super::calc_file(&mesh).expect("computes");
         let results = tmp.path().join("results");
-        let charts: Vec<String> = fs::read_dir(&results)
-            .expect("results")
-            .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
-            .filter(|n| n.ends_with(".sweep.svg"))
-            .collect();
+        let charts: Vec<&String> = names.iter().filter(|n| n.ends_with(".sweep.svg")).collect();
         assert_eq!(charts, ["wall.sweep.svg"]);
         let svg = fs::read_to_string(results.join("wall.sweep.svg")).expect("svg");
         assert!(svg.contains("every case"));
