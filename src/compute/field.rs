@@ -22,6 +22,23 @@ pub struct Field {
     pub facets: Vec<FacetRow>,
     /// Part names, indexed by `part` below.
     pub parts: Vec<String>,
+    /// The consistent nodal force of every vertex that carries load, by vertex number.
+    pub nodes: Vec<NodalLoad>,
+}
+
+/// The consistent nodal force at one vertex: f_i = −∫ N_i p n dA over the facets around it
+/// (N_i the linear shape function of the vertex on each facet), exact for the piecewise-
+/// linear pressure, clipped pieces included. The loads of all vertices sum to the case's
+/// force, and their moments to its moment.
+#[derive(Clone, Debug, PartialEq)]
+pub struct NodalLoad {
+    /// OBJ: the file's 1-based vertex number; STL: the 1-based number of the distinct
+    /// vertex position (identical coordinates are one vertex) in order of first appearance.
+    pub vertex: u64,
+    /// m, mesh axes.
+    pub position: [f64; 3],
+    /// N, mesh axes.
+    pub force: [f64; 3],
 }
 
 /// A convex planar piece of one facet on which the pressure is linear.
@@ -76,11 +93,14 @@ impl Model {
                 pieces: Vec::new(),
                 facets: Vec::new(),
                 parts: Vec::new(),
+                nodes: Vec::new(),
             });
         };
         let profiles = profiles_of(sidecar, &case.name, &case.liquids, prep.centre.z)?;
         let out = |v: Vec3| prep.frame.vector_out(v);
         let mut pieces = Vec::new();
+        // Per facet corner, its share of the facet's load (internal frame).
+        let mut corner = vec![[Vec3::zeros(); 3]; prep.tris.len()];
         let mut facets = Vec::with_capacity(prep.tris.len());
         for (pi, (part, (liquid, _))) in prep.parts.iter().zip(&prep.wet.part_setup).enumerate() {
             let profile = liquid.map(|i| &profiles[i]);
@@ -99,12 +119,19 @@ impl Model {
                 let normal = if side == 0.0 { a } else { side * a };
                 let loads = hydro::facet_loads(t, &planes, prof, wet, None, 0);
                 let level = prof.map_or(f64::NEG_INFINITY, Profile::level);
+                let unit = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
+                let shares = &mut corner[f];
                 hydro::slab_pieces(t, &planes, |piece, _| {
                     let v = piece.vertices();
                     let pressure: Vec<f64> = v
                         .iter()
                         .map(|p| prof.map_or(0.0, |pr| pr.pressure(p.z)))
                         .collect();
+                    if prof.is_some() {
+                        for (i, share) in consistent_shares(t, v, &pressure).iter().enumerate() {
+                            shares[i] -= *share * unit;
+                        }
+                    }
                     let mut av = Vec3::zeros();
                     for k in 1..v.len() - 1 {
                         av += 0.5 * (v[k] - v[0]).cross(&(v[k + 1] - v[0]));
@@ -147,12 +174,83 @@ impl Model {
                 });
             }
         }
+        let nodes = number_nodes(prep, &corner, &out);
         Ok(Field {
             pieces,
             facets,
             parts: prep.parts.iter().map(|p| p.name.clone()).collect(),
+            nodes,
         })
     }
+}
+
+/// ∫ N_i p dA over a convex piece `v` of facet `t` (N_i the facet's linear shape
+/// functions, p linear on the piece with the values `p` at its vertices), i = 0, 1, 2.
+///
+/// Over each fan triangle of the piece, for linear f and g with vertex values f_j, g_j:
+/// ∫ f g dA = A/12 · (Σ_j f_j g_j + Σ_j f_j · Σ_j g_j), exact; N_i at a point is its
+/// barycentric coordinate in the facet.
+fn consistent_shares(t: &[Vec3; 3], v: &[Vec3], p: &[f64]) -> [f64; 3] {
+    let a = 0.5 * (t[1] - t[0]).cross(&(t[2] - t[0]));
+    let aa = a.dot(&a);
+    let mut out = [0.0; 3];
+    if aa <= 0.0 || v.len() < 3 {
+        return out;
+    }
+    let bary = |q: &Vec3| {
+        [0, 1, 2].map(|i| 0.5 * (t[(i + 1) % 3] - q).cross(&(t[(i + 2) % 3] - q)).dot(&a) / aa)
+    };
+    let n0 = bary(&v[0]);
+    for k in 1..v.len() - 1 {
+        let area = 0.5 * (v[k] - v[0]).cross(&(v[k + 1] - v[0])).norm();
+        let (nk, nk1) = (bary(&v[k]), bary(&v[k + 1]));
+        let ps = [p[0], p[k], p[k + 1]];
+        let sum_p: f64 = ps.iter().sum();
+        for (i, o) in out.iter_mut().enumerate() {
+            let ns = [n0[i], nk[i], nk1[i]];
+            let dot: f64 = ns.iter().zip(&ps).map(|(n, p)| n * p).sum();
+            let sum_n: f64 = ns.iter().sum();
+            *o += area / 12.0 * (dot + sum_n * sum_p);
+        }
+    }
+    out
+}
+
+/// The corners' shares gathered per vertex and numbered (see [`NodalLoad::vertex`]);
+/// vertices whose load is exactly zero are left out.
+fn number_nodes(
+    prep: &super::Prepared,
+    corner: &[[Vec3; 3]],
+    out: &dyn Fn(Vec3) -> [f64; 3],
+) -> Vec<NodalLoad> {
+    use std::collections::BTreeMap;
+    let mut by_number: BTreeMap<u64, (Vec3, Vec3)> = BTreeMap::new();
+    let mut seen: rustc_hash::FxHashMap<[u64; 3], u64> = Default::default();
+    for (f, shares) in corner.iter().enumerate() {
+        let t = &prep.tris[f];
+        for i in 0..3 {
+            let number = match &prep.vertex_ids {
+                Some(ids) => u64::from(ids[f][i]),
+                None => {
+                    // Identical coordinates in the file are identical here too.
+                    let key = [t[i].x.to_bits(), t[i].y.to_bits(), t[i].z.to_bits()];
+                    let next = seen.len() as u64 + 1;
+                    *seen.entry(key).or_insert(next)
+                }
+            };
+            let slot = by_number.entry(number).or_insert((t[i], Vec3::zeros()));
+            slot.1 += shares[i];
+        }
+    }
+    by_number
+        .into_iter()
+        .filter(|(_, (_, force))| *force != Vec3::zeros())
+        .map(|(vertex, (p, force))| NodalLoad {
+            vertex,
+            position: out(p + prep.centre),
+            force: out(force),
+        })
+        .collect()
 }
 
 #[cfg(test)]
@@ -184,5 +282,37 @@ mod tests {
         assert_relative_eq!(a1, a2, max_relative = 1e-12);
         let wet: f64 = f.pieces.iter().filter(|p| p.wetted).map(|p| p.area).sum();
         assert_relative_eq!(wet, r.cases[0].loads.wetted_area, max_relative = 1e-12);
+    }
+
+    #[test]
+    fn a_triangle_under_linear_pressure_takes_the_textbook_nodal_forces() {
+        // A right triangle in the plane y = 0, corners at depths 3, 1 and 3 m below a free
+        // surface at z = 0 (so the pressure is linear over it); its front (the side of the
+        // right-hand-rule normal) faces −y and is wetted.
+        // Consistent nodal forces of a linear triangle under linear pressure p:
+        // f_i = −n A/12 (2 p_i + p_j + p_k) (the standard consistent load vector of a
+        // three-node element; Zienkiewicz, Taylor & Zhu, The Finite Element Method: Its
+        // Basis and Fundamentals, from memory).
+        let tri = [[0.0, 0.0, -3.0], [2.0, 0.0, -3.0], [0.0, 0.0, -1.0]];
+        let m = Mesh::from_parts(vec![("t", vec![tri])], crate::mesh::Format::StlAscii);
+        let s = side(
+            r#"{"units": "m", "wet_side": "front", "liquid": {"level": 0.0, "density": 1000}}"#,
+        );
+        let f = field(&m, &s, 0).expect("computes");
+        let g = 9.80665;
+        let p = [3.0 * 1000.0 * g, 3.0 * 1000.0 * g, 1000.0 * g];
+        let area = 2.0;
+        // n = (b − a) × (c − a) / |…| = (2,0,0) × (0,0,2) = (0,−4,0): into the liquid.
+        let n = [0.0, -1.0, 0.0];
+        assert_eq!(f.nodes.len(), 3);
+        for (i, node) in f.nodes.iter().enumerate() {
+            assert_eq!(node.vertex, i as u64 + 1);
+            assert_eq!(node.position, tri[i]);
+            let (j, k) = ((i + 1) % 3, (i + 2) % 3);
+            let want = area / 12.0 * (2.0 * p[i] + p[j] + p[k]);
+            for (got, n) in node.force.iter().zip(n) {
+                assert_relative_eq!(*got, -n * want, max_relative = 1e-13, epsilon = 1e-9);
+            }
+        }
     }
 }

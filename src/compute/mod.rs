@@ -30,7 +30,7 @@ mod result;
 mod sweep;
 mod wet;
 
-pub use field::{FacetRow, Field, FieldPiece, field};
+pub use field::{FacetRow, Field, FieldPiece, NodalLoad, field};
 pub use floating::{FLOATING_CAUTION, FloatingResult};
 pub use result::{
     AxisMoment, CaseResult, DatumEcho, FlotationCheck, Inputs, LineOut, LiquidEcho, Loads,

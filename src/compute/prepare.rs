@@ -22,6 +22,8 @@ pub(super) struct Prepared {
     /// The mesh's parts (facet ranges into `tris`) and format.
     pub(super) parts: Vec<Part>,
     pub(super) format: Format,
+    /// OBJ: the file's vertex numbers of every facet's corners ([`Mesh::vertex_ids`]).
+    pub(super) vertex_ids: Option<Vec<[u32; 3]>>,
     pub(super) frame: Frame,
     /// Local origin (bounding-box centre), internal frame.
     pub(super) centre: Vec3,
@@ -73,6 +75,7 @@ pub(super) fn prepare(
         parts,
         format,
         normal_stale: _,
+        vertex_ids,
     } = mesh;
     // Min and max are exact, so this parallel pass gives the same bits on any thread count.
     let (lo, hi) = facets
@@ -191,6 +194,7 @@ pub(super) fn prepare(
     let prepared = Prepared {
         parts,
         format,
+        vertex_ids,
         frame,
         centre,
         tris,

@@ -66,6 +66,11 @@ pub struct Mesh {
     /// its normal). The normals themselves are not kept: they are never used for
     /// geometry. `None` for OBJ.
     pub normal_stale: Option<Vec<bool>>,
+    /// OBJ only: per facet, same order as `facets`, the file's 1-based vertex numbers of
+    /// its three corners (a polygon's triangles keep the numbers of the polygon's
+    /// vertices), so loads at vertices map to the node numbers of a model built from the
+    /// same file. `None` for STL, which has no vertex numbers.
+    pub vertex_ids: Option<Vec<[u32; 3]>>,
     /// The format the file was read as.
     pub format: Format,
 }
@@ -129,6 +134,7 @@ impl Mesh {
             facets,
             parts,
             normal_stale: None,
+            vertex_ids: None,
             format,
         }
     }
@@ -471,6 +477,8 @@ pub(crate) struct PartsBuilder {
     facets: Vec<Vec<Facet>>,
     /// Per part and facet, whether its stored normal is stale (when normals are given).
     stale: Option<Vec<Vec<bool>>>,
+    /// Per part and facet, the file's vertex numbers of its corners (OBJ).
+    ids: Option<Vec<Vec<[u32; 3]>>>,
     current: Option<usize>,
 }
 
@@ -487,8 +495,15 @@ impl PartsBuilder {
             index: FxHashMap::default(),
             facets: Vec::new(),
             stale: with_normals.then(Vec::new),
+            ids: None,
             current: None,
         }
+    }
+
+    /// The facets come with the file's vertex numbers ([`push_numbered`](Self::push_numbered)).
+    pub(crate) fn with_vertex_ids(mut self) -> PartsBuilder {
+        self.ids = Some(Vec::new());
+        self
     }
 
     /// At most `max_facets` facets may be pushed; the next one is refused.
@@ -540,6 +555,9 @@ impl PartsBuilder {
         if let Some(stale) = &mut self.stale {
             stale.push(Vec::new());
         }
+        if let Some(ids) = &mut self.ids {
+            ids.push(Vec::new());
+        }
         i
     }
 
@@ -570,6 +588,17 @@ impl PartsBuilder {
         Ok(())
     }
 
+    /// Adds a facet with the file's 1-based numbers of its corners (see
+    /// [`with_vertex_ids`](Self::with_vertex_ids)).
+    pub(crate) fn push_numbered(&mut self, facet: Facet, ids: [u32; 3]) -> Result<(), Problem> {
+        self.push(facet, [0.0; 3])?;
+        let i = self.current();
+        if let Some(all) = &mut self.ids {
+            all[i].push(ids);
+        }
+        Ok(())
+    }
+
     /// The mesh, or `None` when no facet was added.
     pub(crate) fn finish(self, format: Format) -> Option<Mesh> {
         let total: usize = self.facets.iter().map(Vec::len).sum();
@@ -581,6 +610,7 @@ impl PartsBuilder {
             let name = self.names.into_iter().nth(only)?;
             let facets = self.facets.into_iter().nth(only)?;
             let normal_stale = self.stale.and_then(|s| s.into_iter().nth(only));
+            let vertex_ids = self.ids.and_then(|s| s.into_iter().nth(only));
             return Some(Mesh {
                 facets,
                 parts: vec![Part {
@@ -588,6 +618,7 @@ impl PartsBuilder {
                     facets: 0..total,
                 }],
                 normal_stale,
+                vertex_ids,
                 format,
             });
         }
@@ -595,14 +626,20 @@ impl PartsBuilder {
         let mut facets: Vec<Facet> = Vec::with_capacity(total);
         let mut stale: Option<Vec<bool>> = self.stale.as_ref().map(|_| Vec::with_capacity(total));
         let mut part_stale = self.stale.map(Vec::into_iter);
+        let mut ids: Option<Vec<[u32; 3]>> = self.ids.as_ref().map(|_| Vec::with_capacity(total));
+        let mut part_ids = self.ids.map(Vec::into_iter);
         for (name, part_facets) in self.names.into_iter().zip(self.facets) {
             let these = part_stale.as_mut().and_then(Iterator::next);
+            let these_ids = part_ids.as_mut().and_then(Iterator::next);
             if part_facets.is_empty() {
                 continue;
             }
             let start = facets.len();
             facets.extend_from_slice(&part_facets);
             if let (Some(all), Some(these)) = (&mut stale, these) {
+                all.extend_from_slice(&these);
+            }
+            if let (Some(all), Some(these)) = (&mut ids, these_ids) {
                 all.extend_from_slice(&these);
             }
             parts.push(Part {
@@ -614,6 +651,7 @@ impl PartsBuilder {
             facets,
             parts,
             normal_stale: stale,
+            vertex_ids: ids,
             format,
         })
     }

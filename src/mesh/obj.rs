@@ -45,7 +45,9 @@ pub fn read_obj_with(path: &Path, bytes: &[u8], max_facets: usize) -> Result<Mes
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let mut reader = Reader {
         vertices: Vec::new(),
-        parts: PartsBuilder::new(stem_name(path), false).with_max_facets(max_facets),
+        parts: PartsBuilder::new(stem_name(path), false)
+            .with_max_facets(max_facets)
+            .with_vertex_ids(),
         face: Vec::new(),
         ring: Vec::new(),
         triangles: Vec::new(),
@@ -135,7 +137,9 @@ impl Reader {
     fn push_face(&mut self) -> Result<(), Problem> {
         let v = &self.vertices;
         match self.face[..] {
-            [a, b, c] => self.parts.push([v[a], v[b], v[c]], [0.0; 3])?,
+            [a, b, c] => self
+                .parts
+                .push_numbered([v[a], v[b], v[c]], number([a, b, c]))?,
             _ if self.face.len() < 3 => {
                 return Err(Problem::TooFewFaceVertices {
                     count: self.face.len(),
@@ -149,12 +153,19 @@ impl Reader {
                     .triangulate(&self.ring, &mut self.triangles)?;
                 for t in &self.triangles {
                     let r = &self.ring;
-                    self.parts.push([r[t[0]], r[t[1]], r[t[2]]], [0.0; 3])?;
+                    let ids = number([self.face[t[0]], self.face[t[1]], self.face[t[2]]]);
+                    self.parts.push_numbered([r[t[0]], r[t[1]], r[t[2]]], ids)?;
                 }
             }
         }
         Ok(())
     }
+}
+
+/// The file's 1-based vertex numbers of three 0-based indices (the vertex cap keeps them
+/// within u32: at most three vertices a facet of a facet limit below 2^28).
+fn number(i: [usize; 3]) -> [u32; 3] {
+    i.map(|k| u32::try_from(k + 1).unwrap_or(u32::MAX))
 }
 
 /// The 0-based vertex index of a face token `v`, `v/vt`, `v//vn` or `v/vt/vn`, given the

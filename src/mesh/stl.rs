@@ -239,6 +239,7 @@ impl BinaryStl {
                 facets: 0..count,
             }],
             normal_stale: Some(self.stale),
+            vertex_ids: None,
             format: Format::StlBinary,
         })
     }

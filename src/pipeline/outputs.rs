@@ -23,7 +23,7 @@ use serde_json::Value;
 use super::{RunError, sidecar_path};
 use crate::compute::{self, CaseResult, MeshResult, Model, SweepStep};
 use crate::report::units::{UnitSystem, Units};
-use crate::report::{csv, html, svg, vtk};
+use crate::report::{csv, html, nodal, svg, vtk};
 use crate::results::{self, Batch, Layout, changelog};
 use crate::sidecar::Sidecar;
 
@@ -64,6 +64,7 @@ fn exports_by_kind(
         if sidecar.field_exports.writes(facets) {
             fields.push(e.field);
             fields.push(e.facet_loads);
+            fields.push(e.nodal_loads);
         }
         cases.push(e.sweep_chart);
     }
@@ -121,10 +122,12 @@ pub fn stage_outputs(
                 })?;
             batch.put(&files.field, &vtk::render(&field, &result.mesh, &case.name))?;
             batch.put(&files.facet_loads, &csv::render(&field))?;
+            batch.put(&files.nodal_loads, &nodal::render(&field))?;
         } else {
             // Exports of an earlier iteration would no longer match the result: remove them.
             batch.remove(files.field);
             batch.remove(files.facet_loads);
+            batch.remove(files.nodal_loads);
         }
         // A sweep the same in every case is drawn once, as `<name>.sweep.svg`.
         match case.sweep.as_ref().filter(|_| shared.is_none()) {
@@ -153,7 +156,7 @@ pub fn stage_outputs(
             .iter()
             .flat_map(|part| {
                 let e = layout.exports(mesh_path, part.as_deref());
-                [e.field, e.facet_loads, e.sweep_chart]
+                [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart]
             })
             .collect();
     current.push(layout.exports(mesh_path, None).sweep_chart);
@@ -185,7 +188,7 @@ fn previous_exports(layout: &Layout, mesh_path: &Path) -> Vec<PathBuf> {
         .iter()
         .flat_map(|part| {
             let e = layout.exports(mesh_path, part.as_deref());
-            [e.field, e.facet_loads, e.sweep_chart]
+            [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart]
         })
         .collect();
     files.push(layout.exports(mesh_path, None).sweep_chart);
@@ -499,10 +502,12 @@ mod tests {
             [
                 "report.html",
                 "wall._._flood.csv",
+                "wall._._flood.nodal.csv",
                 "wall._._flood.sweep.svg",
                 "wall._._flood.vtp",
                 "wall.json",
                 "wall.normal.csv",
+                "wall.normal.nodal.csv",
                 "wall.normal.sweep.svg",
                 "wall.normal.vtp",
             ]

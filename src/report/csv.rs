@@ -121,6 +121,7 @@ mod tests {
             ],
             facets,
             normal_stale: None,
+            vertex_ids: None,
             format: Format::Obj,
         };
         let s = parse_sidecar(

@@ -4,6 +4,7 @@
 pub mod csv;
 pub mod html;
 pub mod json;
+pub mod nodal;
 pub mod summary;
 pub mod svg;
 pub mod units;

@@ -396,6 +396,7 @@ mod tests {
             pieces: Vec::new(),
             facets: Vec::new(),
             parts: vec!["evil -->".to_owned()],
+            nodes: Vec::new(),
         };
         let text = String::from_utf8(render(&f, "m--.stl", "c")).expect("utf-8");
         assert_eq!(text.matches("-->").count(), 1);

@@ -7,6 +7,7 @@
 //!     ├── <name>.json             result document of one mesh (`report::json`)
 //!     ├── <name>[.<case>].vtp     pressure field, VTK XML PolyData (`report::vtk`)
 //!     ├── <name>[.<case>].csv     load per facet (`report::csv`)
+//!     ├── <name>[.<case>].nodal.csv  consistent nodal forces (`report::nodal`)
 //!     ├── <name>[.<case>].sweep.svg  loads against level, with a sweep (`report::svg`)
 //!     ├── <name>.history.svg      headline loads at every computation in the change log
 //!     ├── <name>.edges.obj        open and non-manifold edges found by `wetload check`
@@ -171,6 +172,7 @@ impl Layout {
         Exports {
             field: self.dir.join(format!("{base}.vtp")),
             facet_loads: self.dir.join(format!("{base}.csv")),
+            nodal_loads: self.dir.join(format!("{base}.nodal.csv")),
             sweep_chart: self.dir.join(format!("{base}.sweep.svg")),
         }
     }
@@ -218,6 +220,8 @@ pub struct Exports {
     pub field: PathBuf,
     /// `.csv`: the load per facet.
     pub facet_loads: PathBuf,
+    /// `.nodal.csv`: the consistent nodal forces.
+    pub nodal_loads: PathBuf,
     /// `.sweep.svg`: loads against level.
     pub sweep_chart: PathBuf,
 }
@@ -321,6 +325,7 @@ mod tests {
         let e = layout.exports(Path::new("/p/gate.stl"), Some("flood"));
         assert_eq!(e.field, Path::new("/p/results/gate.flood.vtp"));
         assert_eq!(e.facet_loads, Path::new("/p/results/gate.flood.csv"));
+        assert_eq!(e.nodal_loads, Path::new("/p/results/gate.flood.nodal.csv"));
         assert_eq!(e.sweep_chart, Path::new("/p/results/gate.flood.sweep.svg"));
         assert_eq!(
             layout.history_chart("gate"),

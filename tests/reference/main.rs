@@ -13,6 +13,7 @@
 mod closed_form;
 mod flotation;
 mod invariance;
+mod nodal;
 mod parry;
 mod real_exports;
 mod support;
