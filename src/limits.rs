@@ -44,6 +44,24 @@ pub const MAX_SIDECAR_BYTES: u64 = 16 << 20;
 /// Environment variable that sets [`Limits::max_file_bytes`].
 pub const ENV_MAX_FILE_SIZE: &str = "WETLOAD_MAX_FILE_SIZE";
 
+/// Environment variable that sets the snapshot store's size cap (bytes, with K, M, G…;
+/// unset: the store's default, 1 GiB).
+pub const ENV_SNAPSHOT_CAP: &str = "WETLOAD_SNAPSHOT_CAP";
+
+/// The snapshot store's size cap set by [`ENV_SNAPSHOT_CAP`] (`None`: not set).
+pub fn snapshot_cap() -> Result<Option<u64>, LimitsError> {
+    match std::env::var_os(ENV_SNAPSHOT_CAP) {
+        None => Ok(None),
+        Some(v) => {
+            let value = v.to_string_lossy().into_owned();
+            parse_size(&value).map(Some).ok_or(LimitsError {
+                variable: ENV_SNAPSHOT_CAP,
+                value,
+            })
+        }
+    }
+}
+
 /// Environment variable that sets [`Limits::max_facets`].
 pub const ENV_MAX_FACETS: &str = "WETLOAD_MAX_FACETS";
 
@@ -69,7 +87,7 @@ impl Default for Limits {
 #[derive(Debug, Error, Clone, PartialEq, Eq)]
 #[error(
     "{variable}={value:?} cannot be used: give a whole number greater than 0{}",
-    if *.variable == ENV_MAX_FILE_SIZE { " of bytes, optionally with K, M or G (powers of 1024), e.g. 8G" } else { " and at most 268435456, e.g. 100000000" }
+    if *.variable == ENV_MAX_FILE_SIZE || *.variable == ENV_SNAPSHOT_CAP { " of bytes, optionally with K, M or G (powers of 1024), e.g. 8G" } else { " and at most 268435456, e.g. 100000000" }
 )]
 pub struct LimitsError {
     pub variable: &'static str,

@@ -8,7 +8,9 @@
 //! It does not parse, integrate or render: the mesh readers, the sidecar's validation,
 //! [`crate::compute`] and [`crate::report`] do.
 
+pub mod iterations;
 pub mod outputs;
+pub mod record;
 
 use std::fs;
 use std::io::{self, Read};
@@ -46,6 +48,8 @@ pub enum RunError {
     },
     #[error(transparent)]
     Write(#[from] WriteError),
+    #[error(transparent)]
+    Log(#[from] results::changelog::LogError),
     #[error(transparent)]
     Project(#[from] ProjectError),
     #[error(
@@ -158,7 +162,12 @@ const STREAM_BLOCK: usize = 16_384 * BinaryStl::RECORD;
 /// A binary STL (by its size, as [`mesh::read_stl`] decides) is converted a block at a
 /// time, so its bytes are never held whole: for a million facets that is 50 MB less to
 /// allocate and touch. Any other file is read whole and parsed as usual.
-fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh, RunError> {
+fn read_mesh_streamed(
+    path: &Path,
+    mut file: fs::File,
+    len: u64,
+    hasher: &mut blake3::Hasher,
+) -> Result<Mesh, RunError> {
     let limits = crate::limits::current();
     let io_err = |source| RunError::Read {
         path: path.to_owned(),
@@ -181,10 +190,17 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
                 // A file cut short while it is read fails here, naming the file.
                 file.read_exact(buf)
             };
+            hasher.update(&header);
             read(&mut next, &mut left).map_err(io_err)?;
             while !next.is_empty() {
                 std::mem::swap(&mut next, &mut last);
-                let (got, ()) = rayon::join(|| read(&mut next, &mut left), || builder.push(&last));
+                let (got, ()) = rayon::join(
+                    || read(&mut next, &mut left),
+                    || {
+                        hasher.update(&last);
+                        builder.push(&last)
+                    },
+                );
                 got.map_err(io_err)?;
             }
             return Ok(builder.finish(path)?);
@@ -198,6 +214,7 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
     };
     let bytes = crate::limits::read_rest_capped(file, len, limits.max_file_bytes, read)
         .map_err(|e| read_error(path, e, false))?;
+    hasher.update(&bytes);
     Ok(mesh::read_mesh_with(path, &bytes, &limits)?)
 }
 
@@ -205,7 +222,7 @@ fn read_mesh_streamed(path: &Path, mut file: fs::File, len: u64) -> Result<Mesh,
 /// (a binary STL a block at a time, as in [`calc_file`]).
 pub fn read_mesh_file(path: &Path) -> Result<Mesh, RunError> {
     let (file, len) = open_capped(path, crate::limits::current().max_file_bytes)?;
-    read_mesh_streamed(path, file, len)
+    read_mesh_streamed(path, file, len, &mut blake3::Hasher::new())
 }
 
 /// Parses and computes inputs already read (no file system access).
@@ -265,19 +282,48 @@ pub fn calc_file(mesh_path: &Path) -> Result<MeshResult, RunError> {
 
 /// [`calc_file`], with the folder's page in `units`.
 pub fn calc_file_in(mesh_path: &Path, units: UnitSystem) -> Result<MeshResult, RunError> {
+    calc_logged(mesh_path, units).map(|c| c.result)
+}
+
+/// What [`calc_logged`] did besides computing.
+pub struct Logged {
+    pub result: MeshResult,
+    /// The change-log line written (`computed` or `unchanged`).
+    pub line: serde_json::Value,
+    /// Things worth a note on the terminal (a snapshot not kept, a torn log line moved).
+    pub notes: Vec<String>,
+}
+
+/// [`calc_file_in`], returning the change-log line it appended: reads (hashing the bytes
+/// as they are read), computes, writes the result and its exports, keeps the inputs in
+/// the snapshot store, appends the line (see [`iterations::log_calc`]) and writes the
+/// folder's page.
+pub fn calc_logged(mesh_path: &Path, units: UnitSystem) -> Result<Logged, RunError> {
     let (file, len) = open_capped(mesh_path, crate::limits::current().max_file_bytes)?;
     let sidecar_text = read_sidecar_text(mesh_path)?;
     let sidecar = sidecar::parse_sidecar(&sidecar_path(mesh_path), &sidecar_text)?;
     let project = read_project(mesh_path)?;
-    let mesh = read_mesh_streamed(mesh_path, file, len)?;
+    let mut hasher = blake3::Hasher::new();
+    let mesh = read_mesh_streamed(mesh_path, file, len, &mut hasher)?;
+    let hashes = (
+        hasher.finalize().to_hex().to_string(),
+        results::snapshots::hash_of(sidecar_text.as_bytes()),
+    );
     let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
     computed.result.project = project;
     let layout = Layout::of_mesh(mesh_path, mesh::is_mesh_path);
     if let Some(dropped) = write_computed(&layout, mesh_path, &computed)? {
         return Err(dropped.error.into());
     }
+    let mut notes = iterations::keep_file(&layout, mesh_path, &hashes, sidecar_text.as_bytes());
+    let (line, more) = iterations::log_calc(&layout, &computed.result, hashes)?;
+    notes.extend(more);
     outputs::write_folder_page(layout.dir(), false, units)?;
-    Ok(computed.result)
+    Ok(Logged {
+        result: computed.result,
+        line,
+        notes,
+    })
 }
 
 /// Writes the result document of a computed mesh and its exports together (see
@@ -316,7 +362,12 @@ mod tests {
         let path = dir.path().join(name);
         fs::write(&path, bytes).expect("writable");
         let (file, len) = open_capped(&path, u64::MAX).expect("opens");
-        let streamed = read_mesh_streamed(&path, file, len).map_err(|e| e.to_string());
+        let mut hasher = blake3::Hasher::new();
+        let streamed = read_mesh_streamed(&path, file, len, &mut hasher).map_err(|e| e.to_string());
+        // The bytes are hashed as they are read: the hash of the whole file.
+        if streamed.is_ok() {
+            assert_eq!(hasher.finalize(), blake3::hash(bytes));
+        }
         let whole = mesh::read_mesh(&path, bytes).map_err(|e| e.to_string());
         (streamed, whole)
     }

@@ -500,11 +500,15 @@ mod tests {
         assert_eq!(
             names,
             [
+                // calc logs its computation, keeps its inputs, and the page charts the log.
+                ".snapshots",
+                "changes.jsonl",
                 "report.html",
                 "wall._._flood.csv",
                 "wall._._flood.nodal.csv",
                 "wall._._flood.sweep.svg",
                 "wall._._flood.vtp",
+                "wall.history.svg",
                 "wall.json",
                 "wall.normal.csv",
                 "wall.normal.nodal.csv",

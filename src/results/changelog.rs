@@ -21,6 +21,18 @@
 //! next, so a crash can only tear the last line; [`ChangeLog::open`] moves a torn tail
 //! aside into `changes.jsonl.torn` and says so.
 //!
+//! # Appending from several processes
+//!
+//! `wetload calc` appends its line too, also while a watcher runs on the folder (which
+//! holds the folder lock below for its whole life). Every writer therefore appends under
+//! a second, short lock: an exclusive advisory lock on the log file itself, taken just
+//! for reading what is new, building the line and writing it ([`ChangeLog::append_with`]
+//! for the watcher, [`append_once`] for `calc`, which waits for it: a writer holds it
+//! only for one append). Under it, a writer first reads the lines appended since it last
+//! looked, so iteration numbers continue across `calc` and `watch` and are never given
+//! twice, and lines never interleave. A torn last line is moved aside under the same
+//! lock by whoever meets it first.
+//!
 //! # Locks, and a log or lock removed under a running watcher
 //!
 //! Two locks are held for as long as the log is open: an advisory lock on the watched
@@ -73,6 +85,8 @@ pub struct ChangeLog {
     /// The watched folder, locked for the life of the log: the advisory lock lives as
     /// long as the handle.
     _folder: File,
+    /// Bytes of the log read so far: lines after them were appended by someone else.
+    seen: u64,
 }
 
 /// Device and inode of an open file.
@@ -164,33 +178,19 @@ impl ChangeLog {
             .append(true)
             .open(&path)
             .map_err(io_err)?;
+        // The append lock, while the log is read and a torn tail repaired (a `calc` may be
+        // appending).
+        file.lock().map_err(io_err)?;
         let mut bytes = Vec::new();
         file.read_to_end(&mut bytes).map_err(io_err)?;
         let mut recovered = Recovered::default();
-        let complete = bytes.iter().rposition(|&b| b == b'\n').map_or(0, |i| i + 1);
-        if complete < bytes.len() {
-            let torn = &bytes[complete..];
-            let aside = layout.torn_lines();
-            let mut f = OpenOptions::new()
-                .create(true)
-                .append(true)
-                .open(&aside)
-                .map_err(io_err)?;
-            f.write_all(torn)
-                .and_then(|()| f.write_all(b"\n"))
-                .map_err(io_err)?;
-            f.sync_all().map_err(io_err)?;
-            file.set_len(complete as u64).map_err(io_err)?;
-            file.sync_all().map_err(io_err)?;
-            recovered.notes.push(format!(
-                "the last line of {} was incomplete ({} bytes, from an interrupted run); it was moved to {}",
-                path.display(),
-                torn.len(),
-                aside.display()
-            ));
-        }
+        let complete = repair_torn_tail(&mut file, &bytes, &layout).map_err(io_err)?;
+        recovered.notes.extend(complete.1);
+        let complete = complete.0;
+        let _ = file.unlock();
         file.seek(SeekFrom::End(0)).map_err(io_err)?;
-        let orphans = super::clean_orphans(dir);
+        let mut orphans = super::clean_orphans(dir);
+        orphans.extend(super::clean_orphans(&layout.snapshots()));
         if !orphans.is_empty() {
             recovered.notes.push(format!(
                 "removed {} temporary file(s) in {} left by an interrupted run",
@@ -217,6 +217,7 @@ impl ChangeLog {
                 file,
                 lock,
                 _folder: folder,
+                seen: complete as u64,
             },
             recovered,
         ))
@@ -225,16 +226,52 @@ impl ChangeLog {
     /// Appends one line and flushes it to disk; first repairs a log or lock file that was
     /// removed or replaced (see the module doc) and returns what it repaired.
     pub fn append(&mut self, line: &Value) -> Result<Vec<String>, LogError> {
-        let notes = self.repair()?;
-        let mut bytes = serde_json::to_vec(line).expect("a JSON value always serializes");
-        bytes.push(b'\n');
+        let line = line.clone();
+        self.append_with(&mut (), |(), _| {}, |()| line)
+            .map(|(_, notes)| notes)
+    }
+
+    /// Appends the line `make` builds, under the append lock (see "Appending from
+    /// several processes" in the module doc): lines others appended since this log last
+    /// read are first handed to `foreign`, in order, so that `make` numbers from them.
+    /// Returns the line written and the repairs made.
+    pub fn append_with<S: ?Sized>(
+        &mut self,
+        state: &mut S,
+        mut foreign: impl FnMut(&mut S, Value),
+        make: impl FnOnce(&mut S) -> Value,
+    ) -> Result<(Value, Vec<String>), LogError> {
+        let mut notes = self.repair()?;
+        let path = self.path.clone();
         let err = |source| LogError::Io {
-            path: self.path.clone(),
+            path: path.clone(),
             source,
         };
-        self.file.write_all(&bytes).map_err(err)?;
-        self.file.sync_data().map_err(err)?;
-        Ok(notes)
+        self.file.lock().map_err(err)?;
+        let written = (|| {
+            let mut tail = Vec::new();
+            let len = self.file.metadata().map_err(err)?.len();
+            let from = self.seen.min(len);
+            self.file.seek(SeekFrom::Start(from)).map_err(err)?;
+            self.file.read_to_end(&mut tail).map_err(err)?;
+            let layout = Layout::new(self.path.parent().unwrap_or(Path::new(".")).to_owned());
+            let (complete, torn) = repair_torn_tail(&mut self.file, &tail, &layout).map_err(err)?;
+            notes.extend(torn);
+            for line in tail[..complete].split(|&b| b == b'\n') {
+                if let Ok(v) = serde_json::from_slice::<Value>(line) {
+                    foreign(state, v);
+                }
+            }
+            let line = make(state);
+            let mut bytes = serde_json::to_vec(&line).expect("a JSON value always serializes");
+            bytes.push(b'\n');
+            self.file.write_all(&bytes).map_err(err)?;
+            self.file.sync_data().map_err(err)?;
+            self.seen = from + complete as u64 + bytes.len() as u64;
+            Ok(line)
+        })();
+        let _ = self.file.unlock();
+        written.map(|line| (line, notes))
     }
 
     /// Puts the log and the lock file back at their paths when they are not there.
@@ -307,6 +344,84 @@ impl ChangeLog {
     pub fn path(&self) -> &Path {
         &self.path
     }
+}
+
+/// Moves a torn last line (bytes after the last newline of `bytes`, the log's tail from
+/// some offset to its end) aside into `changes.jsonl.torn` and cuts it from the log.
+/// Returns how many bytes of `bytes` are complete lines, and a note when it cut.
+fn repair_torn_tail(
+    file: &mut File,
+    bytes: &[u8],
+    layout: &Layout,
+) -> io::Result<(usize, Option<String>)> {
+    let complete = bytes.iter().rposition(|&b| b == b'\n').map_or(0, |i| i + 1);
+    if complete == bytes.len() {
+        return Ok((complete, None));
+    }
+    let torn = &bytes[complete..];
+    let aside = layout.torn_lines();
+    let mut f = OpenOptions::new().create(true).append(true).open(&aside)?;
+    f.write_all(torn)?;
+    f.write_all(b"\n")?;
+    f.sync_all()?;
+    let len = file.metadata()?.len();
+    file.set_len(len - torn.len() as u64)?;
+    file.sync_all()?;
+    Ok((
+        complete,
+        Some(format!(
+            "the last line of {} was incomplete ({} bytes, from an interrupted run); it was moved to {}",
+            layout.change_log().display(),
+            torn.len(),
+            aside.display()
+        )),
+    ))
+}
+
+/// Appends one line to the change log of the results folder `dir` without taking the
+/// folder lock (for `calc`, which may run beside a watcher): creates `dir` and the log
+/// when missing, takes the append lock (waiting for a writer that holds it: writers hold
+/// it only while they append), repairs a torn last line, hands every line to `make`, and
+/// writes what it returns (nothing for `None`). Returns the line written and any note.
+pub fn append_once(
+    dir: &Path,
+    make: impl FnOnce(&[Value]) -> Option<Value>,
+) -> Result<(Option<Value>, Vec<String>), LogError> {
+    let layout = Layout::new(dir.to_owned());
+    let path = layout.change_log();
+    let err = |source| LogError::Io {
+        path: path.clone(),
+        source,
+    };
+    match fs::create_dir(dir) {
+        Ok(()) => {}
+        Err(e) if e.kind() == io::ErrorKind::AlreadyExists => {}
+        Err(e) => return Err(err(e)),
+    }
+    let mut file = OpenOptions::new()
+        .create(true)
+        .read(true)
+        .append(true)
+        .open(&path)
+        .map_err(err)?;
+    file.lock().map_err(err)?;
+    let mut bytes = Vec::new();
+    file.read_to_end(&mut bytes).map_err(err)?;
+    let (complete, torn) = repair_torn_tail(&mut file, &bytes, &layout).map_err(err)?;
+    let lines: Vec<Value> = bytes[..complete]
+        .split(|&b| b == b'\n')
+        .filter_map(|l| serde_json::from_slice(l).ok())
+        .collect();
+    drop(bytes);
+    let line = make(&lines);
+    if let Some(line) = &line {
+        let mut out = serde_json::to_vec(line).expect("a JSON value always serializes");
+        out.push(b'\n');
+        file.write_all(&out).map_err(err)?;
+        file.sync_data().map_err(err)?;
+    }
+    let _ = file.unlock();
+    Ok((line, torn.into_iter().collect()))
 }
 
 /// The complete, parseable lines of the change log in the results folder `dir` (none when

@@ -15,6 +15,9 @@
 //!     ├── changes.jsonl           the change log, one line per recomputation ([`changelog`])
 //!     ├── changes.jsonl.torn      torn last lines of interrupted runs, moved aside
 //!     ├── .wetload.lock           held by the watcher that writes the change log
+//!     ├── .snapshots/             the exact inputs of computed iterations ([`snapshots`])
+//!     │   ├── <h[0..2]>/<h>       one blob: the bytes whose BLAKE3 hash is <h> (hex)
+//!     │   └── .wetload-<pid>-*.tmp   a blob being written; never listed
 //!     └── .wetload-<pid>-*.tmp    an atomic write in progress ([`write_atomic`]); those
 //!                                 of a process that no longer runs are removed when a
 //!                                 watcher starts ([`clean_orphans`])
@@ -31,11 +34,12 @@
 //! from files and sidecars pass through [`file_part`] before they become part of a path,
 //! so no name can leave `results/` or make a hidden file.
 //!
-//! Owns: the names and places above ([`Layout`]), atomic writes and removals, and the
-//! change log with its lock. It does not decide *what* is written (that is
+//! Owns: the names and places above ([`Layout`]), atomic writes and removals, the
+//! change log with its lock, and the snapshot store. It does not decide *what* is written (that is
 //! `pipeline::outputs`) nor render anything (that is `report`).
 
 pub mod changelog;
+pub mod snapshots;
 mod write;
 
 use std::collections::BTreeMap;
@@ -211,6 +215,16 @@ impl Layout {
     pub fn lock(&self) -> PathBuf {
         self.dir.join(changelog::LOCK_NAME)
     }
+
+    /// `.snapshots/`: the store of the exact inputs of computed iterations.
+    pub fn snapshots(&self) -> PathBuf {
+        self.dir.join(snapshots::DIR_NAME)
+    }
+
+    /// `.snapshots/<h[0..2]>/<h>`: the blob with the BLAKE3 hash `hash` (hex).
+    pub fn snapshot(&self, hash: &str) -> PathBuf {
+        snapshots::blob_path(&self.snapshots(), hash)
+    }
 }
 
 /// The per-case export files of one mesh.
@@ -334,6 +348,11 @@ mod tests {
         assert_eq!(layout.page(), Path::new("/p/results/report.html"));
         assert_eq!(layout.change_log(), Path::new("/p/results/changes.jsonl"));
         assert_eq!(layout.lock(), Path::new("/p/results/.wetload.lock"));
+        let h = "ab".repeat(32);
+        assert_eq!(
+            layout.snapshot(&h),
+            Path::new("/p/results/.snapshots/ab").join(&h)
+        );
         assert_eq!(dir_of(Path::new("gate.stl")), Path::new("results"));
     }
 

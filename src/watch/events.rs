@@ -102,7 +102,7 @@ impl Watch<'_> {
             if before.name(m) != self.layout().name(m) {
                 // Its files have a new name: remove those under the old one (nobody's now,
                 // and no longer kept up to date) and write them under the new.
-                let facets = self.meshes.get(m).and_then(|st| st.facets);
+                let facets = self.meshes.get(m).and_then(|st| st.lin.facets);
                 let mut old = vec![before.result(m), before.history_of(m)];
                 let side = pipeline::sidecar_path(m);
                 if let (Ok(text), Some(f)) = (fs::read_to_string(&side), facets)
@@ -124,7 +124,7 @@ impl Watch<'_> {
                     ));
                 }
                 if let Some(st) = self.meshes.get_mut(m) {
-                    st.hashes = None;
+                    st.lin.hashes = None;
                 }
                 touched.push((m.clone(), at));
             }

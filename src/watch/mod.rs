@@ -33,8 +33,8 @@
 
 mod complete;
 mod events;
-pub mod record;
 pub mod schedule;
+mod state;
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::fs;
@@ -49,9 +49,10 @@ use notify::{RecursiveMode, Watcher};
 use serde_json::{Value, json};
 use thiserror::Error;
 
-use crate::pipeline::{self, RunError, outputs};
+use crate::pipeline::{self, RunError, iterations, outputs, record};
 use crate::results::changelog::{ChangeLog, LogError};
 use crate::results::{self, Layout};
+use state::{MeshState, restore};
 
 /// How often a result that could not be written is tried again.
 pub const WRITE_RETRY: Duration = Duration::from_secs(2);
@@ -119,22 +120,6 @@ pub enum WatchError {
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct Outcome {
     pub failures: usize,
-}
-
-/// Per-mesh state carried between saves.
-#[derive(Debug, Default)]
-struct MeshState {
-    /// Hashes of the last computed mesh and sidecar.
-    hashes: Option<(String, String)>,
-    iteration: u64,
-    /// Facets of the last computed mesh (which exports it has depends on it).
-    facets: Option<usize>,
-    /// `cases` of the previous and of the first `computed` line.
-    previous: Option<Value>,
-    baseline: Option<Value>,
-    retries: u32,
-    /// The last result could not be written; it is being retried (reported once).
-    write_failing: bool,
 }
 
 struct Watch<'a> {
@@ -350,44 +335,11 @@ fn leads_outside(dir: &Path, p: &Path) -> bool {
         && fs::canonicalize(p).is_ok_and(|target| !target.starts_with(dir))
 }
 
-/// Rebuilds a mesh's iteration, previous and baseline from a line of an existing change
-/// log (`dir`: the watched folder).
-fn restore(dir: &Path, meshes: &mut BTreeMap<PathBuf, MeshState>, line: &Value) {
-    let Some(mesh) = line["mesh"].as_str() else {
-        return;
-    };
-    let st = meshes.entry(dir.join(mesh)).or_default();
-    match line["event"].as_str() {
-        Some("computed") => {
-            st.iteration = line["iteration"].as_u64().unwrap_or(st.iteration + 1);
-            st.previous = Some(line["cases"].clone());
-            if st.baseline.is_none() {
-                st.baseline = Some(line["cases"].clone());
-            }
-            st.facets = line["facets"]
-                .as_u64()
-                .and_then(|f| usize::try_from(f).ok());
-            if let (Some(m), Some(s)) = (line["mesh_hash"].as_str(), line["sidecar_hash"].as_str())
-            {
-                st.hashes = Some((m.to_owned(), s.to_owned()));
-            }
-        }
-        // After a failure or a removal the next save must compute even if it restores the
-        // last good content, or the stale mark would stay.
-        Some("removed" | "failed") => st.hashes = None,
-        _ => {}
-    }
-}
-
 fn hash(bytes: &[u8]) -> String {
     blake3::hash(bytes).to_hex().to_string()
 }
 
-fn now_rfc3339() -> String {
-    jiff::Timestamp::now()
-        .round(jiff::Unit::Millisecond)
-        .map_or_else(|_| jiff::Timestamp::now().to_string(), |t| t.to_string())
-}
+use iterations::now_rfc3339;
 
 fn clock() -> String {
     jiff::Zoned::now().strftime("%H:%M:%S").to_string()
@@ -434,12 +386,35 @@ impl Watch<'_> {
     /// Appends a line to the change log, says loudly what had to be repaired first, and
     /// keeps the line for the page.
     fn append(&mut self, line: Value) -> Result<(), WatchError> {
-        let notes = self.log.append(&line)?;
+        self.append_made(|_| line).map(|_| ())
+    }
+
+    /// Appends the line `make` builds from the meshes' state, after taking in the lines
+    /// another process (`calc`) appended meanwhile, so numbering continues from them.
+    fn append_made(
+        &mut self,
+        make: impl FnOnce(&mut BTreeMap<PathBuf, MeshState>) -> Value,
+    ) -> Result<Value, WatchError> {
+        let dir = self.dir.clone();
+        let mut state = (&mut self.meshes, &mut self.page);
+        let (line, notes) = self.log.append_with(
+            &mut state,
+            |(meshes, page), line| {
+                restore(&dir, meshes, &line);
+                if line["event"] == "computed"
+                    && let Some(m) = line["mesh"].as_str()
+                {
+                    page.reload(&dir.join(m));
+                }
+                page.record(line);
+            },
+            |(meshes, _)| make(meshes),
+        )?;
         for note in notes {
             self.say(&format!("WARNING: {note}\n"));
         }
-        self.page.record(line);
-        Ok(())
+        self.page.record(line.clone());
+        Ok(line)
     }
 
     /// Computes one mesh and records the outcome; returns false when it failed.
@@ -457,9 +432,12 @@ impl Watch<'_> {
                     dir: self.dir.clone(),
                 });
             }
-            let known = self.meshes.get(mesh).is_some_and(|s| s.hashes.is_some());
+            let known = self
+                .meshes
+                .get(mesh)
+                .is_some_and(|s| s.lin.hashes.is_some());
             if known {
-                self.meshes.entry(mesh.to_owned()).or_default().hashes = None;
+                self.meshes.entry(mesh.to_owned()).or_default().lin.hashes = None;
                 self.mark_stale(mesh, "the mesh file was deleted");
                 self.append(json!({
                     "time": now_rfc3339(), "mesh": name, "event": "removed",
@@ -503,9 +481,9 @@ impl Watch<'_> {
         );
         let st = self.meshes.entry(mesh.to_owned()).or_default();
         let mut rewrite = Vec::new();
-        if st.hashes.as_ref() == Some(&hashes) {
+        if st.lin.hashes.as_ref() == Some(&hashes) {
             // The same content: nothing to compute, unless files of its result are gone.
-            let facets = st.facets;
+            let facets = st.lin.facets;
             rewrite = match (
                 crate::sidecar::parse_sidecar(&side, &inputs.sidecar_text),
                 facets,
@@ -518,7 +496,7 @@ impl Watch<'_> {
             };
             if rewrite.is_empty() {
                 let st = self.meshes.entry(mesh.to_owned()).or_default();
-                let iteration = st.iteration;
+                let iteration = st.lin.iteration;
                 st.retries = 0;
                 self.append(json!({
                     "time": now_rfc3339(), "mesh": name, "event": "unchanged",
@@ -530,6 +508,19 @@ impl Watch<'_> {
                 ));
                 return Ok(true);
             }
+        }
+        let kept = iterations::keep_bytes(
+            self.layout(),
+            &hashes,
+            &inputs.mesh_bytes,
+            inputs.sidecar_text.as_bytes(),
+        );
+        if let Err(e) = kept {
+            let e = self.in_folder(&e.to_string());
+            self.say(&format!(
+                "{} {name} · note: no snapshot kept: {e}\n",
+                clock()
+            ));
         }
         let computed = match pipeline::compute_parsed(mesh, inputs) {
             Ok(c) => c,
@@ -573,10 +564,10 @@ impl Watch<'_> {
         let result = computed.result;
         let st = self.meshes.entry(mesh.to_owned()).or_default();
         st.retries = 0;
-        st.facets = Some(result.inputs.facets);
+        st.lin.facets = Some(result.inputs.facets);
         let recovered = std::mem::take(&mut st.write_failing);
         if !rewrite.is_empty() {
-            let iteration = st.iteration;
+            let iteration = st.lin.iteration;
             let files: Vec<String> = rewrite.iter().map(|p| file_name(p)).collect();
             self.append(json!({
                 "time": now_rfc3339(), "mesh": name, "event": "unchanged",
@@ -590,20 +581,26 @@ impl Watch<'_> {
             ));
             return Ok(true);
         }
-        st.iteration += 1;
-        let cases = record::cases_with_changes(&result, st.previous.as_ref(), st.baseline.as_ref());
-        let cases = Value::Array(cases);
-        st.previous = Some(cases.clone());
-        if st.baseline.is_none() {
-            st.baseline = Some(cases.clone());
+        let time = now_rfc3339();
+        let key = mesh.to_owned();
+        let line = self.append_made(|meshes| {
+            let lin = &mut meshes.entry(key).or_default().lin;
+            // Computed on purpose (new content, or after a failure): a new iteration,
+            // unless a `calc` of the same content was logged meanwhile.
+            lin.line(&time, &result, hashes)
+        })?;
+        let _ = iterations::prune(self.layout());
+        let Some(iteration) = line["iteration"].as_u64() else {
+            return Ok(true);
+        };
+        if line["event"] != "computed" {
+            self.say(&format!(
+                "{} {name} · unchanged (iteration {iteration}, computed meanwhile by calc)\n",
+                clock()
+            ));
+            return Ok(true);
         }
-        st.hashes = Some(hashes.clone());
-        let iteration = st.iteration;
-        self.append(json!({
-            "time": now_rfc3339(), "mesh": name, "event": "computed", "iteration": iteration,
-            "mesh_hash": hashes.0, "sidecar_hash": hashes.1, "facets": result.inputs.facets,
-            "warnings": result.warnings.len(), "cases": cases,
-        }))?;
+        let cases = line["cases"].clone();
         let block = record::block(
             &clock(),
             &result,
@@ -650,7 +647,7 @@ impl Watch<'_> {
         }
         st.retries = 0;
         // The next good save must compute even if it restores the last good content.
-        st.hashes = None;
+        st.lin.hashes = None;
         let message = self.in_folder(&e.to_string());
         let kept = self.mark_stale(mesh, &message);
         self.append(json!({

@@ -209,6 +209,8 @@ fn exports_of_cases_that_no_longer_exist_are_removed() {
     let f = Folder::new();
     wall(&f);
     f.calc(&["wall.stl"]).expect_code(0);
+    // The per-case exports (the mesh's history chart, drawn from the change log that calc
+    // now writes too, belongs to no case).
     let exports = |f: &Folder| -> Vec<String> {
         f.results_listing()
             .into_iter()
@@ -216,6 +218,7 @@ fn exports_of_cases_that_no_longer_exist_are_removed() {
                 (n.ends_with(".vtp") || n.ends_with(".csv") || n.ends_with(".svg"))
                     && !n.ends_with(".nodal.csv")
             })
+            .filter(|n| !n.ends_with(".history.svg"))
             .collect()
     };
     assert_eq!(exports(&f), ["wall.csv", "wall.vtp"]);
@@ -247,7 +250,6 @@ fn exports_of_cases_that_no_longer_exist_are_removed() {
         [
             "wall.extreme.csv",
             "wall.extreme.vtp",
-            "wall.history.svg",
             "wall.normal.csv",
             "wall.normal.vtp"
         ]

@@ -1,5 +1,7 @@
 //! What one recomputation adds to the change log and prints: headline figures per case,
-//! their change since the previous save and since the baseline. Pure.
+//! their change since the previous save and since the baseline, and a mesh's lineage
+//! (iteration, previous and baseline figures, last hashes) as the log's lines rebuild it.
+//! Pure; `calc` and the watcher both use it, so their lines are the same.
 
 use serde_json::{Map, Value, json};
 
@@ -26,6 +28,80 @@ pub fn headline(c: &CaseResult) -> Value {
         "axis_moments": axes,
         "flotation_factor": c.flotation.as_ref().and_then(|f| f.factor),
     })
+}
+
+/// What the change log says about one mesh so far: fed its lines in order
+/// ([`Lineage::feed`]), it knows the number the next `computed` line takes.
+#[derive(Clone, Debug, Default)]
+pub struct Lineage {
+    /// The last iteration (0 before the first).
+    pub iteration: u64,
+    /// `cases` of the previous and of the first `computed` line.
+    pub previous: Option<Value>,
+    pub baseline: Option<Value>,
+    /// Mesh and sidecar hashes of the last computed line, unless a failure or a removal
+    /// came after it (the next save must then compute even if the content is the same).
+    pub hashes: Option<(String, String)>,
+    /// Facets of the last computed mesh.
+    pub facets: Option<usize>,
+}
+
+impl Lineage {
+    /// Takes one line of the log (any mesh's lines may be fed: the caller filters).
+    pub fn feed(&mut self, line: &Value) {
+        match line["event"].as_str() {
+            Some("computed") => {
+                self.iteration = line["iteration"].as_u64().unwrap_or(self.iteration + 1);
+                self.previous = Some(line["cases"].clone());
+                if self.baseline.is_none() {
+                    self.baseline = Some(line["cases"].clone());
+                }
+                self.facets = line["facets"]
+                    .as_u64()
+                    .and_then(|f| usize::try_from(f).ok());
+                if let (Some(m), Some(s)) =
+                    (line["mesh_hash"].as_str(), line["sidecar_hash"].as_str())
+                {
+                    self.hashes = Some((m.to_owned(), s.to_owned()));
+                }
+            }
+            Some("removed" | "failed") => self.hashes = None,
+            _ => {}
+        }
+    }
+
+    /// The lineage of the mesh named `mesh` (its file name) in the log's `lines`.
+    pub fn of(mesh: &str, lines: &[Value]) -> Lineage {
+        let mut l = Lineage::default();
+        for line in lines.iter().filter(|l| l["mesh"] == mesh) {
+            l.feed(line);
+        }
+        l
+    }
+
+    /// The line of a computation of `r` from inputs with `hashes` (mesh, sidecar): a new
+    /// `computed` iteration, or `unchanged` when the hashes are the last computed ones.
+    /// Advances the lineage as feeding the line back would.
+    pub fn line(&mut self, time: &str, r: &MeshResult, hashes: (String, String)) -> Value {
+        if self.hashes.as_ref() == Some(&hashes) {
+            return json!({
+                "time": time, "mesh": r.mesh, "event": "unchanged",
+                "iteration": self.iteration, "mesh_hash": hashes.0, "sidecar_hash": hashes.1,
+            });
+        }
+        let cases = Value::Array(cases_with_changes(
+            r,
+            self.previous.as_ref(),
+            self.baseline.as_ref(),
+        ));
+        let line = json!({
+            "time": time, "mesh": r.mesh, "event": "computed", "iteration": self.iteration + 1,
+            "mesh_hash": hashes.0, "sidecar_hash": hashes.1, "facets": r.inputs.facets,
+            "warnings": r.warnings.len(), "cases": cases,
+        });
+        self.feed(&line);
+        line
+    }
 }
 
 /// `new − old` for every number (and every array or object of numbers) the two share;
@@ -220,7 +296,7 @@ fn up_unit(up: &str) -> [f64; 3] {
 /// |now| > |old|, ` ▼ eases 3.2%` when it fell, ` ⇅ reverses` when the sign flipped,
 /// ` ▲ new` from zero, ` =` when unchanged (within 1e-9 relative); empty without a
 /// previous value. The value itself is printed with its sign beside the marker.
-fn marker(d: Option<f64>, now: f64) -> String {
+pub fn marker(d: Option<f64>, now: f64) -> String {
     let Some(d) = d else {
         return String::new();
     };
