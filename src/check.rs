@@ -27,12 +27,25 @@ pub struct Health {
     pub warnings: Vec<String>,
     /// Every open and non-manifold edge: where the holes and seams are.
     pub edges: Vec<FaultyEdge>,
+    /// The mesh judged with its sidecar, when it has one: whether `calc` accepts the pair.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub with_sidecar: Option<SidecarVerdict>,
     /// Whether `calc` can use the mesh as it is (no repair, no defect).
     #[serde(skip)]
     pub usable_as_is: bool,
     /// Metres per mesh unit (1 when unknown), for showing edge positions.
     #[serde(skip)]
     pub scale: f64,
+}
+
+/// Whether `calc` would compute a mesh with its sidecar, and why not.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct SidecarVerdict {
+    /// The sidecar's path.
+    pub sidecar: String,
+    pub accepted: bool,
+    /// `calc`'s refusal, naming the file and the fix, when not accepted.
+    pub reason: Option<String>,
 }
 
 /// An open or non-manifold edge, with its end points in the mesh's own axes and units (as
@@ -230,6 +243,7 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
         parts,
         warnings,
         edges,
+        with_sidecar: None,
         usable_as_is,
         scale: s,
     }
@@ -337,6 +351,20 @@ pub fn render(h: &Health) -> String {
             si.length.fmt(hi[2] - lo[2]),
             si.area.fmt(p.surface_area),
         );
+    }
+    if let Some(v) = &h.with_sidecar {
+        match &v.reason {
+            None => {
+                let _ = writeln!(s, "  with its sidecar {}: calc accepts it", v.sidecar);
+            }
+            Some(why) => {
+                let _ = writeln!(
+                    s,
+                    "  with its sidecar {}: calc would refuse it: {why}",
+                    v.sidecar
+                );
+            }
+        }
     }
     if !h.edges.is_empty() {
         let unit = if h.length_unit == "m" {

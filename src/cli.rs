@@ -21,14 +21,76 @@ pub enum Command {
     /// saved, until interrupted (Ctrl-C). Results and the change log go to DIR/results/.
     Watch(WatchArgs),
     /// Report the health of meshes: shells, open and non-manifold edges, winding,
-    /// degenerate and duplicate facets, stale STL normals. Exit status 0 when every mesh
-    /// is usable as it is, 1 when one is unusable or needs the repairs calc would make.
+    /// degenerate and duplicate facets, stale STL normals; with a sidecar beside a mesh,
+    /// whether calc accepts the pair. Exit status 0 when every mesh is usable as it is,
+    /// 1 when one is unusable, needs the repairs calc would make, or is refused with its
+    /// sidecar (say an open mesh without wet_side front/back).
     Check(CheckArgs),
+    /// List a mesh's design iterations from the change log of its results folder: number,
+    /// time, what changed (mesh, sidecar or both), and per case |F|, |M| and uplift with
+    /// their change. `--extract N DIR` writes iteration N's exact mesh and sidecar out.
+    History(HistoryArgs),
+    /// Put two iterations of a mesh side by side: every headline load per case with its
+    /// change and percentage, and the geometry (facets, area, volume, bounding box, per
+    /// part) of each iteration's mesh.
+    Compare(CompareArgs),
+    /// Write a starter sidecar <stem>.json for a mesh, from what the mesh shows (closed or
+    /// open, extent, parts), and say what each value is and what to edit. Never
+    /// overwrites a sidecar; needs --units (without it, says what the extent suggests).
+    Init(InitArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct HistoryArgs {
+    /// The mesh file (its results folder holds the change log and the snapshots).
+    #[arg(value_name = "MESH")]
+    pub mesh: PathBuf,
+    /// Print the history as JSON: an array, oldest first, one entry per log line.
+    #[arg(long)]
+    pub json: bool,
+    /// Write iteration N's exact mesh and sidecar into DIR under their original names
+    /// (N: a number, `baseline`, `previous` or `latest`). Never overwrites a file.
+    #[arg(long, num_args = 2, value_names = ["N", "DIR"])]
+    pub extract: Option<Vec<String>>,
+    /// Units of the listing: `si` or `us`. The JSON is SI either way.
+    #[arg(long, value_enum, ignore_case = true, default_value_t = Units::Si)]
+    pub units: Units,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct CompareArgs {
+    /// The mesh file.
+    #[arg(value_name = "MESH")]
+    pub mesh: PathBuf,
+    /// The earlier iteration: a number, `baseline`, `previous` or `latest`.
+    #[arg(value_name = "A")]
+    pub from: String,
+    /// The later iteration: a number, `baseline`, `previous` or `latest`.
+    #[arg(value_name = "B")]
+    pub to: String,
+    /// Print the comparison as JSON.
+    #[arg(long)]
+    pub json: bool,
+    /// Units of the table: `si` or `us`. The JSON is SI either way.
+    #[arg(long, value_enum, ignore_case = true, default_value_t = Units::Si)]
+    pub units: Units,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct InitArgs {
+    /// The mesh file; the sidecar is written beside it as <stem>.json.
+    #[arg(value_name = "MESH")]
+    pub mesh: PathBuf,
+    /// Length unit of the mesh's coordinates: m, cm, mm, in or ft. Required to write
+    /// anything: without it, wetload says which unit the extent suggests, and why.
+    #[arg(long, value_name = "U")]
+    pub units: Option<String>,
 }
 
 #[derive(Debug, clap::Args)]
 pub struct CheckArgs {
-    /// Mesh files (.stl or .obj). A sidecar beside one, if present, gives its units.
+    /// Mesh files (.stl or .obj). A sidecar beside one, if present, gives its units and
+    /// is judged with it.
     #[arg(required = true, value_name = "MESH")]
     pub meshes: Vec<PathBuf>,
     /// Print the reports as JSON (an array for several meshes).

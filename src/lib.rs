@@ -6,7 +6,9 @@
 pub mod check;
 pub mod cli;
 pub mod compute;
+pub mod history;
 pub mod hydro;
+pub mod init;
 pub mod limits;
 pub mod mesh;
 pub mod pipeline;
@@ -18,14 +20,14 @@ pub mod watch;
 use std::io::Write;
 use std::process::ExitCode;
 
-use crate::cli::{CalcArgs, CheckArgs, Cli, Command, WatchArgs};
+use crate::cli::{CalcArgs, CheckArgs, Cli, Command, CompareArgs, HistoryArgs, WatchArgs};
 use crate::report::summary::{self, SummaryOptions};
 
 /// Runs a parsed command line; returns the exit status (0 success, 1 an input could not
 /// be computed). Usage errors (status 2) are handled by the argument parser.
 pub fn run(cli: Cli) -> ExitCode {
     // A limit that cannot be read is a usage error, reported before any work.
-    if let Err(e) = limits::Limits::from_env() {
+    if let Err(e) = limits::Limits::from_env().and_then(|_| limits::snapshot_cap()) {
         eprintln!("error: {e}");
         return ExitCode::from(2);
     }
@@ -33,6 +35,78 @@ pub fn run(cli: Cli) -> ExitCode {
         Command::Calc(args) => calc(&args),
         Command::Watch(args) => watch(&args),
         Command::Check(args) => check_meshes(&args),
+        Command::History(args) => history_of(&args),
+        Command::Compare(args) => compare(&args),
+        Command::Init(args) => init::run(&args.mesh, args.units.as_deref()),
+    }
+}
+
+/// Prints `text` on stdout; a closed pipe is not an error worth a message.
+fn print(text: &str) {
+    let _ = std::io::stdout().write_all(text.as_bytes());
+}
+
+fn history_of(args: &HistoryArgs) -> ExitCode {
+    let h = history::History::read(&args.mesh);
+    if let Some([n, dir]) = args.extract.as_deref() {
+        return match history::extract(&h, n, std::path::Path::new(dir)) {
+            Ok([mesh, side]) => {
+                print(&format!(
+                    "wrote {} and {} (iteration {n} of {}, exactly as computed)\n",
+                    mesh.display(),
+                    side.display(),
+                    args.mesh.display()
+                ));
+                ExitCode::SUCCESS
+            }
+            Err(e) => {
+                eprintln!("error: {e}");
+                ExitCode::from(1)
+            }
+        };
+    }
+    if h.lines.is_empty() {
+        let e = history::HistoryError::Empty {
+            mesh: args.mesh.clone(),
+            log: h.layout.change_log(),
+        };
+        if args.json {
+            print("[]\n");
+            return ExitCode::SUCCESS;
+        }
+        eprintln!("error: {e}");
+        return ExitCode::from(1);
+    }
+    if args.json {
+        let v = history::to_json(&h);
+        print(&format!(
+            "{}\n",
+            serde_json::to_string_pretty(&v).expect("JSON values always serialize")
+        ));
+    } else {
+        print(&history::render(&h, args.units.system()));
+    }
+    ExitCode::SUCCESS
+}
+
+fn compare(args: &CompareArgs) -> ExitCode {
+    let h = history::History::read(&args.mesh);
+    match history::compare::compare(&h, &args.from, &args.to) {
+        Ok(doc) if args.json => {
+            print(&format!(
+                "{}\n",
+                serde_json::to_string_pretty(&doc).expect("JSON values always serialize")
+            ));
+            ExitCode::SUCCESS
+        }
+        Ok(doc) => {
+            print(&history::compare::render(&doc, args.units.system()));
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(1)
+        }
     }
 }
 
@@ -50,17 +124,36 @@ fn check_meshes(args: &CheckArgs) -> ExitCode {
             }
         };
         let side = pipeline::sidecar_path(path);
-        let scale = limits::read_capped(&side, limits::MAX_SIDECAR_BYTES)
-            .ok()
-            .and_then(|b| String::from_utf8(b).ok())
-            .and_then(|t| sidecar::parse_sidecar(&side, &t).ok())
-            .map(|s| s.units.metres());
         let name = path
             .file_name()
             .map(|n| n.to_string_lossy().into_owned())
             .unwrap_or_default();
-        let h = check::check(&name, &mesh, scale);
-        ok &= h.usable_as_is;
+        // The mesh with its sidecar, as calc would take them: a sidecar that does not
+        // parse, or a pair calc refuses (an open mesh without wet_side front/back), fails.
+        let judged = side.exists().then(|| {
+            let parsed = limits::read_capped(&side, limits::MAX_SIDECAR_BYTES)
+                .map_err(|e| format!("cannot read {}: {e:?}", side.display()))
+                .and_then(|b| {
+                    String::from_utf8(b).map_err(|_| format!("{}: not UTF-8 text", side.display()))
+                })
+                .and_then(|t| sidecar::parse_sidecar(&side, &t).map_err(|e| e.to_string()));
+            let verdict = parsed.as_ref().map_err(Clone::clone).and_then(|sc| {
+                compute::compute(&name, &mesh, sc)
+                    .map(|_| ())
+                    .map_err(|e| format!("{} (with {}): {e}", path.display(), side.display()))
+            });
+            (parsed.ok().map(|s| s.units.metres()), verdict)
+        });
+        let scale = judged.as_ref().and_then(|j| j.0);
+        let mut h = check::check(&name, &mesh, scale);
+        if let Some((_, verdict)) = judged {
+            h.with_sidecar = Some(check::SidecarVerdict {
+                sidecar: side.display().to_string(),
+                accepted: verdict.is_ok(),
+                reason: verdict.err(),
+            });
+        }
+        ok &= h.usable_as_is && h.with_sidecar.as_ref().is_none_or(|v| v.accepted);
         // The holes as a file that opens over the mesh in CAD or a viewer; an old one
         // goes when the mesh has none.
         let edges_path = results::Layout::of_mesh(path, mesh::is_mesh_path).edges(path);
@@ -140,8 +233,12 @@ fn calc(args: &CalcArgs) -> ExitCode {
     let stdout = std::io::stdout();
     let mut out = stdout.lock();
     for mesh in &args.meshes {
-        match pipeline::calc_file_in(mesh, args.units.system()) {
-            Ok(r) => {
+        match pipeline::calc_logged(mesh, args.units.system()) {
+            Ok(logged) => {
+                for note in &logged.notes {
+                    eprintln!("note: {note}");
+                }
+                let r = logged.result;
                 if !args.json {
                     let opts = SummaryOptions {
                         no_caution: true,
