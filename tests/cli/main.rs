@@ -8,6 +8,7 @@
 mod calc;
 mod determinism;
 mod errors;
+mod iterations;
 mod presentation;
 mod traps;
 

@@ -160,3 +160,49 @@ fn a_torn_last_line_is_moved_aside_on_the_next_start() {
         &expected(1.0, 0.7)
     ));
 }
+
+#[test]
+fn calc_beside_a_running_watcher_logs_through_the_append_lock_and_numbering_continues() {
+    let dir = folder(&[("box", 1.0, 0.5)]);
+    let p = dir.path();
+    let mut w = Watcher::start(p);
+    wait_result(&w, p, "box", expected(1.0, 0.5));
+    // A one-shot calc of a new content while the watcher holds the folder lock: it does
+    // not wait for the watcher to stop, and its line is iteration 2.
+    fs::write(p.join("box.json"), sidecar(0.6)).expect("sidecar");
+    let out = std::process::Command::new(assert_cmd::cargo::cargo_bin("wetload"))
+        .arg("calc")
+        .arg(p.join("box.stl"))
+        .output()
+        .expect("calc");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    // The watcher hears that save too; whatever it logs for it, the next new content is
+    // numbered after calc's iteration.
+    std::thread::sleep(Duration::from_millis(600));
+    save(&p.join("box.json"), sidecar(0.7));
+    wait_result(&w, p, "box", expected(1.0, 0.7));
+    w.wait_for("the watcher to log iteration 3", || {
+        let lines = check_log(p);
+        events(&lines, "box.stl", "computed")
+            .iter()
+            .any(|l| l["iteration"] == 3)
+            .then_some(())
+    });
+    w.kill();
+    let lines = check_log(p);
+    let computed: Vec<u64> = events(&lines, "box.stl", "computed")
+        .iter()
+        .map(|l| l["iteration"].as_u64().expect("iteration"))
+        .collect();
+    assert_eq!(computed, [1, 2, 3], "{lines:#?}");
+    // Iteration 2 is calc's content, iteration 3 the watcher's.
+    let second = events(&lines, "box.stl", "computed")[1];
+    assert_eq!(
+        second["sidecar_hash"],
+        blake3::hash(sidecar(0.6).as_bytes()).to_hex().to_string()
+    );
+}
