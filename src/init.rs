@@ -137,16 +137,14 @@ pub fn run(mesh_path: &Path, units: Option<&str>) -> ExitCode {
         round(lo[2]),
     ];
     let wet_side = if health.closed { "outside" } else { "front" };
-    let doc = json!({
-        "units": unit_word,
-        "up": "+z",
-        "wet_side": wet_side,
-        "liquid": {"level": level, "density": 1000},
-        "moment_about": about,
-    });
+    // Written by hand, so the keys stand in the order a reader edits them.
+    let num = |x: f64| serde_json::to_string(&json!(x)).expect("a finite number");
     let text = format!(
-        "{}\n",
-        serde_json::to_string_pretty(&doc).expect("JSON values always serialize")
+        "{{\n  \"units\": \"{unit_word}\",\n  \"up\": \"+z\",\n  \"wet_side\": \"{wet_side}\",\n  \"liquid\": {{\"level\": {}, \"density\": 1000}},\n  \"moment_about\": [{}, {}, {}]\n}}\n",
+        num(level),
+        num(about[0]),
+        num(about[1]),
+        num(about[2]),
     );
     // calc must accept it as it is: compute it before writing.
     let sidecar = match crate::sidecar::parse_sidecar(&side, &text) {
