@@ -115,9 +115,15 @@ fn check_shows_where_the_holes_are_and_writes_them_for_a_viewer() {
         "tank.json",
         r#"{"units": "mm", "liquid": {"level": 1.0, "density": 1000}}"#,
     );
+    // Open, and its sidecar states no wet_side: calc would refuse the pair, so check
+    // fails too, and says why.
     let run = Run::from(f.wetload().args(["check", "tank.stl"]).output());
-    run.expect_code(0);
+    run.expect_code(1);
     let out = &run.stdout;
+    assert!(
+        out.contains("calc would refuse it") && out.contains("\"wet_side\": \"front\""),
+        "{out}"
+    );
     assert!(
         out.contains("where the holes and seams are (m, mesh axes)"),
         "{out}"
