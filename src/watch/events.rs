@@ -157,7 +157,15 @@ impl Watch<'_> {
                     .map(|(m, at)| Touch::progress(m, at)),
             );
         }
-        if is_write(&event.kind) {
+        // A rename within the folder comes as `From`, `To` and then `Both` with the two
+        // paths; `To` has already said everything `Both` says about the new name, and a
+        // second signal for one save, read after its computation began, would compute the
+        // same content again and log it `unchanged`. The old name has its `From`.
+        let echo = matches!(
+            event.kind,
+            EventKind::Modify(ModifyKind::Name(RenameMode::Both))
+        );
+        if is_write(&event.kind) && !echo {
             if renames(&event.kind) {
                 out.extend(
                     self.refresh_names(at)
@@ -169,15 +177,14 @@ impl Watch<'_> {
             // save is complete if its format says it is whole (see `complete`).
             let renamed_in = matches!(
                 event.kind,
-                EventKind::Modify(ModifyKind::Name(RenameMode::To | RenameMode::Both))
+                EventKind::Modify(ModifyKind::Name(RenameMode::To))
             );
             let closed = matches!(
                 event.kind,
                 EventKind::Access(AccessKind::Close(AccessMode::Write))
             );
-            for (i, p) in event.paths.iter().enumerate() {
-                // The rename's source (the first of two paths) only lost its name.
-                let target = (renamed_in && i + 1 == event.paths.len()) || closed;
+            for p in &event.paths {
+                let target = renamed_in || closed;
                 for m in self.meshes_for(p) {
                     let whole = target && self.save_is_whole(p, &m, renamed_in);
                     out.push(Touch {

@@ -32,12 +32,22 @@ fn a_save_renamed_into_place_is_computed_before_the_window() {
     let p = dir.path();
     let w = start_long(p);
     wait_result(&w, p, "box", expected(1.0, 0.5));
+    let before = log(p).len();
     let saved = Instant::now();
     save_by_rename(&p.join("box.stl"), &box_stl(1.5));
     w.wait_for_within(EARLY, "the renamed-in save's result", || {
         result(p, "box").filter(|d| doc_matches(d, &expected(1.5, 0.5)))
     });
     assert!(saved.elapsed() < Duration::from_millis(LONG_WINDOW_MS));
+    // One save, one line: the rename's several events do not compute it twice.
+    thread::sleep(Duration::from_millis(LONG_WINDOW_MS + 500));
+    let lines = log(p);
+    let events: Vec<&str> = lines[before..]
+        .iter()
+        .filter(|l| l["mesh"] == "box.stl")
+        .filter_map(|l| l["event"].as_str())
+        .collect();
+    assert_eq!(events, ["computed"], "{lines:?}");
 }
 
 #[test]
