@@ -11,8 +11,9 @@
 //! a double click returns to the default three-quarter view. On paper the canvas prints
 //! as last drawn; without scripts a note says what is missing.
 //!
-//! After drawing, the script writes `data-drawn` (triangles drawn) and `data-rect`
-//! (the canvas's place on the page, CSS pixels) on the canvas, for tests.
+//! After drawing, the script writes `data-drawn` (triangles drawn), `data-ms` (decoding
+//! and first drawing, ms) and `data-rect` (the canvas's place on the page, CSS pixels) on
+//! the canvas, for tests and measurements.
 
 use std::fmt::Write;
 
@@ -210,7 +211,7 @@ const SCRIPT: &str = r#"function col(t){t=Math.max(0,Math.min(1,t));var x=t*16,i
 return 'rgb('+Math.round(a[0]+(b[0]-a[0])*u)+','+Math.round(a[1]+(b[1]-a[1])*u)+','+Math.round(a[2]+(b[2]-a[2])*u)+')';}
 function nums(s){return s?s.split(',').map(Number):[];}
 function setup(cv){
-var raw=atob(cv.nextElementSibling.textContent.trim()),nb=raw.length,n=Math.floor(nb/20);
+var t0=performance.now(),raw=atob(cv.nextElementSibling.textContent.trim()),nb=raw.length,n=Math.floor(nb/20);
 var bytes=new Uint8Array(nb);for(var i=0;i<nb;i++)bytes[i]=raw.charCodeAt(i);
 var dv=new DataView(bytes.buffer),bx=nums(cv.dataset.box),P=new Float64Array(n*9),C=new Uint16Array(n);
 for(var t=0;t<n;t++){for(var k=0;k<9;k++){var a=k%3;P[t*9+k]=bx[a]+(bx[a+3]-bx[a])*dv.getUint16(t*20+k*2,true)/65535;}C[t]=dv.getUint16(t*20+18,true);}
@@ -240,7 +241,7 @@ window.addEventListener('mouseup',function(){if(drag){drag=null;later(false);}})
 window.addEventListener('mousemove',function(e){if(!drag)return;st.yaw+=(e.clientX-drag[0])*0.01;st.pitch=Math.max(-1.5,Math.min(1.5,st.pitch+(e.clientY-drag[1])*0.01));drag=[e.clientX,e.clientY];later(true);});
 cv.addEventListener('wheel',function(e){e.preventDefault();st.zoom=Math.max(0.2,Math.min(20,st.zoom*Math.exp(-e.deltaY*0.0015)));later(false);},{passive:false});
 cv.addEventListener('dblclick',function(){st={yaw:-0.6,pitch:0.45,zoom:1};later(false);});
-draw(false);var rc=cv.getBoundingClientRect();cv.setAttribute('data-rect',[rc.left+window.scrollX,rc.top+window.scrollY,rc.width,rc.height].map(Math.round).join(','));}
+draw(false);cv.setAttribute('data-ms',String(Math.round(performance.now()-t0)));var rc=cv.getBoundingClientRect();cv.setAttribute('data-rect',[rc.left+window.scrollX,rc.top+window.scrollY,rc.width,rc.height].map(Math.round).join(','));}
 var all=document.querySelectorAll('canvas.v3d');for(var i=0;i<all.length;i++){try{setup(all[i]);}catch(e){all[i].setAttribute('data-error',String(e));}}
 "#;
 
