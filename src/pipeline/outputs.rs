@@ -111,22 +111,28 @@ pub fn stage_outputs(
 ) -> Result<(), RunError> {
     let parts = results::case_parts(result.cases.iter().map(|c| c.name.as_str()));
     let shared = crate::report::summary::shared_sweep(result);
+    // One mesh's views share the budget, so the page grows with meshes, not cases.
+    let view_budget = view::VIEW_MAX_TRIANGLES / result.cases.len().max(1);
     for (i, (case, part)) in result.cases.iter().zip(parts).enumerate() {
         let files = layout.exports(mesh_path, part.as_deref());
-        let field = model
-            .field(sidecar, i)
-            .map_err(|source| RunError::Compute {
-                mesh: mesh_path.to_owned(),
-                sidecar: sidecar_path(mesh_path),
-                source: Box::new(source),
-            })?;
+        let exports = sidecar.field_exports.writes(model.facets());
+        let field = if exports {
+            model.field(sidecar, i)
+        } else {
+            model.field_pieces(sidecar, i)
+        }
+        .map_err(|source| RunError::Compute {
+            mesh: mesh_path.to_owned(),
+            sidecar: sidecar_path(mesh_path),
+            source: Box::new(source),
+        })?;
         // The page's 3D view: every case, decimated for display within its budget.
         let marks = view::CaseMarks::of(case);
         batch.put(
             &files.view,
-            &view::render(&field, sidecar.up, &marks, view::VIEW_MAX_TRIANGLES),
+            &view::render(&field, sidecar.up, &marks, view_budget),
         )?;
-        if sidecar.field_exports.writes(model.facets()) {
+        if exports {
             batch.put(&files.field, &vtk::render(&field, &result.mesh, &case.name))?;
             batch.put(&files.facet_loads, &csv::render(&field))?;
             batch.put(&files.nodal_loads, &nodal::render(&field))?;

@@ -6,8 +6,8 @@
 //! the result document. The surface shown is the case's [`Field`] pieces, fanned into
 //! triangles, in a display frame with `z` up (mesh axes turned by the mesh's up axis,
 //! metres, not moved). A field with more triangles than the budget is decimated for the
-//! display only, by clustering vertices on a uniform grid (cells as fine as the budget
-//! allows, wetted and dry vertices never merged, so the waterline stays sharp); a
+//! display only, by clustering vertices on a uniform grid (sized from the budget, wetted
+//! and dry vertices never merged, so the waterline stays sharp); a
 //! triangle left after clustering carries the area-weighted mean pressure of the
 //! triangles merged into it.
 //!
@@ -36,7 +36,8 @@ use crate::compute::{CaseResult, Field};
 
 use crate::hydro::{Frame, UpAxis};
 
-/// The triangles of one case's view at most (about 2.7 MB of page per view).
+/// The triangles of one mesh's views at most, shared by its cases (about 2.7 MB of page
+/// per mesh).
 pub const VIEW_MAX_TRIANGLES: usize = 100_000;
 
 /// Bytes per triangle in `data` before base64.
@@ -154,29 +155,26 @@ fn clustered(tris: &[Tri], lo: &[f64; 3], h: f64) -> FxHashMap<[[i64; 4]; 3], us
     out
 }
 
-/// Vertex clustering on the finest uniform grid that leaves at most `max` triangles
-/// (bisection on the number of cells along the longest side).
+/// Vertex clustering on a uniform grid that leaves at most `max` triangles.
 fn decimate(tris: &[Tri], max: usize) -> Vec<Tri> {
     let (lo, hi) = bounds(tris);
     let extent = (0..3).map(|i| hi[i] - lo[i]).fold(0.0, f64::max);
     if extent <= 0.0 || !extent.is_finite() || max == 0 {
         return Vec::new();
     }
-    // Cells along the longest side: `good` fits the budget, `bad` does not.
-    let (mut good, mut bad) = (1u32, 1u32 << 16);
-    let fits = |n: u32| clustered(tris, &lo, extent / f64::from(n)).len() <= max;
-    if fits(bad) {
-        good = bad;
+    // On a surface of area A, a grid of cell h leaves about 2 A / h² triangles: start
+    // there, and coarsen by a tenth until the budget is met (usually at once).
+    let total: f64 = tris.iter().map(|t| area(&t.v)).sum();
+    let mut h = (2.0 * total / max as f64).sqrt();
+    if !(h.is_finite() && h > 0.0) {
+        h = extent;
     }
-    while bad - good > 1 {
-        let mid = good + (bad - good) / 2;
-        if fits(mid) {
-            good = mid;
-        } else {
-            bad = mid;
-        }
+    h = h.max(extent / 65536.0);
+    let mut kept = clustered(tris, &lo, h);
+    while kept.len() > max && h < 2.0 * extent {
+        h *= 1.1;
+        kept = clustered(tris, &lo, h);
     }
-    let h = extent / f64::from(good);
     // Each cell's vertex: the mean of the vertices that fell in it.
     let mut sums: FxHashMap<[i64; 4], ([f64; 3], f64)> = FxHashMap::default();
     for t in tris {
@@ -193,7 +191,6 @@ fn decimate(tris: &[Tri], max: usize) -> Vec<Tri> {
         s.map(|x| if n > 0.0 { x / n } else { 0.0 })
     };
     // Area-weighted pressure of every source triangle merged into each kept one.
-    let kept = clustered(tris, &lo, h);
     let mut weights: FxHashMap<[[i64; 4]; 3], (f64, f64)> = FxHashMap::default();
     for t in tris {
         let c = t.v.map(|v| cell(&v, &lo, h, t.wetted));
