@@ -87,6 +87,21 @@ impl Model {
     /// The pressure field of case `case` (an index into the sidecar's cases); `sidecar`
     /// must be the one the model was computed with.
     pub fn field(&self, sidecar: &Sidecar, case: usize) -> Result<Field, ComputeError> {
+        self.field_with(sidecar, case, true)
+    }
+
+    /// The pieces of the field of case `case` only, for pictures: no facet rows and no
+    /// nodal forces (both left empty), which cost more than the pieces.
+    pub fn field_pieces(&self, sidecar: &Sidecar, case: usize) -> Result<Field, ComputeError> {
+        self.field_with(sidecar, case, false)
+    }
+
+    fn field_with(
+        &self,
+        sidecar: &Sidecar,
+        case: usize,
+        with_loads: bool,
+    ) -> Result<Field, ComputeError> {
         let prep = &self.prep;
         let Some(case) = sidecar.cases.get(case) else {
             return Ok(Field {
@@ -117,7 +132,6 @@ impl Model {
                 let a = 0.5 * (t[1] - t[0]).cross(&(t[2] - t[0]));
                 let area = a.norm();
                 let normal = if side == 0.0 { a } else { side * a };
-                let loads = hydro::facet_loads(t, &planes, prof, wet, None, 0);
                 let level = prof.map_or(f64::NEG_INFINITY, Profile::level);
                 let unit = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
                 let shares = &mut corner[f];
@@ -127,7 +141,7 @@ impl Model {
                         .iter()
                         .map(|p| prof.map_or(0.0, |pr| pr.pressure(p.z)))
                         .collect();
-                    if prof.is_some() {
+                    if with_loads && prof.is_some() {
                         for (i, share) in consistent_shares(t, v, &pressure).iter().enumerate() {
                             shares[i] -= *share * unit;
                         }
@@ -156,6 +170,10 @@ impl Model {
                         area: pa,
                     });
                 });
+                if !with_loads {
+                    continue;
+                }
+                let loads = hydro::facet_loads(t, &planes, prof, wet, None, 0);
                 let n = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
                 facets.push(FacetRow {
                     part: pi,
@@ -174,7 +192,11 @@ impl Model {
                 });
             }
         }
-        let nodes = number_nodes(prep, &corner, &out);
+        let nodes = if with_loads {
+            number_nodes(prep, &corner, &out)
+        } else {
+            Vec::new()
+        };
         Ok(Field {
             pieces,
             facets,

@@ -23,7 +23,7 @@ use serde_json::Value;
 use super::{RunError, sidecar_path};
 use crate::compute::{self, CaseResult, MeshResult, Model, SweepStep};
 use crate::report::units::{UnitSystem, Units};
-use crate::report::{csv, html, nodal, svg, vtk};
+use crate::report::{csv, html, nodal, svg, view, vtk};
 use crate::results::{self, Batch, Layout, changelog};
 use crate::sidecar::Sidecar;
 
@@ -66,6 +66,7 @@ fn exports_by_kind(
             fields.push(e.facet_loads);
             fields.push(e.nodal_loads);
         }
+        fields.push(e.view);
         cases.push(e.sweep_chart);
     }
     let whole = (parts.len() > 1).then(|| layout.exports(mesh_path, None).sweep_chart);
@@ -110,16 +111,28 @@ pub fn stage_outputs(
 ) -> Result<(), RunError> {
     let parts = results::case_parts(result.cases.iter().map(|c| c.name.as_str()));
     let shared = crate::report::summary::shared_sweep(result);
+    // One mesh's views share the budget, so the page grows with meshes, not cases.
+    let view_budget = view::VIEW_MAX_TRIANGLES / result.cases.len().max(1);
     for (i, (case, part)) in result.cases.iter().zip(parts).enumerate() {
         let files = layout.exports(mesh_path, part.as_deref());
-        if sidecar.field_exports.writes(model.facets()) {
-            let field = model
-                .field(sidecar, i)
-                .map_err(|source| RunError::Compute {
-                    mesh: mesh_path.to_owned(),
-                    sidecar: sidecar_path(mesh_path),
-                    source: Box::new(source),
-                })?;
+        let exports = sidecar.field_exports.writes(model.facets());
+        let field = if exports {
+            model.field(sidecar, i)
+        } else {
+            model.field_pieces(sidecar, i)
+        }
+        .map_err(|source| RunError::Compute {
+            mesh: mesh_path.to_owned(),
+            sidecar: sidecar_path(mesh_path),
+            source: Box::new(source),
+        })?;
+        // The page's 3D view: every case, decimated for display within its budget.
+        let marks = view::CaseMarks::of(case);
+        batch.put(
+            &files.view,
+            &view::render(&field, sidecar.up, &marks, view_budget),
+        )?;
+        if exports {
             batch.put(&files.field, &vtk::render(&field, &result.mesh, &case.name))?;
             batch.put(&files.facet_loads, &csv::render(&field))?;
             batch.put(&files.nodal_loads, &nodal::render(&field))?;
@@ -156,7 +169,7 @@ pub fn stage_outputs(
             .iter()
             .flat_map(|part| {
                 let e = layout.exports(mesh_path, part.as_deref());
-                [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart]
+                [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart, e.view]
             })
             .collect();
     current.push(layout.exports(mesh_path, None).sweep_chart);
@@ -188,7 +201,7 @@ fn previous_exports(layout: &Layout, mesh_path: &Path) -> Vec<PathBuf> {
         .iter()
         .flat_map(|part| {
             let e = layout.exports(mesh_path, part.as_deref());
-            [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart]
+            [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart, e.view]
         })
         .collect();
     files.push(layout.exports(mesh_path, None).sweep_chart);
@@ -330,6 +343,7 @@ impl Page {
                     html::MeshEntry {
                         stem: self.layout.name(mesh_path),
                         mesh: name.clone(),
+                        views: read_views(&self.layout, &self.layout.name(mesh_path), &doc),
                         result: Some(doc),
                     },
                 );
@@ -363,6 +377,7 @@ impl Page {
                     stem: results::stem(Path::new(name)),
                     mesh: name.clone(),
                     result: None,
+                    views: Vec::new(),
                 });
             }
         }
@@ -431,8 +446,27 @@ fn file_name(p: &Path) -> String {
         .unwrap_or_default()
 }
 
+/// The 3D view file of every case of the result document `doc` named `<name>.json`, in
+/// its cases' order; `None` for a file that is missing or not JSON (the page says so).
+fn read_views(layout: &Layout, name: &str, doc: &Value) -> Vec<Option<Value>> {
+    let names: Vec<&str> = doc["cases"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .map(|c| c["name"].as_str().unwrap_or(""))
+        .collect();
+    results::case_parts(names.into_iter())
+        .iter()
+        .map(|part| {
+            let bytes = fs::read(layout.view_of(name, part.as_deref())).ok()?;
+            serde_json::from_slice(&bytes).ok()
+        })
+        .collect()
+}
+
 /// The result documents in `dir`: `*.json` files with `schema`, `mesh` and `cases`.
 fn read_results(dir: &Path) -> Vec<html::MeshEntry> {
+    let layout = Layout::new(dir.to_owned());
     let Ok(entries) = fs::read_dir(dir) else {
         return Vec::new();
     };
@@ -441,17 +475,22 @@ fn read_results(dir: &Path) -> Vec<html::MeshEntry> {
         .map(|e| e.path())
         .filter(|p| {
             p.extension().is_some_and(|e| e == "json")
-                && !p
-                    .file_name()
-                    .is_some_and(|n| n.to_string_lossy().starts_with('.'))
+                && !p.file_name().is_some_and(|n| {
+                    let n = n.to_string_lossy();
+                    n.starts_with('.') || n.ends_with(".view.json")
+                })
         })
         .filter_map(|p| {
             let doc: Value = serde_json::from_slice(&fs::read(&p).ok()?).ok()?;
             let mesh = doc.get("mesh")?.as_str()?.to_owned();
-            (doc.get("schema").is_some() && doc["cases"].is_array()).then(|| html::MeshEntry {
-                stem: results::stem(&p),
-                mesh,
-                result: Some(doc),
+            (doc.get("schema").is_some() && doc["cases"].is_array()).then(|| {
+                let stem = results::stem(&p);
+                html::MeshEntry {
+                    views: read_views(&layout, &stem, &doc),
+                    stem,
+                    mesh,
+                    result: Some(doc),
+                }
             })
         })
         .collect()
@@ -507,17 +546,23 @@ mod tests {
                 "wall._._flood.csv",
                 "wall._._flood.nodal.csv",
                 "wall._._flood.sweep.svg",
+                "wall._._flood.view.json",
                 "wall._._flood.vtp",
                 "wall.history.svg",
                 "wall.json",
                 "wall.normal.csv",
                 "wall.normal.nodal.csv",
                 "wall.normal.sweep.svg",
+                "wall.normal.view.json",
                 "wall.normal.vtp",
             ]
         );
         let page = fs::read_to_string(results.join(results::PAGE_NAME)).expect("page");
         assert!(page.contains("wall.stl") && page.contains("Case ..:flood"));
+        // Each case's view is on the page, read back from its view file; one script.
+        assert_eq!(page.matches("<canvas class=\"v3d\"").count(), 2);
+        assert_eq!(page.matches("<script>").count(), 1);
+        assert!(!page.contains("no view file"));
         assert!(!page.contains("http-equiv=\"refresh\""));
         let sweep = fs::read_to_string(results.join("wall.normal.sweep.svg")).expect("svg");
         assert!(sweep.contains("level of liquid (m)"));

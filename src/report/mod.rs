@@ -8,4 +8,5 @@ pub mod nodal;
 pub mod summary;
 pub mod svg;
 pub mod units;
+pub mod view;
 pub mod vtk;

@@ -9,6 +9,7 @@
 //!     ├── <name>[.<case>].csv     load per facet (`report::csv`)
 //!     ├── <name>[.<case>].nodal.csv  consistent nodal forces (`report::nodal`)
 //!     ├── <name>[.<case>].sweep.svg  loads against level, with a sweep (`report::svg`)
+//!     ├── <name>[.<case>].view.json  the page's 3D view of the case (`report::view`)
 //!     ├── <name>.history.svg      headline loads at every computation in the change log
 //!     ├── <name>.edges.obj        open and non-manifold edges found by `wetload check`
 //!     ├── report.html             the folder's page (`report::html`)
@@ -178,6 +179,16 @@ impl Layout {
             facet_loads: self.dir.join(format!("{base}.csv")),
             nodal_loads: self.dir.join(format!("{base}.nodal.csv")),
             sweep_chart: self.dir.join(format!("{base}.sweep.svg")),
+            view: self.dir.join(format!("{base}.view.json")),
+        }
+    }
+
+    /// `<name>[.<case>].view.json` for the result document `<name>.json` (`name` as
+    /// [`Layout::name`] gave it, `case` a part from [`case_parts`]).
+    pub fn view_of(&self, name: &str, case: Option<&str>) -> PathBuf {
+        match case {
+            Some(c) => self.dir.join(format!("{name}.{c}.view.json")),
+            None => self.dir.join(format!("{name}.view.json")),
         }
     }
 
@@ -238,6 +249,8 @@ pub struct Exports {
     pub nodal_loads: PathBuf,
     /// `.sweep.svg`: loads against level.
     pub sweep_chart: PathBuf,
+    /// `.view.json`: the data of the page's 3D view (see `crate::report::view`).
+    pub view: PathBuf,
 }
 
 /// `name` made safe as one component of a file name: path separators, characters that

@@ -15,6 +15,7 @@ use super::case::case_block;
 use super::changes::changes;
 use super::format::{Scale, anchor, elevation, esc, f, num, show};
 use super::inputs::inputs;
+use super::view3d;
 use crate::report::svg::{self, SweepPoint};
 use crate::report::units::Units;
 
@@ -113,8 +114,10 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: 
         .map_or(&[][..], Vec::as_slice);
     let several_parts = parts.len() > 1;
     let contained = !parts.is_empty() && parts.iter().all(|p| p["wet_side"] == "inside");
-    for c in r["cases"].as_array().into_iter().flatten() {
+    for (i, c) in r["cases"].as_array().into_iter().flatten().enumerate() {
         case_block(s, c, several_parts, contained, u);
+        let view = m.views.get(i).and_then(Option::as_ref);
+        view3d::view_block(s, &format!("{}-view-{i}", anchor(&m.stem)), view, u);
     }
 
     changes(s, &lines, u);

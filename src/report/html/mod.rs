@@ -2,9 +2,13 @@
 //! mesh's latest results, read back from the result files and the change log.
 //!
 //! Owns the rendering of a [`FolderPage`] into bytes. It reads no file (the caller hands
-//! it the result documents and the log's lines as JSON values) and fetches nothing: no
-//! scripts, no web fonts, no external style sheets or images; the style is inline and the
-//! charts are inline SVG from [`crate::report::svg`].
+//! it the result documents, each case's 3D view file and the log's lines as JSON values)
+//! and fetches nothing: no external scripts, web fonts, style sheets or images (a
+//! Content-Security-Policy forbids them); the style is inline, the charts are inline SVG
+//! from [`crate::report::svg`], and the one inline script draws the 3D views
+//! (`view3d.rs`). The views' data reach the page through `results/<name>[.<case>].view.json`
+//! ([`crate::report::view`]), written with the other exports at compute time and read by
+//! the pipeline with the result documents, so the watcher's kept sections hold them too.
 //!
 //! # What the page holds
 //!
@@ -33,6 +37,7 @@
 //! - `inputs.rs`: the inputs echoed (mesh, units, liquids per case, parts);
 //! - `case.rs`: one case's loads, line of action, centres, axis moments and flotation;
 //! - `changes.rs`: the change since the previous save and since the baseline;
+//! - `view3d.rs`: a case's 3D view (canvas, embedded data, legend) and the page's script;
 //! - `format.rs`: escaping, anchors, and numbers with a prefix chosen per table;
 //! - `style.rs`: the inline style sheet.
 
@@ -42,6 +47,7 @@ mod format;
 mod inputs;
 mod mesh;
 mod style;
+mod view3d;
 
 use std::fmt::Write;
 
@@ -64,6 +70,9 @@ pub struct MeshEntry {
     /// The result document as read back, with its `stale` mark if any; `None` when the
     /// mesh never computed.
     pub result: Option<Value>,
+    /// The 3D view file of each case (`crate::report::view`), in the order of the
+    /// result's cases; `None` where it could not be read.
+    pub views: Vec<Option<Value>>,
 }
 
 /// Everything the page shows.
@@ -123,6 +132,8 @@ pub fn render_with_sections(page: &FolderPage, sections: &[String]) -> Vec<u8> {
     let mut s = String::with_capacity(64 * 1024);
     s.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
     s.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
+    // Nothing is fetched: the page's own inline script and style only.
+    s.push_str("<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'\">\n");
     if page.live {
         s.push_str("<meta http-equiv=\"refresh\" content=\"2\">\n");
     }
@@ -180,7 +191,11 @@ own axes; moments follow the right-hand rule about the stated point or axis; ver
 positive up; pressures are gauge. Values in the result files are SI (N, N·m, m, m², m³, Pa); \
 this page shows every quantity in the one unit named in its table heading.</footer>\n",
     );
-    s.push_str("</main>\n</body>\n</html>\n");
+    s.push_str("</main>\n");
+    if sections.iter().any(|x| x.contains("<canvas class=\"v3d\"")) {
+        s.push_str(&view3d::script());
+    }
+    s.push_str("</body>\n</html>\n");
     s.into_bytes()
 }
 
@@ -224,7 +239,9 @@ fn overview(s: &mut String, page: &FolderPage) {
         for c in cases {
             let _ = writeln!(
                 s,
-                "<tr><td>{link}</td><td class=\"text\">{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"text\">{state}</td></tr>",
+                "<tr data-mesh=\"{}\" data-case=\"{}\"><td>{link}</td><td class=\"text\">{}</td><td data-force=\"{fu}\">{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"text\">{state}</td></tr>",
+                esc(&m.mesh),
+                esc(c["name"].as_str().unwrap_or("?")),
                 esc(c["name"].as_str().unwrap_or("?")),
                 show(norm(c)),
                 show(f(&c["horizontal_force"])),
@@ -309,11 +326,13 @@ mod tests {
                 stem: "gate".into(),
                 mesh: "gate.stl".into(),
                 result: Some(result(stale)),
+                views: Vec::new(),
             },
             MeshEntry {
                 stem: "broken".into(),
                 mesh: "broken.obj".into(),
                 result: None,
+                views: Vec::new(),
             },
         ];
         let log = log();
@@ -408,6 +427,7 @@ mod tests {
             stem: "gate".into(),
             mesh: "gate.stl".into(),
             result: Some(result(false)),
+            views: Vec::new(),
         }];
         let project = Project {
             project: Some("North weir <refit>".into()),

@@ -53,7 +53,13 @@ figcaption { font-size: 13px; color: var(--muted); }
 .muted { color: var(--muted); }
 footer { margin-top: 36px; padding-top: 10px; border-top: 1px solid var(--rule); font-size: 12.5px; color: var(--muted); }
 code { font-size: 92%; }
+.v3d-wrap { display: flex; gap: 12px; align-items: flex-start; flex-wrap: wrap; }
+canvas.v3d { max-width: 100%; height: auto; border: 1px solid var(--rule); cursor: grab; background: #fbfbf8; }
+canvas.v3d:active { cursor: grabbing; }
+svg.v3d-legend { font-size: 11px; fill: #2b2f36; }
+svg.v3d-legend .lg-title { font-weight: 600; }
 @media print {
+  canvas.v3d { border: none; }
   body { font-size: 11pt; }
   .head { background: none; padding: 0 0 8px; }
   .live { display: none; }
