@@ -65,8 +65,8 @@ fn exports_by_kind(
             fields.push(e.field);
             fields.push(e.facet_loads);
             fields.push(e.nodal_loads);
+            fields.push(e.view);
         }
-        fields.push(e.view);
         cases.push(e.sweep_chart);
     }
     let whole = (parts.len() > 1).then(|| layout.exports(mesh_path, None).sweep_chart);
@@ -115,29 +115,30 @@ pub fn stage_outputs(
     let view_budget = view::VIEW_MAX_TRIANGLES / result.cases.len().max(1);
     for (i, (case, part)) in result.cases.iter().zip(parts).enumerate() {
         let files = layout.exports(mesh_path, part.as_deref());
-        let exports = sidecar.field_exports.writes(model.facets());
-        let field = if exports {
-            model.field(sidecar, i)
-        } else {
-            model.field_pieces(sidecar, i)
-        }
-        .map_err(|source| RunError::Compute {
-            mesh: mesh_path.to_owned(),
-            sidecar: sidecar_path(mesh_path),
-            source: Box::new(source),
-        })?;
-        // The page's 3D view: every case, decimated for display within its budget.
-        let marks = view::CaseMarks::of(case);
-        batch.put(
-            &files.view,
-            &view::render(&field, sidecar.up, &marks, view_budget),
-        )?;
-        if exports {
+        // The field, its exports and the page's 3D view go together: for meshes of at most
+        // AUTO_FIELD_EXPORT_FACETS facets, or when the sidecar asks for them. Building the
+        // view costs about as much as the exports, which would otherwise multiply the time
+        // of a large mesh's every recomputation.
+        if sidecar.field_exports.writes(model.facets()) {
+            let field = model
+                .field(sidecar, i)
+                .map_err(|source| RunError::Compute {
+                    mesh: mesh_path.to_owned(),
+                    sidecar: sidecar_path(mesh_path),
+                    source: Box::new(source),
+                })?;
+            // Every case, decimated for display within its share of the budget.
+            let marks = view::CaseMarks::of(case);
+            batch.put(
+                &files.view,
+                &view::render(&field, sidecar.up, &marks, view_budget),
+            )?;
             batch.put(&files.field, &vtk::render(&field, &result.mesh, &case.name))?;
             batch.put(&files.facet_loads, &csv::render(&field))?;
             batch.put(&files.nodal_loads, &nodal::render(&field))?;
         } else {
             // Exports of an earlier iteration would no longer match the result: remove them.
+            batch.remove(files.view);
             batch.remove(files.field);
             batch.remove(files.facet_loads);
             batch.remove(files.nodal_loads);
