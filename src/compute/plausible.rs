@@ -32,7 +32,10 @@ pub fn warnings(sidecar: &Sidecar, used: &[bool], z_range_m: (f64, f64), w: &mut
     let mut densities_said: Vec<f64> = Vec::new();
     for case in &sidecar.cases {
         for (i, liquid) in case.liquids.iter().enumerate() {
-            if !used.get(i).copied().unwrap_or(false) {
+            // A floating body's liquid has no given level to judge: its free surface is
+            // solved.
+            let floats_in = case.floating.as_ref().is_some_and(|f| f.liquid == i);
+            if !used.get(i).copied().unwrap_or(false) || floats_in {
                 continue;
             }
             let name = &sidecar.liquids[i].name;
