@@ -114,7 +114,7 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: 
     let several_parts = parts.len() > 1;
     let contained = !parts.is_empty() && parts.iter().all(|p| p["wet_side"] == "inside");
     for c in r["cases"].as_array().into_iter().flatten() {
-        case_block(s, c, several_parts, contained, u);
+        case_block(s, &m.mesh, c, several_parts, contained, u);
     }
 
     changes(s, &lines, u);
