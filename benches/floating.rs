@@ -62,7 +62,12 @@ fn floating(c: &mut Criterion) {
     )
     .expect("valid sidecar");
     let r = compute::compute("h.stl", &mesh, &side).expect("computes");
-    assert!(r.cases[0].floating.as_ref().is_some_and(|f| f.equilibrium.is_some()));
+    assert!(
+        r.cases[0]
+            .floating
+            .as_ref()
+            .is_some_and(|f| f.equilibrium.is_some())
+    );
 
     let mut group = c.benchmark_group("floating_102k");
     group

@@ -16,7 +16,7 @@
 //!
 //! ```text
 //!     floating     mass 150.0 t, G (0.000, 0.000, 1.800) m, in liquid, length axis +x
-//!                  draft 1.220 m, heel 0.0 °, trim 0.0 °, displacement 146.341 m³ (150.0 t)
+//!                  draft 1.220 m, heel 0.0°, trim 0.0°, displacement 146.341 m³ (150.0 t)
 //!                  GM_T 1.875 m, GM_L 26.753 m, reserve buoyancy 59.3%
 //!                  GZ max … at …, vanishing angle …, areas 0-30° … 0-40° … 30-40° … m·rad
 //!                  criteria "…": PASS as numbers only, no compliance implied
@@ -208,11 +208,15 @@ fn case_block(
             } else {
                 String::new()
             };
+            // A floating body's liquid: its free surface is solved, not given.
+            let level = if c.floating.as_ref().is_some_and(|f| f.liquid == l.name) {
+                "free surface solved".to_owned()
+            } else {
+                format!("level {} {}", u.elevation(l.level), u.length.name)
+            };
             format!(
-                "{} level {} {}, {} {}{gas}",
+                "{} {level}, {} {}{gas}",
                 l.name,
-                u.elevation(l.level),
-                u.length.name,
                 dens.join("/"),
                 u.density.name
             )
@@ -297,7 +301,7 @@ fn floating_block(s: &mut String, f: &FloatingResult, u: &Units) {
     let corrected = &e.metacentric_height_corrected;
     let fs = if f.free_surface_moment > 0.0 {
         format!(
-            " (free-surface corrected {} and {} {})",
+            " (corrected for free surface {} and {} {})",
             l.fmt(corrected.transverse),
             l.fmt(corrected.longitudinal),
             l.name
@@ -331,9 +335,14 @@ fn floating_block(s: &mut String, f: &FloatingResult, u: &Units) {
         let verdict = if c.pass { "PASS" } else { "FAIL" };
         let _ = writeln!(
             s,
-            "{ind}criteria \"{}\": {verdict} as numbers only, {}{}",
+            "{ind}criteria \"{}\": {verdict} as numbers only, {}{}{}",
             c.name,
             c.compliance,
+            if c.free_surface_corrected {
+                ", on the curve corrected for free surface"
+            } else {
+                ""
+            },
             if c.from_memory {
                 " (some values from memory)"
             } else {
@@ -777,7 +786,7 @@ mod tests {
         let si = render(&r, SummaryOptions::default());
         for want in [
             format!("draft {t:.3} m"),
-            "heel 0.0 °".to_owned(),
+            "heel 0.0°".to_owned(),
             format!("GM_T {gm:.3} m"),
             "mass 150.0 t".to_owned(),
             "no compliance implied".to_owned(),

@@ -38,9 +38,13 @@ impl Unit {
         num(si * self.factor, self.decimals)
     }
 
-    /// Like [`Unit::fmt`], with the unit name after a space.
+    /// Like [`Unit::fmt`], with the unit name after a space (degrees without one).
     pub fn with_name(&self, si: f64) -> String {
-        format!("{} {}", self.fmt(si), self.name)
+        if self.name == "°" {
+            format!("{}°", self.fmt(si))
+        } else {
+            format!("{} {}", self.fmt(si), self.name)
+        }
     }
 }
 
