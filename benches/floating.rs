@@ -74,7 +74,7 @@ fn floating(c: &mut Criterion) {
         .throughput(Throughput::Elements(facets as u64))
         .sample_size(10)
         .warm_up_time(Duration::from_secs(1))
-        .measurement_time(Duration::from_secs(5));
+        .measurement_time(Duration::from_secs(8));
     let n = Vec3::new(0.1, -0.3, 1.0).normalize();
     let ax = n.cross(&Vec3::y()).normalize();
     group.bench_function("section_1", |b| {

@@ -541,4 +541,26 @@ mod tests {
             "{m}"
         );
     }
+
+    #[test]
+    fn the_floating_liquid_gets_density_warnings_but_no_level_warnings() {
+        // No level is given (0 stands in, below this box at z 1…4): no warning about the
+        // free surface, but 1.025 kg/m³ (t/m³ written for kg/m³) is still flagged.
+        let hull = shapes::box_solid([-10.0, -3.0, 1.0], [10.0, 3.0, 4.0], 1);
+        let s = side(
+            r#"{"units": "m", "liquid": {"density": 1.025},
+                "floating": {"mass": 100, "centre_of_gravity": [0, 0, 2]}}"#,
+        );
+        let r = compute("b", &mesh(vec![("b", hull)]), &s).expect("computes");
+        assert!(
+            r.warnings.iter().any(|w| w.contains("density 1.025")),
+            "{:?}",
+            r.warnings
+        );
+        assert!(
+            !r.warnings.iter().any(|w| w.contains("free surface (")),
+            "{:?}",
+            r.warnings
+        );
+    }
 }
