@@ -1,5 +1,5 @@
 //! Writes the demo scenario, the invented "Kestrel Creek" irrigation headworks, into a
-//! folder: five meshes, a sidecar `<stem>.json` beside each, and a README.
+//! folder: six meshes, a sidecar `<stem>.json` beside each, and a README.
 //!
 //! `cargo run --example demo_meshes -- meshes/` regenerates `meshes/` byte for byte: the
 //! shapes come from `shapes`, which uses no randomness, and the sidecars are
