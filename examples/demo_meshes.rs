@@ -1,5 +1,5 @@
 //! Writes the demo scenario, the invented "Kestrel Creek" irrigation headworks, into a
-//! folder: five meshes, a sidecar `<stem>.json` beside each, and a README.
+//! folder: six meshes, a sidecar `<stem>.json` beside each, and a README.
 //!
 //! `cargo run --example demo_meshes -- meshes/` regenerates `meshes/` byte for byte: the
 //! shapes come from `shapes`, which uses no randomness, and the sidecars are
@@ -38,6 +38,7 @@ fn write_all(dir: &Path) -> Result<()> {
         pontoon()?,
         culvert()?,
         stoplog()?,
+        caisson()?,
         vec![("README.md", README.as_bytes().to_vec())],
     ];
     for (name, bytes) in files.into_iter().flatten() {
@@ -266,6 +267,35 @@ fn stoplog() -> Result<Files> {
     ])
 }
 
+/// The intake caisson: a closed precast box 10 × 6 × 5 m, floated out and towed to the
+/// intake before it is sunk onto its bed. It floats freely: no level is given.
+fn caisson() -> Result<Files> {
+    let shell = box_solid([-5.0, -3.0, 0.0], [5.0, 3.0, 5.0], 4);
+    let text = obj(&[("caisson", &shell)]);
+    let json = r#"{
+  "units": "m",
+  "up": "+z",
+  "wet_side": "outside",
+  "liquid": { "density": 1000 },
+  "moment_about": [0.0, 0.0, 0.0],
+  "floating": {
+    "mass": 150000,
+    "centre_of_gravity": [0.0, 0.05, 1.9],
+    "criteria": "imo-2008-is-code-general",
+    "free_surface_moments": { "ballast_cell": { "moment_m4": 21.33, "density": 1000 } }
+  },
+  "cases": [
+    { "name": "float_out" },
+    { "name": "ballasted", "floating": { "mass": 200000, "centre_of_gravity": [0.0, 0.05, 1.6] } }
+  ]
+}
+"#;
+    Ok(vec![
+        ("caisson.obj", text.into_bytes()),
+        ("caisson.json", json.as_bytes().to_vec()),
+    ])
+}
+
 const README: &str = "\
 # Kestrel Creek headworks: demo meshes
 
@@ -284,6 +314,7 @@ default 9.80665 m/s².
 | `pontoon.stl` | service pontoon: `hull` and `deckhouse`, two closed shells | ASCII STL, m, +z |
 | `culvert.obj` | access-road box culvert barrel (closed shell with a through-hole) | OBJ, m, +z |
 | `stoplog.obj` | outlet stoplog: `upstream_face` and `downstream_face`, two open faces | OBJ, m, +z |
+| `caisson.obj` | intake caisson floating freely for its tow (closed box) | OBJ, m, +z |
 
 ## radial_gate
 
@@ -358,4 +389,25 @@ Closed-form checks, width w = 3 m, depths H₁ (headwater) and H₂ (tailwater):
   0.804 m above the sill (normal), and, being horizontal, misses the axis by that much.
 - sweep: the largest net F_x is at the top level, 2.5 m: 82 523.0 N, with 74 104.0 N·m
   about `sill_edge`.
+
+## caisson
+
+A closed precast box 10 × 6 × 5 m (x from −5 to 5, y from −3 to 3, keel at z = 0),
+floated out of its casting basin and towed to the intake in the reservoir's fresh water.
+It floats freely: the sidecar gives its mass and centre of gravity, not a level. The
+centre of gravity is 0.05 m off the centre line (towards +y), so it lists a little. Case
+`float_out`: 150 t, G at z = 1.9 m, with a slack ballast cell (4 × 4 m free surface,
+i = 4 · 4³ / 12 = 21.33 m⁴ of fresh water); case `ballasted`: 200 t, G at z = 1.6 m.
+The criteria set `imo-2008-is-code-general` is evaluated as numbers only (it is written
+for ships; no compliance is implied).
+
+Closed-form checks (box, ρ = 1000 kg/m³, L = 10 m, B = 6 m):
+
+- displacement m/ρ: 150 m³ and 200 m³; the water's force is m g (1 470 997.5 N and
+  1 961 330.0 N) along the free surface's normal, through G.
+- upright draft T = m/(ρLB) = 2.5 m and 3.333 m; GM_T = T/2 + B²/(12T) − KG = 0.550 m
+  and 0.967 m, less ρ i / m = 0.142 m for the slack cell (float_out).
+- list: the wall-sided formula tan φ (GM_T + ½ BM_T tan² φ) = 0.05 m (valid while
+  neither the deck edge nor the bilge crosses the surface, tan φ < 2.5/3) gives 5.15°
+  (float_out) and 2.96° (ballasted), towards +y (negative heel about +x).
 ";

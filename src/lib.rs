@@ -269,6 +269,14 @@ fn calc(args: &CalcArgs) -> ExitCode {
         let _ = out.write_all(&bytes);
     } else if let Some(r) = results.first() {
         let _ = writeln!(out, "\n{}", summary::caution_text(r.caution));
+        // A floating case's own caution, once.
+        if let Some(f) = results
+            .iter()
+            .flat_map(|r| &r.cases)
+            .find_map(|c| c.floating.as_ref())
+        {
+            let _ = writeln!(out, "{}", summary::caution_text(f.caution));
+        }
     }
     let _ = out.flush();
     if failed {

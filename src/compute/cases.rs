@@ -71,9 +71,11 @@ fn total_of(accs: &[PartAccum]) -> PartAccum {
     accs.iter().fold(PartAccum::default(), |a, b| a.merge(b))
 }
 
-pub(super) fn assemble(prep: &Prepared, accs: &[PartAccum]) -> (Loads, Vec<PartResult>) {
+/// The loads of the whole mesh and of each part; `up` is the free surface's unit normal
+/// (internal frame), along which `vertical_force` is taken.
+pub(super) fn assemble(prep: &Prepared, accs: &[PartAccum], up: Vec3) -> (Loads, Vec<PartResult>) {
     let total = total_of(accs);
-    let loads = loads_of(prep, &total, prep.wet.closed, prep.mesh_plane.as_ref());
+    let loads = loads_of(prep, &total, prep.wet.closed, prep.mesh_plane.as_ref(), up);
     let parts = prep
         .parts
         .iter()
@@ -85,21 +87,27 @@ pub(super) fn assemble(prep: &Prepared, accs: &[PartAccum]) -> (Loads, Vec<PartR
                 &accs[i],
                 prep.part_closed[i],
                 prep.part_plane[i].as_ref(),
+                up,
             ),
         })
         .collect();
     (loads, parts)
 }
 
-/// Turns local sums into the result fields, in mesh axes.
+/// Turns local sums into the result fields, in mesh axes. `up` is the free surface's unit
+/// normal (internal frame): `vertical_force` is the force along it and `horizontal_force`
+/// the rest (`+z` unless the body floats).
 pub(super) fn loads_of(
     prep: &Prepared,
     acc: &PartAccum,
     volumes: bool,
     plane: Option<&hydro::Plane>,
+    up: Vec3,
 ) -> Loads {
     let c = prep.centre;
     let o = prep.moment_about;
+    let along = acc.force.dot(&up);
+    let across = acc.force - along * up;
     // Moment about the requested point: M_O = M_c + (c − O) × F.
     let m_o = acc.moment + (c - o).cross(&acc.force);
     let line = hydro::line_of_action(acc.force, m_o, o, acc.abs_force);
@@ -151,9 +159,10 @@ pub(super) fn loads_of(
             couple: l.couple,
         }),
         centre_of_pressure,
-        // `hypot`: no overflow while the components themselves are finite.
-        horizontal_force: acc.force.x.hypot(acc.force.y),
-        vertical_force: acc.force.z,
+        // `hypot`: no overflow while the components themselves are finite. With `up` = +z
+        // the across part is (Fx, Fy, 0) exactly, so this is hypot(Fx, Fy).
+        horizontal_force: across.x.hypot(across.y).hypot(across.z),
+        vertical_force: along,
         max_pressure: if acc.max_pressure.is_finite() {
             acc.max_pressure
         } else {

@@ -86,24 +86,24 @@ pub fn field(mesh: &Mesh, sidecar: &Sidecar, case: usize) -> Result<Field, Compu
 impl Model {
     /// The pressure field of case `case` (an index into the sidecar's cases); `sidecar`
     /// must be the one the model was computed with.
-    pub fn field(&self, sidecar: &Sidecar, case: usize) -> Result<Field, ComputeError> {
-        self.field_with(sidecar, case, true)
+    pub fn field(&self, sidecar: &Sidecar, index: usize) -> Result<Field, ComputeError> {
+        self.field_with(sidecar, index, true)
     }
 
-    /// The pieces of the field of case `case` only, for pictures: no facet rows and no
+    /// The pieces of the field of case `index` only, for pictures: no facet rows and no
     /// nodal forces (both left empty), which cost more than the pieces.
-    pub fn field_pieces(&self, sidecar: &Sidecar, case: usize) -> Result<Field, ComputeError> {
-        self.field_with(sidecar, case, false)
+    pub fn field_pieces(&self, sidecar: &Sidecar, index: usize) -> Result<Field, ComputeError> {
+        self.field_with(sidecar, index, false)
     }
 
     fn field_with(
         &self,
         sidecar: &Sidecar,
-        case: usize,
+        index: usize,
         with_loads: bool,
     ) -> Result<Field, ComputeError> {
         let prep = &self.prep;
-        let Some(case) = sidecar.cases.get(case) else {
+        let Some(case) = sidecar.cases.get(index) else {
             return Ok(Field {
                 pieces: Vec::new(),
                 facets: Vec::new(),
@@ -111,8 +111,18 @@ impl Model {
                 nodes: Vec::new(),
             });
         };
-        let profiles = profiles_of(sidecar, &case.name, &case.liquids, prep.centre.z)?;
-        let out = |v: Vec3| prep.frame.vector_out(v);
+        // A floating case's field is on its solved free surface: facets turned so that it
+        // is level, and every vector and point turned back (see surface.rs).
+        let surface = self.surfaces.get(index).and_then(Option::as_ref);
+        let profiles = match surface {
+            Some(s) => s.profiles(sidecar, &case.name, &case.liquids, prep.centre)?,
+            None => profiles_of(sidecar, &case.name, &case.liquids, prep.centre.z)?,
+        };
+        let out = |v: Vec3| prep.frame.vector_out(surface.map_or(v, |s| s.back(v)));
+        let at = |p: Vec3| {
+            prep.frame
+                .vector_out(surface.map_or(p, |s| s.back(p)) + prep.centre)
+        };
         let mut pieces = Vec::new();
         // Per facet corner, its share of the facet's load (internal frame).
         let mut corner = vec![[Vec3::zeros(); 3]; prep.tris.len()];
@@ -121,7 +131,8 @@ impl Model {
             let profile = liquid.map(|i| &profiles[i]);
             let planes = hydro::part_planes(profile, None);
             for f in part.facets.clone() {
-                let t = &prep.tris[f];
+                let turned = surface.map(|s| s.turn(&prep.tris[f]));
+                let t = turned.as_ref().unwrap_or(&prep.tris[f]);
                 let wet = prep.wet.wetting[f];
                 let side = match wet {
                     Wetting::Front => 1.0,
@@ -164,7 +175,7 @@ impl Model {
                         facet: f,
                         part: pi,
                         wetted: prof.is_some() && zc <= level,
-                        vertices: v.iter().map(|p| out(p + prep.centre)).collect(),
+                        vertices: v.iter().map(|p| at(*p)).collect(),
                         pressure,
                         traction: out(-mean * n),
                         area: pa,
@@ -178,7 +189,7 @@ impl Model {
                 facets.push(FacetRow {
                     part: pi,
                     index: f - part.facets.start,
-                    centroid: out((t[0] + t[1] + t[2]) / 3.0 + prep.centre),
+                    centroid: at((t[0] + t[1] + t[2]) / 3.0),
                     normal: out(n),
                     area,
                     mean_pressure: if area > 0.0 {
@@ -269,7 +280,8 @@ fn number_nodes(
         .filter(|(_, (_, force))| *force != Vec3::zeros())
         .map(|(vertex, (p, force))| NodalLoad {
             vertex,
-            position: out(p + prep.centre),
+            // From the facets as stored (never turned), so only the frame maps it back.
+            position: prep.frame.vector_out(p + prep.centre),
             force: out(force),
         })
         .collect()

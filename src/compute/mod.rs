@@ -27,6 +27,7 @@ mod flotation;
 mod plausible;
 mod prepare;
 mod result;
+mod surface;
 mod sweep;
 mod wet;
 
@@ -40,13 +41,14 @@ pub use sweep::{Extreme, FlotationLimit, Governing, governing};
 
 use thiserror::Error;
 
-use crate::hydro::{LiquidError, WetSide};
+use crate::hydro::{LiquidError, Vec3, WetSide};
 use crate::mesh::Mesh;
 use crate::sidecar::{AUTO_FIELD_EXPORT_FACETS, FieldExports, Sidecar, UnassignedPart};
 use cases::{assemble, echo, run};
 use finite::check_finite;
 use flotation::flotation_check;
 use prepare::{Prepared, prepare};
+use surface::Surface;
 use sweep::{diagonal, flotation_limit, sweep_steps};
 
 /// Version of the result document's layout.
@@ -120,6 +122,8 @@ pub fn compute(
 /// Everything that does not change between cases; [`Model::field`] reads it again.
 pub struct Model {
     prep: Prepared,
+    /// Per case: the solved free surface of a floating case (`None`: the given levels).
+    surfaces: Vec<Option<Surface>>,
 }
 
 impl Model {
@@ -156,17 +160,49 @@ pub fn compute_model(
     }
 
     let mut cases = Vec::with_capacity(sidecar.cases.len());
+    let mut surfaces = Vec::with_capacity(sidecar.cases.len());
     let ahead = early.profiles.into_iter().zip(early.accs);
     for (case, (profiles, ahead)) in sidecar.cases.iter().zip(ahead) {
         let profiles = profiles?;
-        let accs = match ahead {
-            Some(accs) => accs,
-            None => run(&prep.tris, &prep.parts, &prep.wet, &profiles),
+        // A floating case is solved first: its loads are integrated on the solved free
+        // surface (surface.rs), not at the liquid's given level.
+        let (floating, surface) = match &case.floating {
+            None => (None, None),
+            Some(f) => {
+                let density = case.liquids[f.liquid]
+                    .layers
+                    .first()
+                    .map_or(0.0, |l| l.density_kg_m3);
+                let (result, surface, found) =
+                    floating::floating(&prep, sidecar, &case.name, f, density)?;
+                warnings.extend(found);
+                (Some(result), Some(surface))
+            }
         };
-        let (loads, parts) = assemble(&prep, &accs);
-        let sweep = match &sidecar.sweep {
-            None => None,
-            Some(sw) => Some(sweep_steps(&prep, sidecar, case, sw, &accs)?),
+        let accs = match (&surface, ahead) {
+            (Some(s), _) => {
+                let tris = s.tris(&prep.tris);
+                let levelled = s.profiles(sidecar, &case.name, &case.liquids, prep.centre)?;
+                run(&tris, &prep.parts, &prep.wet, &levelled)
+                    .into_iter()
+                    .map(|a| s.accum_back(a))
+                    .collect()
+            }
+            (None, Some(accs)) => accs,
+            (None, None) => run(&prep.tris, &prep.parts, &prep.wet, &profiles),
+        };
+        let up = surface.as_ref().map_or(Vec3::z(), |s| s.normal);
+        let (loads, parts) = assemble(&prep, &accs, up);
+        let sweep = match (&sidecar.sweep, &surface) {
+            (None, _) => None,
+            (Some(_), Some(_)) => {
+                warnings.push(format!(
+                    "case \"{}\" floats: its level sweep is not computed (the free surface is the solved one)",
+                    case.name
+                ));
+                None
+            }
+            (Some(sw), None) => Some(sweep_steps(&prep, sidecar, case, sw, &accs)?),
         };
         let mut sweep_governing = sweep
             .as_deref()
@@ -182,23 +218,18 @@ pub fn compute_model(
             .flotation
             .as_ref()
             .map(|f| flotation_check(f, &loads, 1e-12 * (loads.uplift + loads.downthrust)));
-        let floating = match &case.floating {
-            None => None,
-            Some(f) => {
-                let density = case.liquids[f.liquid]
-                    .layers
-                    .first()
-                    .map_or(0.0, |l| l.density_kg_m3);
-                Some(floating::floating(&prep, sidecar, f, density)?)
-            }
+        let liquids = match &surface {
+            Some(s) => s.liquids(&case.liquids),
+            None => case.liquids.clone(),
         };
+        surfaces.push(surface);
         cases.push(CaseResult {
             name: case.name.clone(),
             floating,
             liquids: sidecar
                 .liquids
                 .iter()
-                .zip(&case.liquids)
+                .zip(&liquids)
                 .map(|(n, l)| echo(&n.name, l))
                 .collect(),
             loads,
@@ -255,7 +286,7 @@ pub fn compute_model(
         caution: CAUTION,
     };
     check_finite(&result)?;
-    Ok((result, Model { prep }))
+    Ok((result, Model { prep, surfaces }))
 }
 
 #[cfg(test)]

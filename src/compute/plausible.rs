@@ -35,15 +35,21 @@ pub fn warnings(sidecar: &Sidecar, used: &[bool], z_range_m: (f64, f64), w: &mut
             if !used.get(i).copied().unwrap_or(false) {
                 continue;
             }
+            // A floating body's liquid has no given level to judge (its free surface is
+            // solved, and it is uniform); its density is still judged.
+            let floats_in = case.floating.as_ref().is_some_and(|f| f.liquid == i);
             let name = &sidecar.liquids[i].name;
             let which = if sidecar.cases.len() > 1 {
                 format!("case \"{}\", liquid \"{name}\"", case.name)
             } else {
                 format!("liquid \"{name}\"")
             };
-            level_warnings(sidecar, liquid, &which, (bottom, top, height), w);
+            if !floats_in {
+                level_warnings(sidecar, liquid, &which, (bottom, top, height), w);
+            }
             for (k, layer) in liquid.layers.iter().enumerate() {
-                if let Some(d) = layer.down_to_m
+                if !floats_in
+                    && let Some(d) = layer.down_to_m
                     && d >= liquid.level_m
                     && k + 1 < liquid.layers.len()
                 {

@@ -149,9 +149,14 @@ pub(super) fn prepare(
                 _ => hydro::plane_of(tris.iter()),
             };
             let guess = Wet::clean_guess(&parts, sidecar, tris.len()).map(|wet| {
+                // Floating cases are integrated on their solved free surface later.
                 let accs: Vec<Option<Vec<PartAccum>>> = profiles
                     .iter()
-                    .map(|p| p.as_ref().ok().map(|p| run(&tris, &parts, &wet, p)))
+                    .zip(&sidecar.cases)
+                    .map(|(p, c)| match (p, &c.floating) {
+                        (Ok(p), None) => Some(run(&tris, &parts, &wet, p)),
+                        _ => None,
+                    })
                     .collect();
                 (wet, accs)
             });

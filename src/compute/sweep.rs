@@ -10,7 +10,7 @@ use serde::Serialize;
 use super::cases::loads_of;
 use super::flotation::flotation_check;
 use super::{ComputeError, Loads, Prepared, SweepStep};
-use crate::hydro::{self, PartAccum};
+use crate::hydro::{self, PartAccum, Vec3};
 use crate::sidecar::{Case, Sidecar, Sweep};
 
 /// The steps of a level sweep in one case: the parts the swept liquid does not reach
@@ -103,7 +103,15 @@ fn loads_at(
     })?;
     Ok(sums
         .iter()
-        .map(|acc| loads_of(prep, &fixed.merge(acc), closed, prep.mesh_plane.as_ref()))
+        .map(|acc| {
+            loads_of(
+                prep,
+                &fixed.merge(acc),
+                closed,
+                prep.mesh_plane.as_ref(),
+                Vec3::z(),
+            )
+        })
         .collect())
 }
 

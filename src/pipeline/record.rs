@@ -16,7 +16,7 @@ pub fn headline(c: &CaseResult) -> Value {
         .iter()
         .map(|(k, a)| (k.clone(), json!(a.moment)))
         .collect();
-    json!({
+    let mut h = json!({
         "name": c.name,
         "force": l.force,
         "moment": l.moment,
@@ -27,7 +27,19 @@ pub fn headline(c: &CaseResult) -> Value {
         "submerged_volume": l.submerged_volume,
         "axis_moments": axes,
         "flotation_factor": c.flotation.as_ref().and_then(|f| f.factor),
-    })
+    });
+    // A floating case adds its attitude (m, degrees, m; null when the body sinks).
+    if let (Some(f), Value::Object(m)) = (&c.floating, &mut h) {
+        let e = f.equilibrium.as_ref();
+        m.insert("draft".into(), json!(e.map(|e| e.draft)));
+        m.insert("heel".into(), json!(e.map(|e| e.heel)));
+        m.insert("trim".into(), json!(e.and_then(|e| e.trim)));
+        m.insert(
+            "gm_t".into(),
+            json!(e.map(|e| e.metacentric_height.transverse)),
+        );
+    }
+    h
 }
 
 /// What the change log says about one mesh so far: fed its lines in order
@@ -193,7 +205,13 @@ pub fn block(
         let old_force = change["force"]
             .as_array()
             .map(|d| [0, 1, 2].map(|k| l.force[k] - d[k].as_f64().unwrap_or(0.0)));
-        let up = up_unit(r.inputs.up);
+        // Horizontal and vertical are relative to the free surface: a floating body's
+        // solved normal, else the up axis.
+        let up = c
+            .floating
+            .as_ref()
+            .and_then(|f| f.equilibrium.as_ref())
+            .map_or_else(|| up_unit(r.inputs.up), |e| e.normal);
         let horizontal = |f: [f64; 3]| {
             let v = f[0] * up[0] + f[1] * up[1] + f[2] * up[2];
             norm([f[0] - v * up[0], f[1] - v * up[1], f[2] - v * up[2]])
@@ -242,6 +260,30 @@ pub fn block(
                     "", f.required_factor
                 ),
             );
+        }
+        if let Some(e) = c.floating.as_ref().and_then(|f| f.equilibrium.as_ref()) {
+            let trim = e
+                .trim
+                .map_or_else(|| "—".to_owned(), |t| u.angle.with_name(t));
+            let _ = std::fmt::Write::write_fmt(
+                &mut s,
+                format_args!(
+                    "  {:<10} floating draft {}{}   heel {}{}   trim {trim}   GM_T {}{}\n",
+                    "",
+                    u.length.with_name(e.draft),
+                    marker(line["change"]["draft"].as_f64(), e.draft),
+                    u.angle.with_name(e.heel),
+                    marker(line["change"]["heel"].as_f64(), e.heel),
+                    u.length.with_name(e.metacentric_height.transverse),
+                    marker(
+                        line["change"]["gm_t"].as_f64(),
+                        e.metacentric_height.transverse
+                    ),
+                ),
+            );
+        } else if c.floating.as_ref().is_some_and(|f| f.sinks.is_some()) {
+            let _ =
+                std::fmt::Write::write_fmt(&mut s, format_args!("  {:<10} floating: SINKS\n", ""));
         }
         if verbose {
             let _ = std::fmt::Write::write_fmt(

@@ -12,6 +12,15 @@
 //!     force        Fx 490.33  Fy 0  Fz 288.10 kN   |F| 568.71 kN
 //!     …
 //! ```
+//! A floating case adds its block after the loads:
+//!
+//! ```text
+//!     floating     mass 150.0 t, G (0.000, 0.000, 1.800) m, in liquid, length axis +x
+//!                  draft 1.220 m, heel 0.0°, trim 0.0°, displacement 146.341 m³ (150.0 t)
+//!                  GM_T 1.875 m, GM_L 26.753 m, reserve buoyancy 59.3%
+//!                  GZ max … at …, vanishing angle …, areas 0-30° … 0-40° … 30-40° … m·rad
+//!                  criteria "…": PASS as numbers only, no compliance implied
+//! ```
 //! It ends with the warnings and, unless left out, the caution. The JSON result stays SI
 //! whatever the presentation.
 
@@ -19,7 +28,7 @@ use std::fmt::Write;
 
 use super::units::{Units, num};
 use crate::compute::{
-    CaseResult, Extreme, FlotationCheck, Governing, Loads, MeshResult, SweepStep,
+    CaseResult, Extreme, FloatingResult, FlotationCheck, Governing, Loads, MeshResult, SweepStep,
 };
 
 pub use super::units::UnitSystem;
@@ -128,6 +137,9 @@ pub fn render(r: &MeshResult, opts: SummaryOptions) -> String {
     if !opts.no_caution {
         s.push('\n');
         let _ = writeln!(s, "{}", caution_text(r.caution));
+        if let Some(f) = r.cases.iter().find_map(|c| c.floating.as_ref()) {
+            let _ = writeln!(s, "{}", caution_text(f.caution));
+        }
     }
     s
 }
@@ -196,11 +208,15 @@ fn case_block(
             } else {
                 String::new()
             };
+            // A floating body's liquid: its free surface is solved, not given.
+            let level = if c.floating.as_ref().is_some_and(|f| f.liquid == l.name) {
+                "free surface solved".to_owned()
+            } else {
+                format!("level {} {}", u.elevation(l.level), u.length.name)
+            };
             format!(
-                "{} level {} {}, {} {}{gas}",
+                "{} {level}, {} {}{gas}",
                 l.name,
-                u.elevation(l.level),
-                u.length.name,
                 dens.join("/"),
                 u.density.name
             )
@@ -243,6 +259,106 @@ fn case_block(
     }
     if let Some(f) = &c.flotation {
         flotation_block(s, f, &c.loads, u);
+    }
+    if let Some(f) = &c.floating {
+        floating_block(s, f, u);
+    }
+}
+
+/// A floating body's equilibrium and stability, in the chosen units (criteria in the
+/// units of their source, as the preset states them).
+fn floating_block(s: &mut String, f: &FloatingResult, u: &Units) {
+    let (l, a) = (&u.length, &u.angle);
+    let _ = writeln!(
+        s,
+        "    floating     mass {}, G {} {}, in {}, length axis {}",
+        u.mass.with_name(f.mass),
+        u.point(f.centre_of_gravity),
+        l.name,
+        f.liquid,
+        f.length_axis
+    );
+    let ind = "                 ";
+    let Some(e) = &f.equilibrium else {
+        let _ = writeln!(
+            s,
+            "{ind}SINKS: the mass exceeds what the whole volume can carry by {}",
+            u.mass.with_name(f.sinks.unwrap_or(0.0))
+        );
+        return;
+    };
+    let trim = e.trim.map_or_else(|| "—".to_owned(), |t| a.with_name(t));
+    let _ = writeln!(
+        s,
+        "{ind}draft {}, heel {}, trim {}, displacement {} ({})",
+        l.with_name(e.draft),
+        a.with_name(e.heel),
+        trim,
+        u.volume.with_name(e.displacement),
+        u.mass.with_name(f.mass)
+    );
+    let gm = &e.metacentric_height;
+    let corrected = &e.metacentric_height_corrected;
+    let fs = if f.free_surface_moment > 0.0 {
+        format!(
+            " (corrected for free surface {} and {} {})",
+            l.fmt(corrected.transverse),
+            l.fmt(corrected.longitudinal),
+            l.name
+        )
+    } else {
+        String::new()
+    };
+    let _ = writeln!(
+        s,
+        "{ind}GM_T {}, GM_L {}{fs}, reserve buoyancy {}%",
+        l.with_name(gm.transverse),
+        l.with_name(gm.longitudinal),
+        num(100.0 * e.reserve_buoyancy, 1)
+    );
+    if let Some(st) = &f.stability {
+        let vanish = st
+            .vanishing_angle
+            .map_or_else(|| "none up to 90°".to_owned(), |v| a.with_name(v));
+        let _ = writeln!(
+            s,
+            "{ind}GZ max {} at {}, vanishing angle {vanish}, areas 0-30° {} 0-40° {} 30-40° {} {}",
+            l.with_name(st.max_gz),
+            a.with_name(st.angle_of_max_gz),
+            u.lever_area.fmt(st.area_0_30),
+            u.lever_area.fmt(st.area_0_40),
+            u.lever_area.fmt(st.area_30_40),
+            u.lever_area.name
+        );
+    }
+    if let Some(c) = &f.criteria {
+        let verdict = if c.pass { "PASS" } else { "FAIL" };
+        let _ = writeln!(
+            s,
+            "{ind}criteria \"{}\": {verdict} as numbers only, {}{}{}",
+            c.name,
+            c.compliance,
+            if c.free_surface_corrected {
+                ", on the curve corrected for free surface"
+            } else {
+                ""
+            },
+            if c.from_memory {
+                " (some values from memory)"
+            } else {
+                ""
+            }
+        );
+        for k in &c.checks {
+            let _ = writeln!(
+                s,
+                "{ind}  {} {}: {} (required {})",
+                if k.pass { "pass" } else { "FAIL" },
+                k.what,
+                num(k.actual, 4),
+                num(k.required, 4)
+            );
+        }
     }
 }
 
@@ -649,5 +765,46 @@ mod tests {
             us.contains("Fx                              19.84 kip     at 9.843 ft"),
             "{us}"
         );
+    }
+
+    #[test]
+    fn a_floating_case_shows_its_draft_gm_and_curve_in_si_and_us() {
+        // Box 20 × 6 × 3 m, 150 t in sea water: T = m/(ρ L B) and
+        // GM_T = T/2 + B²/(12 T) − KG (closed forms), shown in m and in ft (1 ft = 0.3048 m).
+        let hull = shapes::box_solid([-10.0, -3.0, 0.0], [10.0, 3.0, 3.0], 1);
+        let side = crate::sidecar::parse_sidecar(
+            std::path::Path::new("b.json"),
+            r#"{"units": "m", "liquid": {"density": 1025},
+                "floating": {"mass": 150000, "centre_of_gravity": [0, 0, 1.8],
+                             "criteria": "imo-2008-is-code-general"}}"#,
+        )
+        .expect("valid");
+        let mesh = crate::mesh::Mesh::from_parts(vec![("b", hull)], crate::mesh::Format::Obj);
+        let r = crate::compute::compute("b.obj", &mesh, &side).expect("computes");
+        let t = 150_000.0 / (1025.0 * 120.0);
+        let gm = t / 2.0 + 36.0 / (12.0 * t) - 1.8;
+        let si = render(&r, SummaryOptions::default());
+        for want in [
+            format!("draft {t:.3} m"),
+            "heel 0.0°".to_owned(),
+            format!("GM_T {gm:.3} m"),
+            "mass 150.0 t".to_owned(),
+            "no compliance implied".to_owned(),
+            "GZ max".to_owned(),
+            "Towing".to_owned(),
+        ] {
+            assert!(si.contains(&want), "{want} in\n{si}");
+        }
+        let us = render(
+            &r,
+            SummaryOptions {
+                units: UnitSystem::Us,
+                ..SummaryOptions::default()
+            },
+        );
+        let (t_ft, gm_ft) = (t / 0.3048, gm / 0.3048);
+        for want in [format!("draft {t_ft:.3} ft"), format!("GM_T {gm_ft:.3} ft")] {
+            assert!(us.contains(&want), "{want} in\n{us}");
+        }
     }
 }

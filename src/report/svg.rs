@@ -1,6 +1,7 @@
 //! Line charts as SVG: the load history of a mesh across design iterations
-//! (`results/<stem>.history.svg`) and the loads against the level of a sweep
-//! (`results/<stem>[.<case>].sweep.svg`).
+//! (`results/<stem>.history.svg`), the loads against the level of a sweep
+//! (`results/<stem>[.<case>].sweep.svg`) and a floating case's righting-lever curve (on
+//! the page).
 //!
 //! Owns the chart model ([`Chart`], [`Panel`], [`Series`]), its building from the change
 //! log and from sweeps, and the rendering into bytes with plotters' SVG backend (no font
@@ -28,7 +29,10 @@ use plotters::prelude::*;
 use serde_json::Value;
 
 use crate::compute::SweepStep;
+
+mod stability;
 use crate::report::units::{Unit, Units};
+pub use stability::stability_chart;
 
 /// One line of a chart: a label and its points (x, y in the units its panel names).
 #[derive(Clone, Debug, PartialEq)]
@@ -49,6 +53,8 @@ pub struct Panel {
     pub series: Vec<Series>,
     /// Vertical marker lines: x and a short label.
     pub marks: Vec<(f64, String)>,
+    /// Shaded areas under the first series between two x values, with a short label.
+    pub areas: Vec<(f64, f64, String)>,
     /// x takes whole numbers only (iterations): ticks are labelled as integers.
     pub integer_x: bool,
     /// The y range includes 0.
@@ -198,6 +204,7 @@ pub fn sweep_chart(
             y_label: format!("{quantity} ({})", unit.name),
             series,
             marks: marks.clone(),
+            areas: Vec::new(),
             integer_x: false,
             include_zero: true,
             noise,
@@ -242,6 +249,7 @@ pub fn sweep_chart(
                 },
             ],
             marks: level_marks,
+            areas: Vec::new(),
             integer_x: false,
             include_zero: true,
             noise: 0.0,
@@ -422,6 +430,7 @@ pub fn history_chart(mesh: &str, lines: &[Value], up: Option<&str>, u: &Units) -
                 y_label: format!("force ({})", u.force.name),
                 series: forces,
                 marks: marks.clone(),
+                areas: Vec::new(),
                 integer_x: true,
                 include_zero: false,
                 noise,
@@ -435,6 +444,7 @@ pub fn history_chart(mesh: &str, lines: &[Value], up: Option<&str>, u: &Units) -
                 y_label: format!("moment ({})", u.moment.name),
                 series: moments,
                 marks,
+                areas: Vec::new(),
                 integer_x: true,
                 include_zero: false,
                 noise,
@@ -462,6 +472,9 @@ const INK: RGBColor = RGBColor(0x22, 0x26, 0x2b);
 const GRID: RGBColor = RGBColor(0xe4, 0xe7, 0xea);
 const GRID_BOLD: RGBColor = RGBColor(0xc8, 0xcd, 0xd2);
 const MARK: RGBColor = RGBColor(0x8a, 0x90, 0x96);
+/// Fills of areas under a curve: two pale tints of the palette's first colour.
+const SHADE: RGBColor = RGBColor(0xd6, 0xe2, 0xf0);
+const SHADE_ALT: RGBColor = RGBColor(0xf0, 0xdc, 0xcc);
 
 /// Our palette: dark enough to read as distinct greys when printed in black and white.
 const PALETTE: [RGBColor; 6] = [
@@ -698,6 +711,31 @@ fn draw_panel(
         .map_err(e)?;
     }
 
+    // Shaded areas under the first series, each between its two x values.
+    if let Some(first) = panel.series.first() {
+        for (k, (a, b, label)) in panel.areas.iter().enumerate() {
+            let mut poly: Vec<(f64, f64)> = vec![(*a, 0.0)];
+            poly.extend(
+                first
+                    .points
+                    .iter()
+                    .filter(finite)
+                    .filter(|p| p.0 >= *a && p.0 <= *b)
+                    .map(clean),
+            );
+            poly.push((*b, 0.0));
+            let shade = if k % 2 == 0 { SHADE } else { SHADE_ALT };
+            cc.draw_series(std::iter::once(Polygon::new(poly, shade.filled())))
+                .map_err(e)?;
+            let (px, py) = cc.backend_coord(&(0.5 * (a + b), 0.0));
+            root.draw(&Text::new(
+                label.clone(),
+                (px - 24, py - 18),
+                (FONT, 13).into_font().color(&MARK),
+            ))
+            .map_err(e)?;
+        }
+    }
     for (i, s) in panel.series.iter().enumerate() {
         let (colour, dash, marker) = look(i);
         let pts: Vec<(f64, f64)> = s
@@ -811,6 +849,66 @@ mod tests {
     /// text on a line of its own).
     fn has_text(svg: &str, text: &str) -> bool {
         svg.contains(&format!(">\n{text}\n</text>"))
+    }
+
+    #[test]
+    fn the_stability_chart_draws_the_curve_its_tangent_criteria_areas_and_angles() {
+        let fl = json!({
+            "righting_lever": [{"heel": 0.0, "gz": 0.0}, {"heel": 30.0, "gz": 0.3},
+                               {"heel": 60.0, "gz": 0.1}, {"heel": 80.0, "gz": -0.2}],
+            "equilibrium": {"metacentric_height": {"transverse": 0.8}},
+            "stability": {"max_gz": 0.31, "angle_of_max_gz": 33.0, "vanishing_angle": 70.5},
+            "free_surface_rise": 0.05,
+            "criteria": {"checks": [
+                {"what": "GZ at a heel of 30 degrees or more (m)", "required": 0.2, "actual": 0.31}
+            ]}
+        });
+        let u = Units::of(crate::report::units::UnitSystem::Si);
+        let c = stability_chart("p.stl", "tow", &fl, &u).expect("a chart");
+        let p = &c.panels[0];
+        let labels: Vec<&str> = p.series.iter().map(|s| s.label.as_str()).collect();
+        assert_eq!(
+            labels,
+            [
+                "GZ",
+                "GZ less free surface",
+                "GM_T · φ at upright",
+                "least GZ from 30° (0.200 m)"
+            ]
+        );
+        // The corrected curve: GZ − rise · sin φ, so 0.3 − 0.05 · ½ at 30°.
+        assert!((p.series[1].points[1].1 - (0.3 - 0.025)).abs() < 1e-12);
+        // The tangent reaches GM_T at one radian.
+        assert_eq!(p.series[2].points[1], (1.0f64.to_degrees(), 0.8));
+        assert_eq!(p.areas.len(), 2);
+        assert_eq!(
+            p.marks.iter().map(|m| m.0).collect::<Vec<_>>(),
+            [33.0, 70.5]
+        );
+        let svg = String::from_utf8(render(&c)).expect("utf-8");
+        assert!(
+            has_text(&svg, "max GZ") && has_text(&svg, "vanishing"),
+            "{svg}"
+        );
+        // In US units the levers are in feet.
+        let us = stability_chart(
+            "p.stl",
+            "tow",
+            &fl,
+            &Units::of(crate::report::units::UnitSystem::Us),
+        )
+        .expect("a chart");
+        assert!((us.panels[0].series[0].points[1].1 - 0.3 / 0.3048).abs() < 1e-12);
+        // A sinking body has no chart.
+        assert!(
+            stability_chart(
+                "p.stl",
+                "tow",
+                &json!({"righting_lever": [], "equilibrium": null}),
+                &u
+            )
+            .is_none()
+        );
     }
 
     fn line(iteration: u64, fz: f64, axes: Value) -> Value {
@@ -1032,6 +1130,7 @@ mod tests {
                     points: vec![(0.0, 2.0e4), (1.0, f64::NAN), (2.0, 3.0e4)],
                 }],
                 marks: Vec::new(),
+                areas: Vec::new(),
                 integer_x: false,
                 include_zero: true,
                 noise: 0.0,

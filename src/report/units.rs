@@ -38,9 +38,13 @@ impl Unit {
         num(si * self.factor, self.decimals)
     }
 
-    /// Like [`Unit::fmt`], with the unit name after a space.
+    /// Like [`Unit::fmt`], with the unit name after a space (degrees without one).
     pub fn with_name(&self, si: f64) -> String {
-        format!("{} {}", self.fmt(si), self.name)
+        if self.name == "°" {
+            format!("{}°", self.fmt(si))
+        } else {
+            format!("{} {}", self.fmt(si), self.name)
+        }
     }
 }
 
@@ -58,6 +62,12 @@ pub struct Units {
     pub pressure: Unit,
     pub density: Unit,
     pub acceleration: Unit,
+    /// Masses (a floating body's mass and displacement): t or lb.
+    pub mass: Unit,
+    /// Angles (heel, trim), degrees in both systems.
+    pub angle: Unit,
+    /// Areas under the righting-lever curve: m·rad or ft·rad.
+    pub lever_area: Unit,
     /// Added to the mesh's own elevations to show them in the project datum, m (0 when the
     /// sidecar gives no datum).
     pub elevation_origin_m: f64,
@@ -83,6 +93,9 @@ impl Units {
                 pressure: u("kPa", 1e-3, 2),
                 density: u("kg/m³", 1.0, 0),
                 acceleration: u("m/s²", 1.0, 3),
+                mass: u("t", 1e-3, 1),
+                angle: u("°", 1.0, 1),
+                lever_area: u("m·rad", 1.0, 4),
                 elevation_origin_m: 0.0,
             },
             UnitSystem::Us => Units {
@@ -96,6 +109,9 @@ impl Units {
                 pressure: u("psi", 0.0254 * 0.0254 / LBF_N, 3),
                 density: u("lb/ft³", FT_M * FT_M * FT_M / LB_KG, 2),
                 acceleration: u("ft/s²", 1.0 / FT_M, 3),
+                mass: u("lb", 1.0 / LB_KG, 0),
+                angle: u("°", 1.0, 1),
+                lever_area: u("ft·rad", 1.0 / FT_M, 4),
                 elevation_origin_m: 0.0,
             },
         }
@@ -152,6 +168,9 @@ mod tests {
         assert!((1_355.817_948_331_400_4 * u.moment.factor - 1.0).abs() < 1e-14);
         assert!((16.018_463_373_960_14 * u.density.factor - 1.0).abs() < 1e-14);
         assert!((0.3048 * u.acceleration.factor - 1.0).abs() < 1e-15);
+        // 1 lb = 0.45359237 kg exactly, so 1000 kg = 2204.62 lb.
+        assert!((0.453_592_37 * u.mass.factor - 1.0).abs() < 1e-15);
+        assert_eq!(u.mass.with_name(1000.0), "2205 lb");
         // Fresh water: 1000 kg/m³ = 62.43 lb/ft³; standard gravity = 32.174 ft/s².
         assert_eq!(u.density.with_name(1000.0), "62.43 lb/ft³");
         assert_eq!(u.acceleration.with_name(9.80665), "32.174 ft/s²");

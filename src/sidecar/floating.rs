@@ -34,6 +34,15 @@ pub(super) fn merge(base: Option<&RawFloating>, case: Option<&RawFloating>) -> O
     }
 }
 
+/// The liquid a `floating` names (or the only one), when it names one that exists; the
+/// errors are [`validate_floating`]'s.
+pub(super) fn liquid_of(raw: &RawFloating, names: &[String]) -> Option<usize> {
+    match &raw.liquid {
+        Some(name) => names.iter().position(|n| n == name),
+        None => (names.len() == 1).then_some(0),
+    }
+}
+
 fn bad(key: KeyPath, message: String) -> Problem {
     problem(key, K::Floating(message))
 }

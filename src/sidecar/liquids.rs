@@ -182,10 +182,13 @@ impl Resolver<'_> {
     }
 
     /// Every liquid of the case named `case` at `case_key` (`None`: the default case).
+    /// `floats_in`: the liquid a floating body of the case floats in, whose `level` is not
+    /// needed (the computation solves the free surface; 0 stands in when none is given).
     pub(super) fn resolve(
         &self,
         overrides: &[Partial],
         case: Option<(&str, &KeyPath)>,
+        floats_in: Option<usize>,
     ) -> Result<Vec<Liquid>, Problem> {
         let mut liquids = Vec::with_capacity(self.bases.len());
         for (i, base) in self.bases.iter().enumerate() {
@@ -207,12 +210,14 @@ impl Resolver<'_> {
                     },
                 ),
             };
-            let level_m = top.level.or(base.level).ok_or_else(|| {
-                missing(
+            let level_m = match top.level.or(base.level) {
+                Some(level) => level,
+                None if floats_in == Some(i) => 0.0,
+                None => Err(missing(
                     "level",
                     "add \"level\": <elevation of the free surface in m>",
-                )
-            })?;
+                ))?,
+            };
             let layers = top.layers.as_ref().or(base.layers.as_ref()).ok_or_else(|| {
                 missing(
                     "density",

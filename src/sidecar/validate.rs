@@ -108,7 +108,11 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
     let no_overrides = vec![Partial::default(); names.len()];
     let cases = match &raw.cases {
         None => {
-            let liquids = resolver.resolve(&no_overrides, None)?;
+            let floats_in = raw
+                .floating
+                .as_ref()
+                .and_then(|f| floating::liquid_of(f, &names));
+            let liquids = resolver.resolve(&no_overrides, None, floats_in)?;
             let floating = match &raw.floating {
                 None => None,
                 Some(f) => Some(floating::validate_floating(
@@ -186,8 +190,9 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
                     let i = resolver.index(liquid, at.clone())?;
                     overrides[i] = partial(Spec::of_liquid(l), &at, g)?;
                 }
-                let liquids = resolver.resolve(&overrides, Some((name, &key)))?;
                 let merged = floating::merge(raw.floating.as_ref(), c.floating.as_ref());
+                let floats_in = merged.as_ref().and_then(|f| floating::liquid_of(f, &names));
+                let liquids = resolver.resolve(&overrides, Some((name, &key)), floats_in)?;
                 let at = if c.floating.is_some() {
                     key.key("floating")
                 } else {

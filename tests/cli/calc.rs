@@ -483,13 +483,20 @@ fn the_demo_folder() {
         }
     }
     meshes.sort();
-    assert_eq!(meshes.len(), 5, "the demo has five meshes: {meshes:?}");
+    assert_eq!(meshes.len(), 6, "the demo has six meshes: {meshes:?}");
     let args: Vec<&str> = meshes.iter().map(String::as_str).collect();
     let run = f.calc(&args);
     run.expect_code(0);
     assert!(!run.stderr.contains("panicked"));
     let listing = f.results_listing();
-    let stems = ["culvert", "pontoon", "radial_gate", "stoplog", "wet_well"];
+    let stems = [
+        "caisson",
+        "culvert",
+        "pontoon",
+        "radial_gate",
+        "stoplog",
+        "wet_well",
+    ];
     for stem in stems {
         assert!(listing.contains(&format!("{stem}.json")), "{listing:?}");
     }
@@ -502,6 +509,58 @@ fn the_demo_folder() {
             doc["mesh"]
         );
     }
+    // Closed forms (meshes/README.md): the 10 × 6 m caisson of 150 t floats freely in fresh
+    // water: the water's force is m g through G, the displacement m/ρ, upright
+    // GM_T = T/2 + B²/(12T) − KG with T = m/(ρLB), and with G 0.05 m off the centre line it
+    // lists to tan φ (GM_T + ½ BM_T tan² φ) = 0.05 (wall-sided, exact for a box while
+    // neither deck edge nor bilge crosses the surface).
+    let caisson = f.result("caisson");
+    let case = &caisson["cases"][0];
+    let force: Vec<f64> = (0..3)
+        .map(|k| num(&case["force"][k], "caisson force"))
+        .collect();
+    let weight = 150_000.0 * G;
+    close(
+        "caisson |F| = m g",
+        force.iter().map(|x| x * x).sum::<f64>().sqrt(),
+        weight,
+        1e-9 * weight,
+    );
+    let fl = &case["floating"];
+    close(
+        "caisson displacement",
+        num(&fl["equilibrium"]["displacement"], "displacement"),
+        150.0,
+        1e-9 * 150.0,
+    );
+    let (t, kg) = (2.5, 1.9);
+    let bm = 36.0 / (12.0 * t);
+    let gm = t / 2.0 + bm - kg;
+    close(
+        "caisson upright GM_T",
+        num(
+            &fl["upright"]["metacentric_height"]["transverse"],
+            "upright GM",
+        ),
+        gm,
+        1e-9,
+    );
+    // tan φ by bisection on the wall-sided lever, which rises with φ here.
+    let (mut lo, mut hi) = (0.0f64, 0.8f64);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if mid * (gm + 0.5 * bm * mid * mid) > 0.05 {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    close(
+        "caisson list (towards +y: negative heel about +x)",
+        num(&fl["equilibrium"]["heel"], "heel"),
+        -lo.atan().to_degrees(),
+        1e-6,
+    );
     // Closed form (meshes/README.md): the 8 × 3 m hull floats 0.45 m deep in sea water,
     // V = 10.8 m³, buoyancy ρgV.
     let fz = num(

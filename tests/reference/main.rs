@@ -5,12 +5,14 @@
 //! worked examples rebuilt as meshes (`textbook`), the mass properties and plane splits of
 //! parry3d-f64 (`parry`), physical invariances (`invariance`), real CAD exports
 //! (`real_exports`), flotation checks of buried tanks against a published worked example
-//! and closed forms (`flotation`), and level sweeps against single calculations (`sweep`). Helpers live in `support`.
+//! and closed forms (`flotation`), level sweeps against single calculations (`sweep`), and floating bodies against parry's
+//! tilted plane splits and under units, up axis and rotation (`floating`). Helpers live in `support`.
 //!
 //! `cargo test --test reference -- --nocapture` prints one `REF` line per comparison with
 //! the error observed and the tolerance allowed.
 
 mod closed_form;
+mod floating;
 mod flotation;
 mod invariance;
 mod nodal;

@@ -86,7 +86,7 @@ fn nodal_forces_sum_to_the_force_and_moment_of_every_demo_case() {
         assert!(loaded > 0, "{}: no loaded vertex", path.display());
         seen += 1;
     }
-    assert_eq!(seen, 5, "the five demo meshes");
+    assert_eq!(seen, 6, "the six demo meshes");
 }
 
 #[test]

@@ -206,3 +206,43 @@ fn calc_beside_a_running_watcher_logs_through_the_append_lock_and_numbering_cont
         blake3::hash(sidecar(0.6).as_bytes()).to_hex().to_string()
     );
 }
+
+#[test]
+fn a_floating_sidecar_gives_the_floating_result_and_log_fields() {
+    // The 2 × 1 × 1 m box floating freely with m = 1000 kg in ρ = 1000 kg/m³ and G on its
+    // centre line at 0.2 m: T = m/(ρ L B) = 0.5 m (so the loads are those of level 0.5),
+    // upright, GM_T = T/2 + B²/(12 T) − KG = 0.25 + 1/6 − 0.2 m (closed forms).
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path();
+    fs::write(p.join("float.stl"), box_stl(1.0)).expect("mesh");
+    let side = serde_json::json!({"units": "m", "liquid": {"density": RHO},
+        "floating": {"mass": 1000.0, "centre_of_gravity": [1.0, 0.5, 0.2]}});
+    fs::write(p.join("float.json"), side.to_string()).expect("sidecar");
+    let out = once(p);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "stderr: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let doc = result(p, "float").expect("result");
+    assert!(doc_matches(&doc, &expected(1.0, 0.5)), "{doc}");
+    let e = &doc["cases"][0]["floating"]["equilibrium"];
+    let gm = 0.25 + 1.0 / 6.0 - 0.2;
+    let near =
+        |v: &serde_json::Value, want: f64| v.as_f64().is_some_and(|x| (x - want).abs() < 1e-9);
+    assert!(near(&e["draft"], 0.5) && near(&e["heel"], 0.0), "{e}");
+    assert!(near(&e["metacentric_height"]["transverse"], gm), "{e}");
+    let lines = check_log(p);
+    let computed = events(&lines, "float.stl", "computed");
+    assert_eq!(computed.len(), 1);
+    let case = &computed[0]["cases"][0];
+    assert!(near(&case["draft"], 0.5), "{case}");
+    assert!(
+        near(&case["heel"], 0.0) && near(&case["trim"], 0.0),
+        "{case}"
+    );
+    assert!(near(&case["gm_t"], gm), "{case}");
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(stdout.contains("floating draft 0.500 m"), "{stdout}");
+}

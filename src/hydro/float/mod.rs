@@ -43,7 +43,10 @@ pub use curve::{Criterion, CriterionCheck, Summary, evaluate, summarise};
 pub use section::{Hull, Section};
 pub use solve::{Attitude, Body, Solution, solve};
 
+use nalgebra::Matrix3;
 use thiserror::Error;
+
+use super::Vec3;
 
 /// Relative tolerance of the equilibrium (CONTRACT.md): on the displaced mass, relative to
 /// the mass; on `|(B − G) × n|`, relative to the bounding-box diagonal.
@@ -82,6 +85,27 @@ pub enum FloatError {
         "no stable floating attitude was found within 180° of heel from upright (the body may be neutrally stable in heel, such as a body of revolution about the length axis with its centre of gravity on that axis)"
     )]
     NoStableAttitude,
+}
+
+/// A proper rotation that takes the unit vector `n` to `+z`: the frame in which the free
+/// surface `n·x = c` is the horizontal plane `z = c`, so the core's horizontal clipping and
+/// exact integrals apply unchanged. Rotating about the local origin keeps every moment
+/// about it; map vectors back with the transpose.
+///
+/// The least rotation (about `n × z`, Rodrigues: `R = I + [v]× + [v]×² / (1 + n·z)` with
+/// `v = n × z`) when `n·z > −½`; otherwise a half turn about `x` first, so the division
+/// never comes near zero. `n` must be a unit vector.
+pub fn levelling(n: Vec3) -> Matrix3<f64> {
+    let half_turn = Matrix3::new(1.0, 0.0, 0.0, 0.0, -1.0, 0.0, 0.0, 0.0, -1.0);
+    let (pre, m) = if n.z > -0.5 {
+        (Matrix3::identity(), n)
+    } else {
+        (half_turn, half_turn * n)
+    };
+    let z = Vec3::z();
+    let v = m.cross(&z);
+    let k = v.cross_matrix();
+    (Matrix3::identity() + k + k * k / (1.0 + m.dot(&z))) * pre
 }
 
 #[cfg(test)]

@@ -426,3 +426,25 @@ fn criteria_are_evaluated_on_the_grid() {
         max_relative = 1e-12
     );
 }
+
+#[test]
+fn levelling_is_a_proper_rotation_taking_the_normal_to_up() {
+    // R n = z, Rᵀ R = I and det R = +1, for normals all round the sphere (poles included).
+    let mut normals = vec![Vec3::z(), -Vec3::z(), Vec3::x(), -Vec3::y()];
+    for k in 0..40 {
+        let a = f64::from(k) * 0.37;
+        let b = f64::from(k) * 0.23 - 4.0;
+        normals.push(Vec3::new(a.cos() * b.sin(), a.sin() * b.sin(), b.cos()));
+    }
+    for n in normals {
+        let r = levelling(n);
+        let rn = r * n;
+        assert_relative_eq!(rn, Vec3::z(), epsilon = 1e-14);
+        assert_relative_eq!(
+            r.transpose() * r,
+            nalgebra::Matrix3::identity(),
+            epsilon = 1e-14
+        );
+        assert_relative_eq!(r.determinant(), 1.0, epsilon = 1e-14);
+    }
+}

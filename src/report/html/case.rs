@@ -1,6 +1,7 @@
 //! One case's loads: the force and moment tables of the whole mesh and of each part, then
 //! the line of action, the centres of pressure and buoyancy, the moments about named axes
-//! and the flotation check.
+//! and the flotation check; for a floating case its equilibrium, stability and the chart
+//! of its righting-lever curve.
 //!
 //! Values are shown as the result document holds them, scaled for reading; nothing is
 //! recomputed.
@@ -10,12 +11,14 @@ use std::fmt::Write;
 use serde_json::Value;
 
 use super::format::{Scale, esc, f, num, point, show, v3};
+use crate::report::svg;
 use crate::report::units::Units;
 
 /// `contained`: the liquid is inside the mesh (a tank's contents), so the volume and its
 /// centroid are the liquid's, not a displaced volume and a centre of buoyancy.
 pub(super) fn case_block(
     s: &mut String,
+    mesh: &str,
     c: &Value,
     several_parts: bool,
     contained: bool,
@@ -168,4 +171,163 @@ pub(super) fn case_block(
         );
     }
     s.push_str("</dl>\n");
+    if c["floating"].is_object() {
+        floating_block(s, mesh, name, &c["floating"], u);
+    }
+}
+
+/// A floating case's equilibrium facts, stability summary, criteria (numbers only, no
+/// compliance implied) and the righting-lever chart, from the result's `floating`.
+fn floating_block(s: &mut String, mesh: &str, name: &str, fl: &Value, u: &Units) {
+    let (l, a) = (&u.length, &u.angle);
+    let _ = writeln!(s, "<h4>Floating freely · case {}</h4>", esc(name));
+    let e = &fl["equilibrium"];
+    s.push_str("<dl class=\"facts\">");
+    let _ = write!(
+        s,
+        "<dt>body</dt><dd>mass {}, centre of gravity {} {}, in {}, length axis {}</dd>",
+        show(u.mass, f(&fl["mass"])) + " " + u.mass.name,
+        v3(&fl["centre_of_gravity"]).map_or_else(|| "—".to_owned(), |p| point(u, p)),
+        l.name,
+        esc(fl["liquid"].as_str().unwrap_or("?")),
+        esc(fl["length_axis"].as_str().unwrap_or("?"))
+    );
+    if !e.is_object() {
+        let _ = write!(
+            s,
+            "<dt>equilibrium</dt><dd><span class=\"tag fail\">SINKS</span> the mass exceeds what the whole volume can carry by {} {}</dd></dl>",
+            show(u.mass, f(&fl["sinks"])),
+            u.mass.name
+        );
+        return;
+    }
+    let with =
+        |unit: crate::report::units::Unit, v: &Value| format!("{} {}", show(unit, f(v)), unit.name);
+    let _ = write!(
+        s,
+        "<dt>attitude</dt><dd>draft {}, heel {}, trim {}</dd><dt>displacement</dt><dd>{}; reserve buoyancy {}%</dd><dt>waterplane</dt><dd>area {}, centre of flotation {} {}</dd><dt>centre of buoyancy</dt><dd>{} {}</dd><dt>metacentric height</dt><dd>GM_T {}, GM_L {}{}</dd>",
+        with(*l, &e["draft"]),
+        with(*a, &e["heel"]),
+        if e["trim"].is_number() {
+            with(*a, &e["trim"])
+        } else {
+            "—".to_owned()
+        },
+        with(u.volume, &e["displacement"]),
+        f(&e["reserve_buoyancy"]).map_or_else(|| "—".to_owned(), |r| num(100.0 * r, 1)),
+        with(u.area, &e["waterplane_area"]),
+        v3(&e["centre_of_flotation"]).map_or_else(|| "—".to_owned(), |p| point(u, p)),
+        l.name,
+        v3(&e["centre_of_buoyancy"]).map_or_else(|| "—".to_owned(), |p| point(u, p)),
+        l.name,
+        with(*l, &e["metacentric_height"]["transverse"]),
+        with(*l, &e["metacentric_height"]["longitudinal"]),
+        if f(&fl["free_surface_moment"]).is_some_and(|m| m > 0.0) {
+            format!(
+                " (corrected for free surface {} and {})",
+                with(*l, &e["metacentric_height_corrected"]["transverse"]),
+                with(*l, &e["metacentric_height_corrected"]["longitudinal"])
+            )
+        } else {
+            String::new()
+        },
+    );
+    let st = &fl["stability"];
+    if st.is_object() {
+        let vanishing = if st["vanishing_angle"].is_number() {
+            with(*a, &st["vanishing_angle"])
+        } else {
+            "none up to 90°".to_owned()
+        };
+        let _ = write!(
+            s,
+            "<dt>righting lever</dt><dd>largest GZ {} at {}; vanishing angle {vanishing}; areas 0–30° {}, 0–40° {}, 30–40° {}</dd>",
+            with(*l, &st["max_gz"]),
+            with(*a, &st["angle_of_max_gz"]),
+            with(u.lever_area, &st["area_0_30"]),
+            with(u.lever_area, &st["area_0_40"]),
+            with(u.lever_area, &st["area_30_40"]),
+        );
+    }
+    s.push_str("</dl>\n");
+    if let Some(c) = fl["criteria"].as_object() {
+        let pass = c.get("pass").and_then(Value::as_bool) == Some(true);
+        let _ = writeln!(
+            s,
+            "<p><span class=\"tag {}\">{}</span> criteria \"{}\", as numbers only: <strong>no compliance implied</strong>. Source: {}.</p>",
+            if pass { "pass" } else { "fail" },
+            if pass { "PASS" } else { "FAIL" },
+            esc(c.get("name").and_then(Value::as_str).unwrap_or("?")),
+            esc(c.get("source").and_then(Value::as_str).unwrap_or("?"))
+        );
+        s.push_str("<table>\n<tr><th>criterion (units of its source)</th><th>required</th><th>found</th><th></th></tr>\n");
+        for k in c
+            .get("checks")
+            .and_then(Value::as_array)
+            .into_iter()
+            .flatten()
+        {
+            let ok = k["pass"].as_bool() == Some(true);
+            let _ = writeln!(
+                s,
+                "<tr><td>{}</td><td>{}</td><td>{}</td><td><span class=\"tag {}\">{}</span></td></tr>",
+                esc(k["what"].as_str().unwrap_or("?")),
+                f(&k["required"]).map_or_else(|| "—".to_owned(), |x| num(x, 4)),
+                f(&k["actual"]).map_or_else(|| "—".to_owned(), |x| num(x, 4)),
+                if ok { "pass" } else { "fail" },
+                if ok { "pass" } else { "FAIL" },
+            );
+        }
+        s.push_str("</table>\n");
+    }
+    if let Some(chart) = svg::stability_chart(mesh, name, fl, u) {
+        s.push_str("<figure>");
+        s.push_str(&String::from_utf8_lossy(&svg::render(&chart)));
+        s.push_str("<figcaption>Righting lever GZ at the listed heels, each at the displacement of the equilibrium with trim free; the dotted line is GM_T · φ, its slope at upright; shaded: the areas the criteria measure; dashed grey: the angle of the largest GZ and the vanishing angle on the 1° grid.</figcaption></figure>\n");
+    }
+    let _ = writeln!(
+        s,
+        "<p class=\"muted\">{}</p>",
+        esc(fl["caution"].as_str().unwrap_or(""))
+    );
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::units::UnitSystem;
+
+    #[test]
+    fn a_floating_case_has_its_equilibrium_criteria_and_curve_on_the_page() {
+        // Box 20 × 6 × 3 m, 150 t in sea water, G on the centre line: upright at
+        // T = m/(ρ L B) with GM_T = T/2 + B²/(12 T) − KG (closed forms).
+        let hull = shapes::box_solid([-10.0, -3.0, 0.0], [10.0, 3.0, 3.0], 1);
+        let side = crate::sidecar::parse_sidecar(
+            std::path::Path::new("b.json"),
+            r#"{"units": "m", "liquid": {"density": 1025},
+                "floating": {"mass": 150000, "centre_of_gravity": [0, 0, 1.8],
+                             "criteria": "imo-2008-is-code-general"}}"#,
+        )
+        .expect("valid");
+        let mesh = crate::mesh::Mesh::from_parts(vec![("b", hull)], crate::mesh::Format::Obj);
+        let r = crate::compute::compute("b.obj", &mesh, &side).expect("computes");
+        let doc = serde_json::to_value(&r).expect("serializes");
+        let mut s = String::new();
+        let u = Units::of(UnitSystem::Si);
+        case_block(&mut s, "b.obj", &doc["cases"][0], false, false, &u);
+        let t = 150_000.0 / (1025.0 * 120.0);
+        let gm = t / 2.0 + 36.0 / (12.0 * t) - 1.8;
+        for want in [
+            "Floating freely".to_owned(),
+            format!("draft {t:.3} m"),
+            format!("GM_T {gm:.3} m"),
+            "no compliance implied".to_owned(),
+            "Towing".to_owned(),
+        ] {
+            assert!(s.contains(&want), "{want} in {s}");
+        }
+        assert_eq!(s.matches("<svg").count(), 1, "the GZ chart");
+        // Six criteria of the preset, one row each.
+        assert_eq!(s.matches("<tr><td>").count(), 6, "{s}");
+    }
 }

@@ -122,6 +122,10 @@ pub(super) fn changes(s: &mut String, lines: &[&Value], u: &Units) {
             ("wetted_area", "wetted area", u.area),
             ("submerged_volume", "submerged volume", u.volume),
             ("flotation_factor", "flotation factor", factor),
+            ("draft", "draft", u.length),
+            ("heel", "heel", u.angle),
+            ("trim", "trim", u.angle),
+            ("gm_t", "GM_T", u.length),
         ] {
             if let Some(v) = f(&c[key]) {
                 rows.push(row(

@@ -115,7 +115,12 @@ pub(super) fn inputs(s: &mut String, r: &Value, u: &Units) {
                 "<tr><td>{}</td><td class=\"text\">{}</td><td>{}</td><td class=\"text\">{}</td><td>{}</td></tr>",
                 esc(c["name"].as_str().unwrap_or("?")),
                 esc(l["name"].as_str().unwrap_or("?")),
-                elevation(u, f(&l["level"])),
+                // A floating body's liquid: its free surface is solved, not given.
+                if c["floating"]["liquid"] == l["name"] {
+                    "solved (floating)".to_owned()
+                } else {
+                    elevation(u, f(&l["level"]))
+                },
                 esc(&layers.join("; ")),
                 show(u.pressure, f(&l["surface_pressure"])),
             );

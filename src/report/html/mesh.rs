@@ -115,7 +115,7 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: 
     let several_parts = parts.len() > 1;
     let contained = !parts.is_empty() && parts.iter().all(|p| p["wet_side"] == "inside");
     for (i, c) in r["cases"].as_array().into_iter().flatten().enumerate() {
-        case_block(s, c, several_parts, contained, u);
+        case_block(s, &m.mesh, c, several_parts, contained, u);
         let view = m.views.get(i).and_then(Option::as_ref);
         view3d::view_block(s, &format!("{}-view-{i}", anchor(&m.stem)), view, u);
     }
