@@ -38,7 +38,7 @@ fn browser(args: &[&str], page: &Path) -> Vec<u8> {
             "--disable-gpu",
             "--no-sandbox",
             "--hide-scrollbars",
-            "--window-size=1200,2600",
+            "--window-size=1200,5000",
         ])
         .args(args)
         .arg(format!("file://{}", page.display()))
