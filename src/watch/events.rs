@@ -13,6 +13,14 @@ use std::time::Instant;
 use notify::event::{AccessKind, AccessMode, EventKind, MetadataKind, ModifyKind, RenameMode};
 
 use super::{Signal, Touch, Watch, complete, file_name, is_temp_name, scan};
+
+/// How long a renamed-in OBJ waits before it is computed (see [`Signal::Settle`]).
+pub(super) const OBJ_SETTLE: std::time::Duration = std::time::Duration::from_millis(40);
+
+/// Whether `p` names an OBJ.
+fn is_obj(p: &Path) -> bool {
+    p.extension().is_some_and(|e| e.eq_ignore_ascii_case("obj"))
+}
 use crate::pipeline::{self, outputs};
 use crate::results;
 
@@ -187,14 +195,24 @@ impl Watch<'_> {
                 let target = renamed_in || closed;
                 for m in self.meshes_for(p) {
                     let whole = target && self.save_is_whole(p, &m, renamed_in);
+                    // What the completed save left, to compare with when it is released.
+                    if whole {
+                        let state = self.save_state(&m);
+                        self.completed.insert(m.clone(), state);
+                    } else {
+                        self.completed.remove(&m);
+                    }
+                    // An OBJ is whole by its writer's word only: a short settle lets
+                    // the events of a write that began at once arrive first.
+                    let signal = match (whole, renamed_in && is_obj(&m)) {
+                        (false, _) => Signal::Progress,
+                        (true, true) => Signal::Settle(OBJ_SETTLE),
+                        (true, false) => Signal::Complete,
+                    };
                     out.push(Touch {
                         path: m,
                         at,
-                        signal: if whole {
-                            Signal::Complete
-                        } else {
-                            Signal::Progress
-                        },
+                        signal,
                     });
                 }
             }

@@ -139,7 +139,15 @@ struct Watch<'a> {
     write_retry: Vec<PathBuf>,
     /// The last note about the folder's page, so an identical one is not repeated.
     page_note: Option<String>,
+    /// Meshes whose last event completed a save: the mesh's and sidecar's size and
+    /// modification time then. A mesh released for it is computed only if both are still
+    /// so; a write that began after the completion, its events not yet read, sends it back
+    /// to the quiet window instead.
+    completed: BTreeMap<PathBuf, SaveState>,
 }
+
+/// The size and modification time of a mesh and of its sidecar (`None` where missing).
+type SaveState = [Option<(u64, Option<SystemTime>)>; 2];
 
 /// Device and inode of a file or folder.
 fn identity(meta: &fs::Metadata) -> Option<(u64, u64)> {
@@ -195,6 +203,7 @@ pub fn run(
         out,
         write_retry: Vec::new(),
         page_note: None,
+        completed: BTreeMap::new(),
     };
     for note in &recovered.notes {
         w.say(&format!("note: {note}\n"));
@@ -273,6 +282,13 @@ pub fn run(
             }
         }
         if let Some(mesh) = schedule.next_due(unread.drain(..), Instant::now()) {
+            if let Some(then) = w.completed.remove(&mesh)
+                && (then != w.save_state(&mesh) || !w.still_whole(&mesh))
+            {
+                // Written again since its save completed: wait for the new save.
+                schedule.touch(mesh, Instant::now());
+                continue;
+            }
             w.process(&mesh, Some(&mut schedule))?;
             page_due = true;
             continue;
@@ -357,6 +373,24 @@ fn fingerprint(p: &Path) -> Option<(u64, Option<SystemTime>)> {
 }
 
 impl Watch<'_> {
+    /// Whether an STL released for a completed save is still whole by its format (a write
+    /// that began after the completion, its events not yet read, makes it not); an OBJ has
+    /// no end marker and counts as whole.
+    fn still_whole(&self, mesh: &Path) -> bool {
+        let stl = mesh
+            .extension()
+            .is_some_and(|e| e.eq_ignore_ascii_case("stl"));
+        !stl || complete::whole(mesh)
+    }
+
+    /// The size and modification time of `mesh` and of its sidecar, now.
+    fn save_state(&self, mesh: &Path) -> SaveState {
+        [
+            fingerprint(mesh),
+            fingerprint(&pipeline::sidecar_path(mesh)),
+        ]
+    }
+
     /// `text` with the watched folder's own path left out of the paths it names, so that
     /// files are named as `calc` run in the folder names them (`gate.json`,
     /// `results/gate.json`), not by the canonical path the watcher holds.

@@ -30,6 +30,10 @@ pub enum Signal {
     /// into place, and the content passed its format's completeness check (see
     /// `watch::complete`). The path is due at once unless another event follows.
     Complete,
+    /// A save is complete by its writer's word alone (an OBJ renamed into place: no end
+    /// marker to check): due after this short settle unless another event follows, so
+    /// that the events of a write that began at once are read first.
+    Settle(Duration),
 }
 
 /// One event as the schedule takes it: a path, when the event arrived, what it says.
@@ -51,11 +55,12 @@ impl Touch {
     }
 }
 
-/// A pending path: its last event, and whether that event completed a save.
+/// A pending path: its last event, and when a completed save makes it due (`None`: only
+/// the quiet window does).
 #[derive(Clone, Copy, Debug)]
 struct Pending {
     last: Instant,
-    complete: bool,
+    ready: Option<Instant>,
 }
 
 /// Pending paths and the instant each was last touched.
@@ -79,20 +84,24 @@ impl Schedule {
     /// event waits for the quiet window again, and an event older than the latest one
     /// (instants can arrive out of order) only keeps the window from shortening.
     pub fn feed(&mut self, touch: Touch) {
-        let complete = touch.signal == Signal::Complete;
+        let ready = match touch.signal {
+            Signal::Progress => None,
+            Signal::Complete => Some(touch.at),
+            Signal::Settle(d) => Some(touch.at + d),
+        };
         match self.pending.get_mut(&touch.path) {
             None => {
                 self.pending.insert(
                     touch.path,
                     Pending {
                         last: touch.at,
-                        complete,
+                        ready,
                     },
                 );
             }
             Some(p) if touch.at >= p.last => {
                 p.last = touch.at;
-                p.complete = complete;
+                p.ready = ready;
             }
             Some(_) => {}
         }
@@ -123,7 +132,9 @@ impl Schedule {
         let due = self
             .pending
             .iter()
-            .find(|(_, p)| p.complete || now.saturating_duration_since(p.last) >= quiet)
+            .find(|(_, p)| {
+                p.ready.is_some_and(|r| now >= r) || now.saturating_duration_since(p.last) >= quiet
+            })
             .map(|(path, _)| path.clone())?;
         self.pending.remove(&due);
         Some(due)
@@ -134,11 +145,9 @@ impl Schedule {
         self.pending
             .values()
             .map(|p| {
-                if p.complete {
-                    Duration::ZERO
-                } else {
-                    (p.last + self.quiet).saturating_duration_since(now)
-                }
+                let quiet = (p.last + self.quiet).saturating_duration_since(now);
+                p.ready
+                    .map_or(quiet, |r| r.saturating_duration_since(now).min(quiet))
             })
             .min()
     }
@@ -265,5 +274,27 @@ mod tests {
         // Nothing pending: nothing to wait for.
         assert_eq!(s.next_due([], t0 + ms(600)), Some(PathBuf::from("c.stl")));
         assert!(s.is_empty() && s.next_in(t0).is_none());
+    }
+
+    #[test]
+    fn a_save_complete_by_its_writers_word_waits_a_short_settle() {
+        let t0 = Instant::now();
+        let mut s = Schedule::new(ms(500));
+        let settle = |path: &str, at: Instant| Touch {
+            path: PathBuf::from(path),
+            at,
+            signal: Signal::Settle(ms(40)),
+        };
+        s.feed(settle("a.obj", t0));
+        assert_eq!(s.next_due([], t0 + ms(39)), None);
+        assert_eq!(s.next_in(t0 + ms(10)), Some(ms(30)));
+        assert_eq!(s.next_due([], t0 + ms(40)), Some(PathBuf::from("a.obj")));
+        // A write read during the settle sends it back to the quiet window.
+        s.feed(settle("b.obj", t0));
+        assert_eq!(
+            s.next_due([progress("b.obj", t0 + ms(20))], t0 + ms(60)),
+            None
+        );
+        assert_eq!(s.next_due([], t0 + ms(520)), Some(PathBuf::from("b.obj")));
     }
 }

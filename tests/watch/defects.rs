@@ -75,6 +75,70 @@ fn csv_force_z(text: &str) -> f64 {
         .sum()
 }
 
+// 2b -----------------------------------------------------------------------------------
+#[test]
+fn a_save_completed_before_a_new_write_began_is_not_computed_from_the_new_write() {
+    // While a slow mesh computes, b.obj is renamed into place (a complete save) and at once
+    // rewritten in place, a closed group at a time: the rename's completion is read only
+    // after the slow computation, when the file already holds part of the next save. It
+    // must not be computed from that part.
+    let dir = folder(&[("b", 1.0, 0.5)]);
+    let p = dir.path();
+    let cases: Vec<Value> = (0..8)
+        .map(|k| serde_json::json!({"name": format!("c{k}"), "level": 0.01 * f64::from(k)}))
+        .collect();
+    let slow =
+        serde_json::json!({"units": "m", "liquid": {"level": 0.5, "density": RHO}, "cases": cases});
+    fs::write(p.join("big.json"), slow.to_string()).expect("sidecar");
+    fs::write(p.join("big.stl"), box_stl(1.0)).expect("small first");
+    fs::remove_file(p.join("b.stl")).expect("no stl");
+    fs::write(p.join("b.obj"), obj_box_group(0, 1.0)).expect("obj");
+    let w = Watcher::start(p);
+    let big_done = |n: usize| events(&log(p), "big.stl", "computed").len() >= n;
+    w.wait_for("big's first result", || big_done(1).then_some(()));
+    let before = log(p).len();
+
+    save_by_rename(&p.join("big.stl"), &box_stl_cells(0.75, 130));
+    thread::sleep(Duration::from_millis(100));
+    // The complete save: two boxes.
+    let two: String = (0..2).map(|i| obj_box_group(i, 1.0)).collect();
+    save_by_rename(&p.join("b.obj"), two.as_bytes());
+    // At once, the next save in place, one group every 60 ms, until big is done and three
+    // groups more.
+    let mut f = OpenOptions::new()
+        .write(true)
+        .truncate(true)
+        .open(p.join("b.obj"))
+        .expect("open b.obj");
+    let mut groups = 0;
+    let mut after_big = None;
+    while after_big.is_none_or(|n| groups < n + 3) && groups < 200 {
+        f.write_all(obj_box_group(groups, 1.0).as_bytes())
+            .expect("write");
+        f.flush().expect("flush");
+        groups += 1;
+        if after_big.is_none() && big_done(2) {
+            after_big = Some(groups);
+        }
+        thread::sleep(Duration::from_millis(60));
+    }
+    drop(f);
+    let (fz, _) = boxes_force_and_volume(groups, 1.0, 0.5);
+    w.wait_for("b.obj's result for the whole file", || {
+        result(p, "b").filter(|d| force_z(d).is_some_and(|f| near(f, fz)))
+    });
+    settle();
+    let (two_fz, _) = boxes_force_and_volume(2, 1.0, 0.5);
+    for l in events(&check_log(p)[before..], "b.obj", "computed") {
+        let got = l["cases"][0]["force"][2].as_f64().unwrap_or(f64::NAN);
+        assert!(
+            near(got, fz) || near(got, two_fz),
+            "b.obj was computed from a save in progress ({} boxes): {l}",
+            (got / boxes_force_and_volume(1, 1.0, 0.5).0).round()
+        );
+    }
+}
+
 // 1 ------------------------------------------------------------------------------------
 
 #[test]
