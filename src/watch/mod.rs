@@ -144,6 +144,8 @@ struct Watch<'a> {
     /// so; a write that began after the completion, its events not yet read, sends it back
     /// to the quiet window instead.
     completed: BTreeMap<PathBuf, SaveState>,
+    /// The arrival of the last event of the path being processed (`None` in the first pass).
+    released_last: Option<Instant>,
 }
 
 /// The size and modification time of a mesh and of its sidecar (`None` where missing).
@@ -204,6 +206,7 @@ pub fn run(
         write_retry: Vec::new(),
         page_note: None,
         completed: BTreeMap::new(),
+        released_last: None,
     };
     for note in &recovered.notes {
         w.say(&format!("note: {note}\n"));
@@ -281,7 +284,8 @@ pub fn run(
                 Err(mpsc::TryRecvError::Disconnected) => return Ok(Outcome { failures: 0 }),
             }
         }
-        if let Some(mesh) = schedule.next_due(unread.drain(..), Instant::now()) {
+        if let Some((mesh, last)) = schedule.next_due_since(unread.drain(..), Instant::now()) {
+            w.released_last = Some(last);
             if let Some(then) = w.completed.remove(&mesh)
                 && (then != w.save_state(&mesh) || !w.still_whole(&mesh))
             {
@@ -497,6 +501,13 @@ impl Watch<'_> {
             return self.failed(mesh, &name, &e, None);
         }
         let before = fingerprint(mesh);
+        let read_at = Instant::now();
+        let previous_read = self
+            .meshes
+            .entry(mesh.to_owned())
+            .or_default()
+            .read_at
+            .replace(read_at);
         let inputs = match pipeline::read_inputs(mesh) {
             Ok(i) => i,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
@@ -532,6 +543,14 @@ impl Watch<'_> {
                 let st = self.meshes.entry(mesh.to_owned()).or_default();
                 let iteration = st.lin.iteration;
                 st.retries = 0;
+                // Released for events that arrived before the last read began (a sidecar
+                // and its mesh saved together each complete the save): that read saw
+                // this content, so there is nothing new to say or log.
+                if let (Some(read), Some(last)) = (previous_read, self.released_last)
+                    && last <= read
+                {
+                    return Ok(true);
+                }
                 self.append(json!({
                     "time": now_rfc3339(), "mesh": name, "event": "unchanged",
                     "iteration": iteration, "mesh_hash": hashes.0, "sidecar_hash": hashes.1,

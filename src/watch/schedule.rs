@@ -125,6 +125,15 @@ impl Schedule {
         unread: impl IntoIterator<Item = Touch>,
         now: Instant,
     ) -> Option<PathBuf> {
+        self.next_due_since(unread, now).map(|(path, _)| path)
+    }
+
+    /// [`Schedule::next_due`], with the instant of the path's last event.
+    pub fn next_due_since(
+        &mut self,
+        unread: impl IntoIterator<Item = Touch>,
+        now: Instant,
+    ) -> Option<(PathBuf, Instant)> {
         for touch in unread {
             self.feed(touch);
         }
@@ -136,8 +145,8 @@ impl Schedule {
                 p.ready.is_some_and(|r| now >= r) || now.saturating_duration_since(p.last) >= quiet
             })
             .map(|(path, _)| path.clone())?;
-        self.pending.remove(&due);
-        Some(due)
+        let p = self.pending.remove(&due)?;
+        Some((due, p.last))
     }
 
     /// How long until the next path falls due (`None` when nothing is pending).

@@ -16,6 +16,9 @@ pub(super) struct MeshState {
     pub retries: u32,
     /// The last result could not be written; it is being retried (reported once).
     pub write_failing: bool,
+    /// When this watcher last began to read the mesh and its sidecar: events that arrived
+    /// before then describe content that read already saw.
+    pub read_at: Option<std::time::Instant>,
 }
 
 /// Rebuilds a mesh's lineage from a line of the change log (`dir`: the watched folder),
