@@ -1,7 +1,8 @@
 //! `wetload compare MESH A B`: two iterations side by side. Loads come from the change
-//! log's lines (exactly the figures logged when each was computed); geometry from each
-//! iteration's mesh in the snapshot store (facets, surface area, volume, bounding box, per
-//! part), in metres by the units of that iteration's sidecar.
+//! log's lines (exactly the figures logged when each was computed); the loads of each part
+//! (a mesh of several parts) and the geometry (facets, surface area, volume, bounding box,
+//! per part, in metres by the units of that iteration's sidecar) from each iteration's
+//! exact inputs in the snapshot store, computed again.
 
 use std::fmt::Write as _;
 
@@ -86,6 +87,81 @@ fn case_entry(name: &str, from: Option<&Value>, to: Option<&Value>) -> Value {
     json!({"name": name, "from": f, "to": t, "change": ch, "percent": pc})
 }
 
+/// Per case, the loads of every part of a computed line's iteration, computed again from
+/// its exact inputs in the snapshot store (the change log holds figures per case only):
+/// case name → [(part, {force, moment, uplift, downthrust, wetted_area, submerged_volume})].
+/// Empty when the inputs are no longer there or do not compute.
+fn part_loads(h: &History, line: &Value) -> Vec<(String, Vec<(String, Value)>)> {
+    let Ok((mesh_bytes, side_bytes)) = h.inputs(line) else {
+        return Vec::new();
+    };
+    let name = line["mesh"].as_str().unwrap_or_default();
+    let path = h.mesh.with_file_name(name);
+    let side_path = crate::pipeline::sidecar_path(&path);
+    let Ok(text) = String::from_utf8(side_bytes) else {
+        return Vec::new();
+    };
+    let (Ok(sidecar), Ok(mesh)) = (
+        crate::sidecar::parse_sidecar(&side_path, &text),
+        crate::mesh::read_mesh(&path, &mesh_bytes),
+    ) else {
+        return Vec::new();
+    };
+    let Ok(result) = crate::compute::compute(name, &mesh, &sidecar) else {
+        return Vec::new();
+    };
+    result
+        .cases
+        .iter()
+        .map(|c| {
+            let parts = c
+                .parts
+                .iter()
+                .map(|p| {
+                    let v = serde_json::to_value(p).unwrap_or(Value::Null);
+                    let m: Map<String, Value> = QUANTITIES
+                        .iter()
+                        .map(|q| ((*q).to_owned(), v[*q].clone()))
+                        .collect();
+                    (p.name.clone(), Value::Object(m))
+                })
+                .collect();
+            (c.name.clone(), parts)
+        })
+        .collect()
+}
+
+/// The parts' entries of case `name` (as [`case_entry`] makes them), for the parts of
+/// either iteration; none for a mesh of one part.
+fn part_entries(
+    name: &str,
+    from: &[(String, Vec<(String, Value)>)],
+    to: &[(String, Vec<(String, Value)>)],
+) -> Vec<Value> {
+    let of = |all: &[(String, Vec<(String, Value)>)]| {
+        all.iter()
+            .find(|(c, _)| c == name)
+            .map(|(_, p)| p.clone())
+            .unwrap_or_default()
+    };
+    let (f, t) = (of(from), of(to));
+    let mut names: Vec<&String> = t.iter().map(|(n, _)| n).collect();
+    for (n, _) in &f {
+        if !names.contains(&n) {
+            names.push(n);
+        }
+    }
+    if names.len() < 2 {
+        return Vec::new();
+    }
+    let find =
+        |ps: &[(String, Value)], n: &str| ps.iter().find(|(p, _)| p == n).map(|(_, v)| v.clone());
+    names
+        .iter()
+        .map(|n| case_entry(n, find(&f, n).as_ref(), find(&t, n).as_ref()))
+        .collect()
+}
+
 /// The geometry of a computed line's mesh from the snapshot store, or null with the
 /// reason when its inputs are no longer there.
 fn geometry(h: &History, line: &Value) -> Value {
@@ -149,9 +225,17 @@ pub fn compare(h: &History, a: &str, b: &str) -> Result<Value, HistoryError> {
             names.push(n.to_owned());
         }
     }
+    let (fp, tp) = (part_loads(h, from), part_loads(h, to));
     let cases: Vec<Value> = names
         .iter()
-        .map(|n| case_entry(n, find(&fc, n).as_ref(), find(&tc, n).as_ref()))
+        .map(|n| {
+            let mut entry = case_entry(n, find(&fc, n).as_ref(), find(&tc, n).as_ref());
+            let parts = part_entries(n, &fp, &tp);
+            if !parts.is_empty() {
+                entry["parts"] = Value::Array(parts);
+            }
+            entry
+        })
         .collect();
     Ok(json!({
         "mesh": from["mesh"],
@@ -275,6 +359,23 @@ pub fn render(doc: &Value, system: UnitSystem) -> String {
             &t["submerged_volume"],
             &u.volume,
         );
+        for p in c["parts"].as_array().into_iter().flatten() {
+            let _ = writeln!(s, "   part {}", p["name"].as_str().unwrap_or(""));
+            let (pf, pt) = (&p["from"], &p["to"]);
+            if pf.is_null() || pt.is_null() {
+                let _ = writeln!(s, "    in one iteration only");
+                continue;
+            }
+            vector_rows(&mut s, "F", &pf["force"], &pt["force"], &u.force);
+            row(&mut s, "uplift", &pf["uplift"], &pt["uplift"], &u.force);
+            row(
+                &mut s,
+                "wetted area",
+                &pf["wetted_area"],
+                &pt["wetted_area"],
+                &u.area,
+            );
+        }
     }
     let (gf, gt) = (&doc["geometry"]["from"], &doc["geometry"]["to"]);
     let _ = writeln!(s, "  geometry");

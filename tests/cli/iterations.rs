@@ -623,3 +623,69 @@ fn check_judges_a_mesh_with_its_sidecar() {
     let ok = Run::from(f.wetload().args(["check", "plate.stl", "--json"]).output());
     assert_eq!(ok.stdout_json()["with_sidecar"]["accepted"], true);
 }
+
+#[test]
+fn compare_gives_the_loads_of_every_part_as_the_difference_of_the_two_results() {
+    let f = Folder::new();
+    // Two parts: a wall faced by headwater and one faced by tailwater.
+    let skin = shapes::rectangle([0.0, 0.0, 0.0], [0.0, 2.0, 0.0], [0.0, 0.0, 3.0], 2, 3);
+    let back = shapes::translate(&skin, [0.3, 0.0, 0.0]);
+    f.write(
+        "leaf.obj",
+        encode::obj(&[
+            ("up", &skin[..]),
+            ("down", &shapes::reverse_winding(&back)[..]),
+        ]),
+    );
+    let side = |head: f64| {
+        format!(
+            r#"{{"units": "m",
+                "liquids": {{"head": {{"level": {head}, "density": 1000}}, "tail": {{"level": 0.8, "density": 1000}}}},
+                "parts": {{"up": {{"liquid": "head", "wet_side": "front"}}, "down": {{"liquid": "tail", "wet_side": "front"}}}}}}"#
+        )
+    };
+    f.write("leaf.json", side(2.2));
+    let first = f.calc(&["leaf.obj", "--json"]).stdout_json();
+    f.write("leaf.json", side(2.6));
+    let second = f.calc(&["leaf.obj", "--json"]).stdout_json();
+    let run = Run::from(
+        f.wetload()
+            .args(["compare", "leaf.obj", "baseline", "latest", "--json"])
+            .output(),
+    );
+    run.expect_code(0);
+    let doc = run.stdout_json();
+    let parts = doc["cases"][0]["parts"].as_array().expect("parts");
+    assert_eq!(parts.len(), 2);
+    for p in parts {
+        let name = p["name"].as_str().expect("name");
+        let of = |r: &serde_json::Value| {
+            r["cases"][0]["parts"]
+                .as_array()
+                .expect("parts")
+                .iter()
+                .find(|q| q["name"] == name)
+                .cloned()
+                .expect("the part")
+        };
+        let (r1, r2) = (of(&first), of(&second));
+        for q in ["force", "moment", "uplift", "wetted_area"] {
+            assert_eq!(p["from"][q], r1[q], "{name} {q}");
+            assert_eq!(p["to"][q], r2[q], "{name} {q}");
+            assert_eq!(p["change"][q], minus(&r2[q], &r1[q]), "{name} {q}");
+        }
+    }
+    // Only the headwater's part changed.
+    let down = parts.iter().find(|p| p["name"] == "down").expect("down");
+    assert_eq!(down["change"]["force"], serde_json::json!([0.0, 0.0, 0.0]));
+    let text = Run::from(
+        f.wetload()
+            .args(["compare", "leaf.obj", "baseline", "latest"])
+            .output(),
+    );
+    assert!(
+        text.stdout.contains("   part up") && text.stdout.contains("   part down"),
+        "{}",
+        text.stdout
+    );
+}
