@@ -34,7 +34,7 @@ pub enum Command {
     /// change and percentage, and the geometry (facets, area, volume, bounding box, per
     /// part) of each iteration's mesh.
     Compare(CompareArgs),
-    /// Write a starter sidecar <stem>.json for a mesh, from what the mesh shows (closed or
+    /// Write a starter sidecar `<stem>.json` for a mesh, from what the mesh shows (closed or
     /// open, extent, parts), and say what each value is and what to edit. Never
     /// overwrites a sidecar; needs --units (without it, says what the extent suggests).
     Init(InitArgs),
@@ -78,7 +78,7 @@ pub struct CompareArgs {
 
 #[derive(Debug, clap::Args)]
 pub struct InitArgs {
-    /// The mesh file; the sidecar is written beside it as <stem>.json.
+    /// The mesh file; the sidecar is written beside it as `<stem>.json`.
     #[arg(value_name = "MESH")]
     pub mesh: PathBuf,
     /// Length unit of the mesh's coordinates: m, cm, mm, in or ft. Required to write
