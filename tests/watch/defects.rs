@@ -17,39 +17,21 @@ use serde_json::Value;
 
 use crate::support::*;
 
-/// One closed box `[3i, 3i + 2] × [0, 1] × [0, h]` m as an OBJ group of its own (vertices
-/// addressed relatively, so every group is a complete OBJ fragment), outward winding.
-fn obj_box_group(i: usize, h: f64) -> String {
-    let x0 = 3.0 * i as f64;
-    let x1 = x0 + BOX_X;
-    let mut s = format!("g part{i}\n");
-    for (x, y, z) in [
-        (x0, 0.0, 0.0),
-        (x1, 0.0, 0.0),
-        (x1, BOX_Y, 0.0),
-        (x0, BOX_Y, 0.0),
-        (x0, 0.0, h),
-        (x1, 0.0, h),
-        (x1, BOX_Y, h),
-        (x0, BOX_Y, h),
-    ] {
-        s.push_str(&format!("v {x} {y} {z}\n"));
-    }
-    // Corners 1..8 of this group as -8..-1.
-    let quads = [
-        [1, 4, 3, 2], // bottom, normal −z
-        [5, 6, 7, 8], // top, +z
-        [1, 2, 6, 5], // y = 0, −y
-        [3, 4, 8, 7], // y = 1, +y
-        [1, 5, 8, 4], // x = x0, −x
-        [2, 3, 7, 6], // x = x1, +x
-    ];
-    for q in quads {
-        let r = |k: i32| k - 9;
-        s.push_str(&format!("f {} {} {}\n", r(q[0]), r(q[1]), r(q[2])));
-        s.push_str(&format!("f {} {} {}\n", r(q[0]), r(q[2]), r(q[3])));
-    }
-    s
+/// A folder with `big.stl`, whose sidecar has 8 load cases (so that a 200k-facet save of
+/// it computes for a while), and `b.obj`, one box.
+fn busy_folder() -> tempfile::TempDir {
+    let dir = folder(&[("b", 1.0, 0.5)]);
+    let p = dir.path();
+    let cases: Vec<Value> = (0..8)
+        .map(|k| serde_json::json!({"name": format!("c{k}"), "level": 0.01 * f64::from(k)}))
+        .collect();
+    let slow =
+        serde_json::json!({"units": "m", "liquid": {"level": 0.5, "density": RHO}, "cases": cases});
+    fs::write(p.join("big.json"), slow.to_string()).expect("sidecar");
+    fs::write(p.join("big.stl"), box_stl(1.0)).expect("small first");
+    fs::remove_file(p.join("b.stl")).expect("no stl");
+    fs::write(p.join("b.obj"), obj_box_group(0, 1.0)).expect("obj");
+    dir
 }
 
 /// Closed form for `n` such boxes of height `h` in liquid up to `level`: submerged volume
@@ -82,17 +64,8 @@ fn a_save_completed_before_a_new_write_began_is_not_computed_from_the_new_write(
     // rewritten in place, a closed group at a time: the rename's completion is read only
     // after the slow computation, when the file already holds part of the next save. It
     // must not be computed from that part.
-    let dir = folder(&[("b", 1.0, 0.5)]);
+    let dir = busy_folder();
     let p = dir.path();
-    let cases: Vec<Value> = (0..8)
-        .map(|k| serde_json::json!({"name": format!("c{k}"), "level": 0.01 * f64::from(k)}))
-        .collect();
-    let slow =
-        serde_json::json!({"units": "m", "liquid": {"level": 0.5, "density": RHO}, "cases": cases});
-    fs::write(p.join("big.json"), slow.to_string()).expect("sidecar");
-    fs::write(p.join("big.stl"), box_stl(1.0)).expect("small first");
-    fs::remove_file(p.join("b.stl")).expect("no stl");
-    fs::write(p.join("b.obj"), obj_box_group(0, 1.0)).expect("obj");
     let w = Watcher::start(p);
     let big_done = |n: usize| events(&log(p), "big.stl", "computed").len() >= n;
     w.wait_for("big's first result", || big_done(1).then_some(()));
@@ -162,18 +135,8 @@ fn a_save_is_recomputed_when_polling() {
 
 #[test]
 fn a_file_written_while_another_computes_is_never_published_half_written() {
-    let dir = folder(&[("b", 1.0, 0.5)]);
+    let dir = busy_folder();
     let p = dir.path();
-    // The slow mesh: about 200k facets in 8 load cases.
-    let cases: Vec<Value> = (0..8)
-        .map(|k| serde_json::json!({"name": format!("c{k}"), "level": 0.01 * f64::from(k)}))
-        .collect();
-    let slow =
-        serde_json::json!({"units": "m", "liquid": {"level": 0.5, "density": RHO}, "cases": cases});
-    fs::write(p.join("big.json"), slow.to_string()).expect("sidecar");
-    fs::write(p.join("big.stl"), box_stl(1.0)).expect("small first");
-    fs::remove_file(p.join("b.stl")).expect("no stl");
-    fs::write(p.join("b.obj"), obj_box_group(0, 1.0)).expect("obj");
     let w = Watcher::start(p);
     let big_done = |n: usize| events(&log(p), "big.stl", "computed").len() >= n;
     w.wait_for("big's first result", || big_done(1).then_some(()));

@@ -81,39 +81,7 @@ fn same(a: [f64; 4], b: [f64; 4]) -> bool {
 fn obj_text(c: MeshContent) -> String {
     let mut s = String::new();
     for i in 0..c.n {
-        s.push_str(&obj_group(i, c.h));
-    }
-    s
-}
-
-/// Box `i` as an OBJ group of its own with relative indices (see `defects.rs`).
-fn obj_group(i: usize, h: f64) -> String {
-    let x0 = 3.0 * i as f64;
-    let x1 = x0 + BOX_X;
-    let mut s = format!("g box{i}\n");
-    for (x, y, z) in [
-        (x0, 0.0, 0.0),
-        (x1, 0.0, 0.0),
-        (x1, BOX_Y, 0.0),
-        (x0, BOX_Y, 0.0),
-        (x0, 0.0, h),
-        (x1, 0.0, h),
-        (x1, BOX_Y, h),
-        (x0, BOX_Y, h),
-    ] {
-        s.push_str(&format!("v {x} {y} {z}\n"));
-    }
-    for q in [
-        [1, 4, 3, 2],
-        [5, 6, 7, 8],
-        [1, 2, 6, 5],
-        [3, 4, 8, 7],
-        [1, 5, 8, 4],
-        [2, 3, 7, 6],
-    ] {
-        let r = |k: i32| k - 9;
-        s.push_str(&format!("f {} {} {}\n", r(q[0]), r(q[1]), r(q[2])));
-        s.push_str(&format!("f {} {} {}\n", r(q[0]), r(q[2]), r(q[3])));
+        s.push_str(&obj_box_group(i, c.h));
     }
     s
 }

@@ -178,6 +178,41 @@ pub fn box_stl_cells(height: f64, cells: usize) -> Vec<u8> {
     shapes::encode::stl_binary(&tris, "wetload watch test box")
 }
 
+/// One closed box `[3i, 3i + 2] × [0, 1] × [0, h]` m as an OBJ group of its own (vertices
+/// addressed relatively, so every group is a complete OBJ fragment), outward winding.
+pub fn obj_box_group(i: usize, h: f64) -> String {
+    let x0 = 3.0 * i as f64;
+    let x1 = x0 + BOX_X;
+    let mut s = format!("g part{i}\n");
+    for (x, y, z) in [
+        (x0, 0.0, 0.0),
+        (x1, 0.0, 0.0),
+        (x1, BOX_Y, 0.0),
+        (x0, BOX_Y, 0.0),
+        (x0, 0.0, h),
+        (x1, 0.0, h),
+        (x1, BOX_Y, h),
+        (x0, BOX_Y, h),
+    ] {
+        s.push_str(&format!("v {x} {y} {z}\n"));
+    }
+    // Corners 1..8 of this group as -8..-1.
+    let quads = [
+        [1, 4, 3, 2], // bottom, normal −z
+        [5, 6, 7, 8], // top, +z
+        [1, 2, 6, 5], // y = 0, −y
+        [3, 4, 8, 7], // y = 1, +y
+        [1, 5, 8, 4], // x = x0, −x
+        [2, 3, 7, 6], // x = x1, +x
+    ];
+    for q in quads {
+        let r = |k: i32| k - 9;
+        s.push_str(&format!("f {} {} {}\n", r(q[0]), r(q[1]), r(q[2])));
+        s.push_str(&format!("f {} {} {}\n", r(q[0]), r(q[2]), r(q[3])));
+    }
+    s
+}
+
 /// A sidecar: metres, one liquid of 1000 kg/m³ with its free surface at `level`.
 pub fn sidecar(level: f64) -> String {
     serde_json::json!({"units": "m", "liquid": {"level": level, "density": RHO}}).to_string()
