@@ -105,6 +105,29 @@ impl UpAxis {
         }
     }
 
+    /// The axis named by its keyword (`"+z"` …, as [`UpAxis::as_str`] writes it).
+    pub fn from_keyword(keyword: &str) -> Option<UpAxis> {
+        [
+            UpAxis::PosX,
+            UpAxis::NegX,
+            UpAxis::PosY,
+            UpAxis::NegY,
+            UpAxis::PosZ,
+            UpAxis::NegZ,
+        ]
+        .into_iter()
+        .find(|a| a.as_str() == keyword)
+    }
+
+    /// The index (0, 1, 2 for x, y, z) of the mesh axis along up.
+    pub fn index(self) -> usize {
+        match self {
+            UpAxis::PosX | UpAxis::NegX => 0,
+            UpAxis::PosY | UpAxis::NegY => 1,
+            UpAxis::PosZ | UpAxis::NegZ => 2,
+        }
+    }
+
     /// The unit vector of the up direction in mesh axes.
     pub fn unit(self) -> Vec3 {
         match self {

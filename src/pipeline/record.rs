@@ -20,6 +20,7 @@ pub fn headline(c: &CaseResult) -> Value {
         "name": c.name,
         "force": l.force,
         "moment": l.moment,
+        "horizontal_force": l.horizontal_force,
         "vertical_force": l.vertical_force,
         "uplift": l.uplift,
         "downthrust": l.downthrust,
@@ -201,22 +202,8 @@ pub fn block(
         let l = &c.loads;
         let norm = |v: [f64; 3]| v[0].hypot(v[1]).hypot(v[2]);
         let change = &line["change"];
-        // The force of the previous iteration, from the change of its components.
-        let old_force = change["force"]
-            .as_array()
-            .map(|d| [0, 1, 2].map(|k| l.force[k] - d[k].as_f64().unwrap_or(0.0)));
-        // Horizontal and vertical are relative to the free surface: a floating body's
-        // solved normal, else the up axis.
-        let up = c
-            .floating
-            .as_ref()
-            .and_then(|f| f.equilibrium.as_ref())
-            .map_or_else(|| up_unit(r.inputs.up), |e| e.normal);
-        let horizontal = |f: [f64; 3]| {
-            let v = f[0] * up[0] + f[1] * up[1] + f[2] * up[2];
-            norm([f[0] - v * up[0], f[1] - v * up[1], f[2] - v * up[2]])
-        };
-        let dh = old_force.map(|o| l.horizontal_force - horizontal(o));
+        // Logged beside the force since the line has it (older lines: no marker).
+        let dh = change["horizontal_force"].as_f64();
         let dv = change["vertical_force"].as_f64();
         let du = change["uplift"].as_f64();
         let _ = std::fmt::Write::write_fmt(
@@ -324,16 +311,6 @@ fn triple(unit: &Unit, v: [f64; 3]) -> String {
     )
 }
 
-/// The unit vector of an up axis as the result echoes it (`"+z"`, `"-y"`, …).
-fn up_unit(up: &str) -> [f64; 3] {
-    let sign = if up.starts_with('-') { -1.0 } else { 1.0 };
-    match up.trim_start_matches(['+', '-']) {
-        "x" => [sign, 0.0, 0.0],
-        "y" => [0.0, sign, 0.0],
-        _ => [0.0, 0.0, sign],
-    }
-}
-
 /// How a value changed by `d` to `now`, judged by its magnitude: ` ▲ grows 9.6%` when
 /// |now| > |old|, ` ▼ eases 3.2%` when it fell, ` ⇅ reverses` when the sign flipped,
 /// ` ▲ new` from zero, ` =` when unchanged (within 1e-9 relative); empty without a
@@ -390,8 +367,12 @@ mod tests {
 
     #[test]
     fn up_axes_give_their_unit_vectors() {
-        assert_eq!(up_unit("+z"), [0.0, 0.0, 1.0]);
-        assert_eq!(up_unit("-y"), [0.0, -1.0, 0.0]);
-        assert_eq!(up_unit("+x"), [1.0, 0.0, 0.0]);
+        use crate::hydro::UpAxis;
+        let unit = |k: &str| UpAxis::from_keyword(k).map(|a| a.unit().into());
+        assert_eq!(unit("+z"), Some([0.0, 0.0, 1.0]));
+        assert_eq!(unit("-y"), Some([0.0, -1.0, 0.0]));
+        assert_eq!(unit("+x"), Some([1.0, 0.0, 0.0]));
+        assert_eq!(UpAxis::from_keyword("-y").map(UpAxis::index), Some(1));
+        assert_eq!(UpAxis::from_keyword("up"), None);
     }
 }

@@ -398,12 +398,9 @@ pub fn history_chart(mesh: &str, lines: &[Value], up: Option<&str>, u: &Units) -
             continue;
         }
         // The up axis's component is the vertical force: shown once, as such.
-        let vertical_is = up.and_then(|a| match a.trim_start_matches(['+', '-']) {
-            "x" => Some(0),
-            "y" => Some(1),
-            "z" => Some(2),
-            _ => None,
-        });
+        let vertical_is = up
+            .and_then(crate::hydro::UpAxis::from_keyword)
+            .map(crate::hydro::UpAxis::index);
         let mut forces: Vec<Series> = (0..3)
             .filter(|&k| vertical_is != Some(k))
             .map(|k| Series {

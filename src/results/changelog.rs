@@ -7,7 +7,7 @@
 //!
 //! * `"computed"`: also `iteration` (1, 2, … per mesh), `mesh_hash` and `sidecar_hash`
 //!   (BLAKE3 of the bytes computed from, hex), `facets`, `warnings` (count), and `cases`:
-//!   `[{name, force, moment, vertical_force, uplift, downthrust, wetted_area,
+//!   `[{name, force, moment, horizontal_force, vertical_force, uplift, downthrust, wetted_area,
 //!   submerged_volume, axis_moments: {axis: N·m}, flotation_factor, change,
 //!   since_baseline}]` — absolute SI values as in the result document; `change` holds the
 //!   differences against the previous `computed` line of the same mesh and case, and
