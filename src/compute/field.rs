@@ -87,21 +87,6 @@ impl Model {
     /// The pressure field of case `case` (an index into the sidecar's cases); `sidecar`
     /// must be the one the model was computed with.
     pub fn field(&self, sidecar: &Sidecar, index: usize) -> Result<Field, ComputeError> {
-        self.field_with(sidecar, index, true)
-    }
-
-    /// The pieces of the field of case `index` only, for pictures: no facet rows and no
-    /// nodal forces (both left empty), which cost more than the pieces.
-    pub fn field_pieces(&self, sidecar: &Sidecar, index: usize) -> Result<Field, ComputeError> {
-        self.field_with(sidecar, index, false)
-    }
-
-    fn field_with(
-        &self,
-        sidecar: &Sidecar,
-        index: usize,
-        with_loads: bool,
-    ) -> Result<Field, ComputeError> {
         let prep = &self.prep;
         let Some(case) = sidecar.cases.get(index) else {
             return Ok(Field {
@@ -152,7 +137,7 @@ impl Model {
                         .iter()
                         .map(|p| prof.map_or(0.0, |pr| pr.pressure(p.z)))
                         .collect();
-                    if with_loads && prof.is_some() {
+                    if prof.is_some() {
                         for (i, share) in consistent_shares(t, v, &pressure).iter().enumerate() {
                             shares[i] -= *share * unit;
                         }
@@ -181,9 +166,6 @@ impl Model {
                         area: pa,
                     });
                 });
-                if !with_loads {
-                    continue;
-                }
                 let loads = hydro::facet_loads(t, &planes, prof, wet, None, 0);
                 let n = normal.try_normalize(0.0).unwrap_or_else(Vec3::zeros);
                 facets.push(FacetRow {
@@ -203,11 +185,7 @@ impl Model {
                 });
             }
         }
-        let nodes = if with_loads {
-            number_nodes(prep, &corner, &out)
-        } else {
-            Vec::new()
-        };
+        let nodes = number_nodes(prep, &corner, &out);
         Ok(Field {
             pieces,
             facets,
