@@ -13,31 +13,12 @@ use parry3d_f64::mass_properties::MassProperties;
 use parry3d_f64::math::Vector;
 use parry3d_f64::query::SplitResult;
 use parry3d_f64::shape::{TriMesh, TriMeshFlags};
-use rustc_hash::FxHashMap;
 use shapes::Triangle;
 use wetload::compute::MeshResult;
 use wetload::hydro::float::Hull;
 
+use crate::parry::indexed;
 use crate::support::*;
-
-/// Shared vertices (equal bit patterns) and index triples, as parry wants them.
-fn indexed(tris: &[Triangle]) -> (Vec<Vector>, Vec<[u32; 3]>) {
-    let mut map: FxHashMap<[u64; 3], u32> = FxHashMap::default();
-    let mut vertices = Vec::new();
-    let indices = tris
-        .iter()
-        .map(|t| {
-            t.map(|p| {
-                *map.entry(p.map(|c| (c + 0.0).to_bits()))
-                    .or_insert_with(|| {
-                        vertices.push(Vector::new(p[0], p[1], p[2]));
-                        (vertices.len() - 1) as u32
-                    })
-            })
-        })
-        .collect();
-    (vertices, indices)
-}
 
 /// parry's piece below the plane n·x = c: volume, centre of mass, and the area and
 /// centroid of its cap (the triangles whose corners all lie on the plane).

@@ -23,8 +23,9 @@ use crate::support::*;
 
 const TOL: f64 = 1e-9;
 
-/// Shared vertices (equal bit patterns, as the tessellators make them) and index triples.
-fn indexed(tris: &[Triangle]) -> (Vec<Vector>, Vec<[u32; 3]>) {
+/// Shared vertices (equal bit patterns, as the tessellators make them) and index triples,
+/// as parry wants them (the floating checks use it too).
+pub(crate) fn indexed(tris: &[Triangle]) -> (Vec<Vector>, Vec<[u32; 3]>) {
     let mut map: FxHashMap<[u64; 3], u32> = FxHashMap::default();
     let mut vertices = Vec::new();
     let indices = tris
