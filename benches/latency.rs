@@ -93,6 +93,21 @@ fn start(dir: &Path) -> Running {
     running
 }
 
+/// Polls `result` every millisecond until its content differs from `before` (a missing
+/// file is an atomic rename in progress: look again); panics 10 s after `t0`.
+fn wait_for_new(result: &Path, before: &[u8], t0: Instant) {
+    loop {
+        thread::sleep(Duration::from_millis(1));
+        if fs::read(result).is_ok_and(|now| now != before) {
+            return;
+        }
+        assert!(
+            t0.elapsed() < Duration::from_secs(10),
+            "no new result 10 s after a save"
+        );
+    }
+}
+
 fn median(v: &mut [Duration]) -> Duration {
     v.sort();
     let n = v.len();
@@ -285,17 +300,7 @@ fn latency(c: &mut Criterion) {
                 let level = if saves.is_multiple_of(2) { 0.25 } else { 0.5 };
                 let t0 = Instant::now();
                 fs::write(p.join("ring.json"), sidecar(level)).expect("save sidecar");
-                loop {
-                    thread::sleep(Duration::from_millis(2));
-                    // A missing file is the atomic rename in progress: look again.
-                    if fs::read(&result).is_ok_and(|now| now != before) {
-                        break;
-                    }
-                    assert!(
-                        t0.elapsed() < Duration::from_secs(10),
-                        "no new result 10 s after a save"
-                    );
-                }
+                wait_for_new(&result, &before, t0);
                 let dt = t0.elapsed();
                 all.lock().expect("latency list").push(dt);
                 total += dt;
@@ -355,16 +360,7 @@ fn mesh_saves_by_rename(
                 let t0 = Instant::now();
                 fs::write(&tmp, bytes).expect("write the temporary file");
                 fs::rename(&tmp, dir.join(name)).expect("rename it over the mesh");
-                loop {
-                    thread::sleep(Duration::from_millis(1));
-                    if fs::read(&result).is_ok_and(|now| now != before) {
-                        break;
-                    }
-                    assert!(
-                        t0.elapsed() < Duration::from_secs(10),
-                        "no new result 10 s after a save"
-                    );
-                }
+                wait_for_new(&result, &before, t0);
                 let dt = t0.elapsed();
                 all.push(dt);
                 total += dt;
