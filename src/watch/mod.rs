@@ -144,8 +144,6 @@ struct Watch<'a> {
     /// so; a write that began after the completion, its events not yet read, sends it back
     /// to the quiet window instead.
     completed: BTreeMap<PathBuf, SaveState>,
-    /// The arrival of the last event of the path being processed (`None` in the first pass).
-    released_last: Option<Instant>,
 }
 
 /// The size and modification time of a mesh and of its sidecar (`None` where missing).
@@ -206,7 +204,6 @@ pub fn run(
         write_retry: Vec::new(),
         page_note: None,
         completed: BTreeMap::new(),
-        released_last: None,
     };
     for note in &recovered.notes {
         w.say(&format!("note: {note}\n"));
@@ -252,7 +249,7 @@ pub fn run(
     let mut failures = 0;
     w.refresh_names(Instant::now());
     for mesh in scan(&dir) {
-        if !w.process(&mesh, None)? {
+        if !w.process(&mesh, None, None)? {
             failures += 1;
         }
     }
@@ -285,7 +282,6 @@ pub fn run(
             }
         }
         if let Some((mesh, last)) = schedule.next_due_since(unread.drain(..), Instant::now()) {
-            w.released_last = Some(last);
             if let Some(then) = w.completed.remove(&mesh)
                 && (then != w.save_state(&mesh) || !w.still_whole(&mesh))
             {
@@ -293,7 +289,7 @@ pub fn run(
                 schedule.touch(mesh, Instant::now());
                 continue;
             }
-            w.process(&mesh, Some(&mut schedule))?;
+            w.process(&mesh, Some(&mut schedule), Some(last))?;
             page_due = true;
             continue;
         }
@@ -457,10 +453,13 @@ impl Watch<'_> {
 
     /// Computes one mesh and records the outcome; returns false when it failed.
     /// With a schedule, a file that looks half-written is handed back for a retry.
+    /// `released`: when the last event that released the mesh arrived (`None` in the
+    /// first pass).
     fn process(
         &mut self,
         mesh: &Path,
         schedule: Option<&mut Schedule>,
+        released: Option<Instant>,
     ) -> Result<bool, WatchError> {
         let name = file_name(mesh);
         if !mesh.exists() {
@@ -546,7 +545,7 @@ impl Watch<'_> {
                 // Released for events that arrived before the last read began (a sidecar
                 // and its mesh saved together each complete the save): that read saw
                 // this content, so there is nothing new to say or log.
-                if let (Some(read), Some(last)) = (previous_read, self.released_last)
+                if let (Some(read), Some(last)) = (previous_read, released)
                     && last <= read
                 {
                     return Ok(true);
