@@ -50,7 +50,7 @@ fn local_tris(mesh: &Mesh) -> (Vec<Tri>, Vec3) {
     let points: Vec<Vec3> = mesh
         .facets
         .iter()
-        .flat_map(|t| t.iter().map(|&p| frame.point_in(p)))
+        .flat_map(|t| t.map(|p| frame.point_in(p)))
         .collect();
     let (lo, hi) = hydro::bounding_box(points.iter());
     let centre = (lo + hi) / 2.0;

@@ -114,7 +114,11 @@ fn readers(c: &mut Criterion) {
     let stl_facets = 1_000_000u64;
     let ours = wetload::mesh::read_mesh(Path::new("torus.stl"), &stl).expect("valid");
     assert_eq!(ours.facets.len() as u64, stl_facets);
-    assert_eq!(stl_io_to_facets(&stl).0, ours.facets, "both readers agree");
+    assert_eq!(
+        stl_io_to_facets(&stl).0,
+        ours.facets.to_vec(),
+        "both readers agree"
+    );
 
     let mut g = c.benchmark_group("binary_stl_1M");
     g.sample_size(20)

@@ -10,7 +10,7 @@ use std::collections::BTreeSet;
 
 use serde::Serialize;
 
-use crate::hydro::{Defect, NO_SHELL, Topology, Tri};
+use crate::hydro::{Defect, NO_SHELL, Topology, Tris};
 use crate::mesh::Mesh;
 pub use crate::mesh::STALE_NORMAL_DEG;
 use crate::report::units::{UnitSystem, Units};
@@ -88,7 +88,7 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
     let s = scale.unwrap_or(1.0);
     // The topology in the file's units (its tolerance is relative to the size, so the
     // scale does not matter to it), read in place; sizes are scaled when reported.
-    let tris: &[Tri] = bytemuck::cast_slice(&mesh.facets);
+    let tris = &mesh.facets;
     let topo = Topology::build(tris);
     let mut parts = Vec::with_capacity(mesh.parts.len());
     for part in &mesh.parts {
@@ -130,7 +130,7 @@ pub fn check(name: &str, mesh: &Mesh, scale: Option<f64>) -> Health {
         let mut area = 0.0;
         let stale = mesh.stale_normals(range.clone());
         for f in range.clone() {
-            let t = &tris[f];
+            let t = &tris.tri(f);
             for p in t {
                 for k in 0..3 {
                     lo[k] = lo[k].min(p[k]);
@@ -417,7 +417,7 @@ mod tests {
     fn mesh(parts: Vec<(&str, Vec<shapes::Triangle>)>, normals: bool) -> Mesh {
         let mut m = Mesh::from_parts(parts, Format::StlAscii);
         if normals {
-            m.set_stored_normals(&winding_normals(&m.facets));
+            m.set_stored_normals(&winding_normals(&m.facets.to_vec()));
         }
         m
     }
@@ -472,12 +472,13 @@ mod tests {
         let mut a = cube(0.0);
         a.pop();
         let mut m = mesh(vec![("a", a), ("b", cube(3.0)), ("c", cube(6.0))], false);
-        let mut normals = winding_normals(&m.facets);
+        let mut facets = m.facets.to_vec();
+        let mut normals = winding_normals(&facets);
         let b0 = m.parts[1].facets.start;
-        m.facets[b0].swap(1, 2);
+        facets[b0].swap(1, 2);
         let c0 = m.parts[2].facets.start;
-        let dup = m.facets[c0];
-        m.facets.push(dup);
+        facets.push(facets[c0]);
+        m.facets = facets.into();
         normals.push(normals[c0]);
         m.parts[2].facets.end += 1;
         m.set_stored_normals(&normals);

@@ -8,7 +8,7 @@
 
 use super::wet::Wet;
 use super::{AxisMoment, ComputeError, LineOut, LiquidEcho, Loads, PartResult, Prepared};
-use crate::hydro::{self, LineOfAction, Liquid, PartAccum, PartInput, Profile, Tri, Vec3};
+use crate::hydro::{self, LineOfAction, Liquid, PartAccum, PartInput, Profile, Vec3};
 use crate::mesh::Part;
 use crate::sidecar::Sidecar;
 
@@ -48,7 +48,12 @@ pub(super) fn profiles_of(
         .collect()
 }
 
-pub(super) fn run(tris: &[Tri], parts: &[Part], wet: &Wet, profiles: &[Profile]) -> Vec<PartAccum> {
+pub(super) fn run<T: hydro::Tris + ?Sized>(
+    tris: &T,
+    parts: &[Part],
+    wet: &Wet,
+    profiles: &[Profile],
+) -> Vec<PartAccum> {
     let closed = wet.closed;
     let inputs: Vec<PartInput<'_>> = parts
         .iter()

@@ -7,7 +7,7 @@
 
 use super::cases::profiles_of;
 use super::{ComputeError, Model, compute_model};
-use crate::hydro::{self, Profile, Vec3, Wetting};
+use crate::hydro::{self, Profile, Tris, Vec3, Wetting};
 use crate::mesh::Mesh;
 use crate::sidecar::Sidecar;
 
@@ -110,14 +110,15 @@ impl Model {
         };
         let mut pieces = Vec::new();
         // Per facet corner, its share of the facet's load (internal frame).
-        let mut corner = vec![[Vec3::zeros(); 3]; prep.tris.len()];
-        let mut facets = Vec::with_capacity(prep.tris.len());
+        let mut corner = vec![[Vec3::zeros(); 3]; prep.tris.count()];
+        let mut facets = Vec::with_capacity(prep.tris.count());
         for (pi, (part, (liquid, _))) in prep.parts.iter().zip(&prep.wet.part_setup).enumerate() {
             let profile = liquid.map(|i| &profiles[i]);
             let planes = hydro::part_planes(profile, None);
             for f in part.facets.clone() {
-                let turned = surface.map(|s| s.turn(&prep.tris[f]));
-                let t = turned.as_ref().unwrap_or(&prep.tris[f]);
+                let local = prep.tris.tri(f);
+                let turned = surface.map(|s| s.turn(&local));
+                let t = turned.as_ref().unwrap_or(&local);
                 let wet = prep.wet.wetting[f];
                 let side = match wet {
                     Wetting::Front => 1.0,
@@ -238,7 +239,7 @@ fn number_nodes(
     let mut by_number: BTreeMap<u64, (Vec3, Vec3)> = BTreeMap::new();
     let mut seen: rustc_hash::FxHashMap<[u64; 3], u64> = Default::default();
     for (f, shares) in corner.iter().enumerate() {
-        let t = &prep.tris[f];
+        let t = &prep.tris.tri(f);
         for i in 0..3 {
             let number = match &prep.vertex_ids {
                 Some(ids) => u64::from(ids[f][i]),

@@ -41,7 +41,7 @@ pub use sweep::{Extreme, FlotationLimit, Governing, governing};
 
 use thiserror::Error;
 
-use crate::hydro::{LiquidError, Vec3, WetSide};
+use crate::hydro::{LiquidError, Tris, Vec3, WetSide};
 use crate::mesh::Mesh;
 use crate::sidecar::{AUTO_FIELD_EXPORT_FACETS, FieldExports, Sidecar, UnassignedPart};
 use cases::{assemble, echo, run};
@@ -129,7 +129,7 @@ pub struct Model {
 impl Model {
     /// Number of facets.
     pub fn facets(&self) -> usize {
-        self.prep.tris.len()
+        self.prep.tris.count()
     }
 }
 
@@ -152,7 +152,7 @@ pub fn compute_model(
     }
     let mut warnings = Vec::new();
     let (prep, early) = prepare(mesh, sidecar, &mut warnings)?;
-    let facets = prep.tris.len();
+    let facets = prep.tris.count();
     if sidecar.field_exports == FieldExports::Auto && !sidecar.field_exports.writes(facets) {
         warnings.push(format!(
             "per-facet exports (.vtp, .csv) not written: the mesh has {facets} facets, over the {AUTO_FIELD_EXPORT_FACETS} for which \"field_exports\": \"auto\" writes them; set \"field_exports\": \"always\" in the sidecar to write them (about 550 bytes of text a facet)"
@@ -259,7 +259,7 @@ pub fn compute_model(
             gravity: sidecar.gravity_m_s2,
             wet_side: sidecar.wet_side.map(WetSide::as_str),
             closed: prep.wet.closed,
-            facets: prep.tris.len(),
+            facets: prep.tris.count(),
             shells: prep.topology.shells.len(),
             parts: prep
                 .parts

@@ -6,15 +6,13 @@
 //! computed on the guess that the mesh is clean ([`Wet::clean_guess`]), and keeps those
 //! loads only when the topology confirms the guess.
 
-use rayon::prelude::*;
-
 use super::ComputeError;
 use super::cases::{profiles_of, run};
 use super::finite::check_extent;
 use super::plausible;
 use super::wet::Wet;
-use crate::hydro::{self, Frame, PartAccum, Profile, Topology, Tri, Vec3, WetSide};
-use crate::mesh::{Format, Mesh, Part, STALE_NORMAL_DEG};
+use crate::hydro::{self, Frame, PartAccum, Profile, Topology, Tri, Tris, Vec3, WetSide};
+use crate::mesh::{Coords, Format, Mesh, Part, STALE_NORMAL_DEG};
 use crate::sidecar::{Sidecar, quoted_list};
 
 /// Everything about the mesh that does not change between cases.
@@ -27,7 +25,7 @@ pub(super) struct Prepared {
     pub(super) frame: Frame,
     /// Local origin (bounding-box centre), internal frame.
     pub(super) centre: Vec3,
-    pub(super) tris: Vec<Tri>,
+    pub(super) tris: Local,
     /// Bounding box of `tris`.
     pub(super) local_box: (Vec3, Vec3),
     pub(super) topology: Topology,
@@ -40,6 +38,28 @@ pub(super) struct Prepared {
     pub(super) mesh_plane: Option<hydro::Plane>,
     pub(super) moment_about: Vec3,
     pub(super) axes: Vec<(String, Vec3, Vec3)>,
+}
+
+/// A mesh's facets as read, each mapped into the internal frame about the local origin
+/// when it is read: `frame.point_in(p) − centre` with `p` widened to f64, the same
+/// arithmetic, so the same bits, as mapping every facet once into f64 storage.
+pub(super) struct Local {
+    facets: Coords,
+    frame: Frame,
+    centre: Vec3,
+}
+
+impl Tris for Local {
+    fn count(&self) -> usize {
+        self.facets.len()
+    }
+
+    #[inline]
+    fn tri(&self, i: usize) -> Tri {
+        self.facets
+            .get(i)
+            .map(|p| self.frame.point_in(p) - self.centre)
+    }
 }
 
 /// What [`prepare`] finds for the cases before their loop: each case's liquid profiles
@@ -71,36 +91,14 @@ pub(super) fn prepare(
     // (judged as the file was read) is reported.
     let stale = mesh.stale_normals(0..mesh.facets.len());
     let Mesh {
-        mut facets,
+        facets,
         parts,
         format,
         normal_stale: _,
         vertex_ids,
     } = mesh;
     // Min and max are exact, so this parallel pass gives the same bits on any thread count.
-    let (lo, hi) = facets
-        .par_iter()
-        .fold(
-            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
-            |(mut lo, mut hi), t| {
-                for p in t {
-                    for k in 0..3 {
-                        lo[k] = lo[k].min(p[k]);
-                        hi[k] = hi[k].max(p[k]);
-                    }
-                }
-                (lo, hi)
-            },
-        )
-        .reduce(
-            || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
-            |(a, b), (c, d)| {
-                (
-                    [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
-                    [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
-                )
-            },
-        );
+    let (lo, hi) = facets.bounds();
     if stale > 0 {
         warnings.push(format!(
             "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals and uses the vertex order, but other tools may not"
@@ -113,15 +111,13 @@ pub(super) fn prepare(
         (lo[2] + hi[2]) / 2.0,
     ];
     let centre = frame.point_in(mid);
-    // Into the internal frame about the local origin, in place; then the same storage is
-    // read as `Tri`s (three f64 a vertex either way, so the cast cannot fail).
-    facets.par_iter_mut().for_each(|t| {
-        for p in t.iter_mut() {
-            let q = frame.point_in(*p) - centre;
-            *p = [q.x, q.y, q.z];
-        }
-    });
-    let tris: Vec<Tri> = bytemuck::cast_vec(facets);
+    // Into the internal frame about the local origin as each facet is read: the facets
+    // stay as the file gave them (f32 from a binary STL: half the memory of f64).
+    let tris = Local {
+        facets,
+        frame,
+        centre,
+    };
     // The box of `tris`, from the mesh's box: each internal coordinate is one mesh
     // coordinate times ±1 and the (positive) scale, less the centre, and each of those steps
     // keeps the order of values under rounding, so the corners map to corners exactly.
@@ -142,13 +138,13 @@ pub(super) fn prepare(
         || {
             let part_plane: Vec<Option<hydro::Plane>> = parts
                 .iter()
-                .map(|p| hydro::plane_of(tris[p.facets.clone()].iter()))
+                .map(|p| hydro::plane_of(p.facets.clone().map(|f| tris.tri(f))))
                 .collect();
             let mesh_plane = match &part_plane[..] {
                 [one] if parts.len() == 1 => *one,
-                _ => hydro::plane_of(tris.iter()),
+                _ => hydro::plane_of((0..tris.count()).map(|f| tris.tri(f))),
             };
-            let guess = Wet::clean_guess(&parts, sidecar, tris.len()).map(|wet| {
+            let guess = Wet::clean_guess(&parts, sidecar, tris.count()).map(|wet| {
                 // Floating cases are integrated on their solved free surface later.
                 let accs: Vec<Option<Vec<PartAccum>>> = profiles
                     .iter()
@@ -321,9 +317,52 @@ mod tests {
                 let mesh = Mesh::from_parts(vec![("t", tris.clone())], Format::Obj);
                 let (_, model) = compute_model("t.obj", mesh, &side).expect("computes");
                 let prep = &model.prep;
-                let facet_box = hydro::bounding_box(prep.tris.iter().flat_map(|t| t.iter()));
+                let facet_box =
+                    hydro::bounding_box((0..prep.tris.count()).flat_map(|f| prep.tris.tri(f)));
                 assert_eq!(prep.local_box, facet_box, "up {up}, units {units}");
             }
+        }
+    }
+
+    #[test]
+    fn f32_facets_kept_as_read_give_the_bits_of_f64_storage() {
+        // A binary STL's coordinates are kept as f32 and widened where a facet is read;
+        // the loads must be exactly those of the same values held in f64 (the storage
+        // every facet had before), for every frame, with cases and a sweep.
+        let wide = shapes::perturb(
+            &shapes::torus([12.3, -4.56, 7.89], 3.0, 1.0, 40, 16),
+            0.05,
+            5,
+        );
+        let single: Vec<crate::mesh::SingleFacet> = wide
+            .iter()
+            .map(|t| t.map(|p| p.map(|c| c as f32)))
+            .collect();
+        let double: Vec<crate::mesh::Facet> =
+            single.iter().map(|t| t.map(|p| p.map(f64::from))).collect();
+        for up in ["+y", "-z"] {
+            let side = parse_sidecar(
+                Path::new("t.json"),
+                &format!(
+                    r#"{{"units": "ft", "up": "{up}",
+                        "liquids": {{"w": {{"level": 8.1, "density": 1000}}}},
+                        "cases": [{{"name": "a"}}, {{"name": "b", "level": 7.0}}],
+                        "sweep": {{"liquid": "w", "from": 6, "to": 9, "step": 0.5}}}}"#
+                ),
+            )
+            .expect("valid");
+            let f64_mesh = Mesh::from_parts(vec![("t", double.clone())], Format::StlBinary);
+            let mut f32_mesh = f64_mesh.clone();
+            f32_mesh.facets = Coords::Single(single.clone());
+            assert_ne!(f32_mesh.facets, f64_mesh.facets, "two storages");
+            let (a, _) = compute_model("t.stl", f32_mesh, &side).expect("computes");
+            let (b, _) = compute_model("t.stl", f64_mesh, &side).expect("computes");
+            assert!(
+                a.cases
+                    .iter()
+                    .all(|c| c.loads.force.iter().any(|&f| f != 0.0))
+            );
+            assert_eq!(a, b, "up {up}");
         }
     }
 }

@@ -20,7 +20,7 @@ use rayon::prelude::*;
 use super::ComputeError;
 use super::cases::profiles_of;
 use crate::hydro::float;
-use crate::hydro::{Liquid, PartAccum, Profile, Tri, Vec3};
+use crate::hydro::{Liquid, PartAccum, Profile, Tri, Tris, Vec3};
 use crate::sidecar::Sidecar;
 
 /// The free surface of a floating case, internal frame.
@@ -48,8 +48,11 @@ impl Surface {
     }
 
     /// The local facets turned into the levelled frame (about the local origin).
-    pub(super) fn tris(&self, tris: &[Tri]) -> Vec<Tri> {
-        tris.par_iter().map(|t| self.turn(t)).collect()
+    pub(super) fn tris<T: Tris + ?Sized>(&self, tris: &T) -> Vec<Tri> {
+        (0..tris.count())
+            .into_par_iter()
+            .map(|f| self.turn(&tris.tri(f)))
+            .collect()
     }
 
     /// One local facet turned into the levelled frame.

@@ -28,7 +28,7 @@ use std::ops::Range;
 use rayon::prelude::*;
 
 use super::clip::{Piece, slab_pieces};
-use super::{Profile, Tri, Vec3, Wetting};
+use super::{Profile, Tri, Tris, Vec3, Wetting};
 
 /// Facets per parallel work item. A constant, never derived from the thread count, so
 /// the order of every sum, and with it every bit of the result, is the same on any
@@ -241,8 +241,8 @@ pub fn part_planes(profile: Option<&Profile>, volume_level: Option<f64>) -> Vec<
 /// `tris` are in the internal frame about the local origin; `wetting[i]` and
 /// `vol_sign[i]` describe facet `i` (see [`facet_loads`]). Deterministic: the same bits
 /// for any number of threads.
-pub fn integrate(
-    tris: &[Tri],
+pub fn integrate<T: Tris + ?Sized>(
+    tris: &T,
     parts: &[PartInput<'_>],
     wetting: &[Wetting],
     vol_sign: &[i8],
@@ -252,16 +252,15 @@ pub fn integrate(
         .map(|part| {
             let planes = part_planes(part.profile, part.volume_level);
             let range = part.facets.clone();
-            let start = range.start;
-            let partials: Vec<PartAccum> = tris[range]
-                .par_chunks(CHUNK)
-                .enumerate()
-                .map(|(c, chunk)| {
+            let (start, end) = (range.start, range.end);
+            let partials: Vec<PartAccum> = (0..range.len().div_ceil(CHUNK))
+                .into_par_iter()
+                .map(|c| {
                     let mut acc = PartAccum::default();
-                    for (j, t) in chunk.iter().enumerate() {
-                        let i = start + c * CHUNK + j;
+                    for i in start + c * CHUNK..(start + (c + 1) * CHUNK).min(end) {
+                        let t = tris.tri(i);
                         let f = facet_loads(
-                            t,
+                            &t,
                             &planes,
                             part.profile,
                             wetting[i],

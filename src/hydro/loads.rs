@@ -74,7 +74,7 @@ impl Plane {
 /// facet's (so mixed winding does not cancel it); the point is the area-weighted centroid.
 /// The set is planar when every vertex lies within `PLANAR_REL ×` the bounding-box
 /// diagonal of that plane. Returns `None` for an empty, degenerate or non-planar set.
-pub fn plane_of<'a>(tris: impl Iterator<Item = &'a Tri> + Clone) -> Option<Plane> {
+pub fn plane_of(tris: impl Iterator<Item = Tri> + Clone) -> Option<Plane> {
     // First a cheap pass that rules most solids out: the bounding box and the vertices
     // lowest and highest along each axis. Points within `tol` of a plane (a slab 2·tol
     // thick) span tetrahedra of volume at most tol·D², D the box diagonal (the triple
@@ -88,11 +88,11 @@ pub fn plane_of<'a>(tris: impl Iterator<Item = &'a Tri> + Clone) -> Option<Plane
         for k in 0..3 {
             if p[k] < lo[k] {
                 lo[k] = p[k];
-                extreme[2 * k] = *p;
+                extreme[2 * k] = p;
             }
             if p[k] > hi[k] {
                 hi[k] = p[k];
-                extreme[2 * k + 1] = *p;
+                extreme[2 * k + 1] = p;
             }
         }
     }
@@ -136,7 +136,7 @@ pub fn plane_of<'a>(tris: impl Iterator<Item = &'a Tri> + Clone) -> Option<Plane
     let normal = normal.try_normalize(0.0)?;
     let point = centroid / area;
     let planar = tris
-        .flat_map(|t| t.iter())
+        .flatten()
         .all(|p| normal.dot(&(p - point)).abs() <= tol);
     planar.then_some(Plane { point, normal })
 }
@@ -167,13 +167,13 @@ mod tests {
             [v(0.0, 0.0, 0.0), v(1.0, 0.0, 0.0), v(1.0, 1.0, 0.0)],
             [v(0.0, 0.0, 0.0), v(0.0, 1.0, 0.0), v(1.0, 1.0, 0.0)], // reversed winding
         ];
-        let p = plane_of(flat.iter()).expect("planar");
+        let p = plane_of(flat.iter().copied()).expect("planar");
         assert_relative_eq!(p.normal.z.abs(), 1.0);
         let folded = [
             flat[0],
             [v(0.0, 0.0, 0.0), v(0.0, 1.0, 0.1), v(1.0, 1.0, 0.0)],
         ];
-        assert!(plane_of(folded.iter()).is_none());
+        assert!(plane_of(folded.iter().copied()).is_none());
     }
 
     #[test]
@@ -205,8 +205,8 @@ mod tests {
         );
         // The pushes change the box by far less than the margins below.
         let tol = PLANAR_REL * (hi - lo).norm();
-        let p = plane_of(grid(0.5 * tol).iter()).expect("within the tolerance");
+        let p = plane_of(grid(0.5 * tol).iter().copied()).expect("within the tolerance");
         assert_relative_eq!(p.normal.dot(&n).abs(), 1.0, epsilon = 1e-9);
-        assert!(plane_of(grid(3.0 * tol).iter()).is_none());
+        assert!(plane_of(grid(3.0 * tol).iter().copied()).is_none());
     }
 }

@@ -45,6 +45,53 @@ pub type Vec3 = Vector3<f64>;
 /// A triangle as three vertices, in the order stored in the file.
 pub type Tri = [Vec3; 3];
 
+/// Triangles the core reads one at a time by index: a slice of [`Tri`], or a mesh's
+/// facets as they were read (f32 from a binary STL), each mapped into the frame the
+/// caller states when it is read. The core never needs them all in f64 at once.
+pub trait Tris: Sync {
+    /// Number of triangles.
+    fn count(&self) -> usize;
+    /// Triangle `i` (panics when `i` is out of range, like slice indexing).
+    fn tri(&self, i: usize) -> Tri;
+    /// Corner `k` of triangle `i`.
+    fn corner(&self, i: usize, k: usize) -> Vec3 {
+        self.tri(i)[k]
+    }
+}
+
+impl Tris for [Tri] {
+    fn count(&self) -> usize {
+        self.len()
+    }
+    fn tri(&self, i: usize) -> Tri {
+        self[i]
+    }
+    fn corner(&self, i: usize, k: usize) -> Vec3 {
+        self[i][k]
+    }
+}
+
+impl<const N: usize> Tris for [Tri; N] {
+    fn count(&self) -> usize {
+        N
+    }
+    fn tri(&self, i: usize) -> Tri {
+        self[i]
+    }
+}
+
+impl Tris for Vec<Tri> {
+    fn count(&self) -> usize {
+        self.len()
+    }
+    fn tri(&self, i: usize) -> Tri {
+        self[i]
+    }
+    fn corner(&self, i: usize, k: usize) -> Vec3 {
+        self[i][k]
+    }
+}
+
 /// On which side of a facet the liquid acts, resolved per facet.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Wetting {

@@ -53,7 +53,7 @@ use rayon::prelude::*;
 
 use super::clip::slab_pieces;
 use super::integrate::{CHUNK, PartAccum, facet_loads, part_planes};
-use super::{Liquid, LiquidError, Profile, Tri, Vec3, Wetting};
+use super::{Liquid, LiquidError, Profile, Tri, Tris, Vec3, Wetting};
 
 /// What the sweep needs to know about one part.
 #[derive(Clone, Debug)]
@@ -94,8 +94,8 @@ const CUT_BUDGET: usize = 8 << 20;
 ///
 /// `tris`, `wetting` and `vol_sign` are as for [`crate::hydro::integrate`]. Fails like
 /// [`Profile::new`] when the liquid at some level is not valid.
-pub fn sweep(
-    tris: &[Tri],
+pub fn sweep<T: Tris + ?Sized>(
+    tris: &T,
     parts: &[SweepPart],
     wetting: &[Wetting],
     vol_sign: &[i8],
@@ -107,8 +107,8 @@ pub fn sweep(
 
 /// [`sweep`] listing at most `cut_budget` (level, facet) pairs at once (but always at
 /// least one level).
-fn sweep_in_batches(
-    tris: &[Tri],
+fn sweep_in_batches<T: Tris + ?Sized>(
+    tris: &T,
     parts: &[SweepPart],
     wetting: &[Wetting],
     vol_sign: &[i8],
@@ -154,14 +154,12 @@ fn sweep_in_batches(
         if !part.wet && !part.volume {
             continue;
         }
-        let start = part.facets.start;
-        let chunk_outs: Vec<ChunkOut> = tris[part.facets.clone()]
-            .par_chunks(chunk)
-            .enumerate()
-            .map(|(c, ts)| {
+        let (start, end) = (part.facets.start, part.facets.end);
+        let chunk_outs: Vec<ChunkOut> = (0..part.facets.len().div_ceil(chunk))
+            .into_par_iter()
+            .map(|c| {
                 let mut out = ChunkOut::new(n);
-                for (j, t) in ts.iter().enumerate() {
-                    let f = start + c * chunk + j;
+                for f in start + c * chunk..(start + (c + 1) * chunk).min(end) {
                     let side = match wetting[f] {
                         Wetting::Front if part.wet => 1.0,
                         Wetting::Back if part.wet => -1.0,
@@ -175,6 +173,7 @@ fn sweep_in_batches(
                     if side == 0.0 && vsign == 0.0 {
                         continue;
                     }
+                    let t = &tris.tri(f);
                     let (lo, hi) = z_range(t);
                     // Deep from level kd on, high below level kh, cut in between.
                     let kd = safe.partition_point(|&b| b < hi);
@@ -273,7 +272,7 @@ fn sweep_in_batches(
                         _ => &planes[2],
                     };
                     let loads = facet_loads(
-                        &tris[f],
+                        &tris.tri(f),
                         planes,
                         part.wet.then_some(prof),
                         wetting[f],

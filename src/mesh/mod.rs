@@ -49,14 +49,111 @@ pub const MAX_PARTS: usize = 100_000;
 /// One triangle: three vertices, each `[x, y, z]` in file units and the mesh's own axes.
 pub type Facet = [[f64; 3]; 3];
 
+/// A facet as a binary STL stores it: three vertices of f32.
+pub type SingleFacet = [[f32; 3]; 3];
+
+/// The facets of a mesh, their coordinates kept as read: f32 from a binary STL (half the
+/// memory; widening to f64 is exact and done where a facet is read, so every result is
+/// what f64 storage would give), f64 from text (an ASCII STL or OBJ, whose decimals may
+/// need more than f32 holds).
+#[derive(Clone, Debug, PartialEq)]
+pub enum Coords {
+    Single(Vec<SingleFacet>),
+    Double(Vec<Facet>),
+}
+
+impl Default for Coords {
+    fn default() -> Coords {
+        Coords::Double(Vec::new())
+    }
+}
+
+impl From<Vec<Facet>> for Coords {
+    fn from(facets: Vec<Facet>) -> Coords {
+        Coords::Double(facets)
+    }
+}
+
+impl Coords {
+    /// Number of facets.
+    pub fn len(&self) -> usize {
+        match self {
+            Coords::Single(f) => f.len(),
+            Coords::Double(f) => f.len(),
+        }
+    }
+
+    /// Whether there is no facet.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Facet `i` in f64 (panics when `i` is out of range, like slice indexing).
+    #[inline]
+    pub fn get(&self, i: usize) -> Facet {
+        match self {
+            Coords::Single(f) => f[i].map(|p| p.map(f64::from)),
+            Coords::Double(f) => f[i],
+        }
+    }
+
+    /// Every facet in order, in f64.
+    pub fn iter(&self) -> impl ExactSizeIterator<Item = Facet> + Clone + '_ {
+        (0..self.len()).map(|i| self.get(i))
+    }
+
+    /// Every facet in f64, copied out.
+    pub fn to_vec(&self) -> Vec<Facet> {
+        self.iter().collect()
+    }
+
+    /// The lowest and highest coordinate along each axis, in one parallel pass (min and
+    /// max are exact, so the result does not depend on the number of threads);
+    /// `([+∞; 3], [−∞; 3])` when there is no facet.
+    pub fn bounds(&self) -> ([f64; 3], [f64; 3]) {
+        use rayon::prelude::*;
+        let empty = || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]);
+        let widen = |(mut lo, mut hi): ([f64; 3], [f64; 3]), t: Facet| {
+            for p in t {
+                for k in 0..3 {
+                    lo[k] = lo[k].min(p[k]);
+                    hi[k] = hi[k].max(p[k]);
+                }
+            }
+            (lo, hi)
+        };
+        let join = |(a, b): ([f64; 3], [f64; 3]), (c, d): ([f64; 3], [f64; 3])| {
+            (
+                [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
+                [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
+            )
+        };
+        (0..self.len())
+            .into_par_iter()
+            .with_min_len(4096)
+            .fold(empty, |acc, i| widen(acc, self.get(i)))
+            .reduce(empty, join)
+    }
+}
+
+/// A mesh's facets in its own axes and file units, as the core reads them.
+impl crate::hydro::Tris for Coords {
+    fn count(&self) -> usize {
+        self.len()
+    }
+    fn tri(&self, i: usize) -> crate::hydro::Tri {
+        self.get(i).map(crate::hydro::Vec3::from)
+    }
+}
+
 /// A triangle mesh as read from one file.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Mesh {
-    /// Triangles in file units and mesh axes, f64, vertex order as stored (the right-hand
+    /// Triangles in file units and mesh axes, as read ([`Coords`]), vertex order as stored (the right-hand
     /// rule over that order gives each facet's stored orientation). Facets are grouped by
     /// part: `parts[i].facets` is a contiguous range of this vector; within a part the
     /// facets keep their order in the file.
-    pub facets: Vec<Facet>,
+    pub facets: Coords,
     /// At least one part, in order of first appearance in the file; parts that received
     /// no facet are left out.
     pub parts: Vec<Part>,
@@ -114,7 +211,7 @@ impl Mesh {
     pub fn set_stored_normals(&mut self, normals: &[[f32; 3]]) {
         assert_eq!(normals.len(), self.facets.len(), "one normal per facet");
         let stale = self.facets.iter().zip(normals);
-        self.normal_stale = Some(stale.map(|(t, n)| is_stale_normal(t, n)).collect());
+        self.normal_stale = Some(stale.map(|(t, n)| is_stale_normal(&t, n)).collect());
     }
 
     /// A mesh built from named groups of facets, in order (each group one part), with no
@@ -131,7 +228,7 @@ impl Mesh {
             });
         }
         Mesh {
-            facets,
+            facets: Coords::Double(facets),
             parts,
             normal_stale: None,
             vertex_ids: None,
@@ -140,8 +237,12 @@ impl Mesh {
     }
 
     /// The facets of part `i` (panics if `i` is out of range, like slice indexing).
-    pub fn part_facets(&self, i: usize) -> &[Facet] {
-        &self.facets[self.parts[i].facets.clone()]
+    pub fn part_facets(&self, i: usize) -> Vec<Facet> {
+        self.parts[i]
+            .facets
+            .clone()
+            .map(|f| self.facets.get(f))
+            .collect()
     }
 }
 
@@ -612,7 +713,7 @@ impl PartsBuilder {
             let normal_stale = self.stale.and_then(|s| s.into_iter().nth(only));
             let vertex_ids = self.ids.and_then(|s| s.into_iter().nth(only));
             return Some(Mesh {
-                facets,
+                facets: Coords::Double(facets),
                 parts: vec![Part {
                     name,
                     facets: 0..total,
@@ -648,7 +749,7 @@ impl PartsBuilder {
             });
         }
         Some(Mesh {
-            facets,
+            facets: Coords::Double(facets),
             parts,
             normal_stale: stale,
             vertex_ids: ids,
@@ -812,7 +913,7 @@ mod tests {
             let stale = ours.normal_stale.as_ref().expect("stl");
             for (k, t) in theirs.iter().enumerate() {
                 let widened = t.vertices.map(|v| v.0.map(f64::from));
-                assert_eq!(widened, ours.facets[k], "{name} facet {k}");
+                assert_eq!(widened, ours.facets.get(k), "{name} facet {k}");
                 let judged = is_stale_normal(&widened, &t.normal.0);
                 assert_eq!(judged, stale[k], "{name} facet {k}");
             }
@@ -874,7 +975,7 @@ mod tests {
         assert_eq!(theirs.len(), first.len());
         for (t, f) in theirs.iter().zip(first) {
             for (vertex, ours) in t.vertices.iter().zip(f) {
-                for (&a, &b) in vertex.0.iter().zip(ours) {
+                for (&a, b) in vertex.0.iter().zip(ours) {
                     let a = f64::from(a);
                     assert!((a - b).abs() <= b.abs() * 1.2e-7 + 1e-30, "{a} vs {b}");
                 }
@@ -887,7 +988,7 @@ mod tests {
                 .iter()
                 .flatten()
                 .flatten()
-                .any(|&c| c == 4.336809e-16)
+                .any(|c| c == 4.336809e-16)
         );
     }
 

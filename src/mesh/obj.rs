@@ -225,7 +225,7 @@ mod tests {
         assert_eq!(names(&m), ["gate"]);
         assert_eq!(m.facets.len(), 2);
         assert_eq!(
-            m.facets[1],
+            m.facets.get(1),
             [[0.0, 0.0, 0.0], [1.0, 1.0, 0.0], [0.0, 1.0, 0.0]]
         );
         assert!(m.normal_stale.is_none());
@@ -260,16 +260,16 @@ mod tests {
         );
         let m = read(&text);
         assert_eq!(
-            m.facets[0],
+            m.facets.get(0),
             [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0], [1.0, 1.0, 0.0]]
         );
         assert_eq!(
-            m.facets[1],
+            m.facets.get(1),
             [[0.0, 0.0, 0.0], [1.0, 1.0, 0.0], [0.0, 1.0, 0.0]]
         );
         // -1 now means the fifth vertex.
         assert_eq!(
-            m.facets[2],
+            m.facets.get(2),
             [[0.0, 0.0, 0.0], [5.0, 5.0, 5.0], [0.0, 1.0, 0.0]]
         );
     }
@@ -284,14 +284,14 @@ mod tests {
         assert_eq!(m.facets.len(), 1);
         // A weight or vertex colours after x y z are ignored.
         let m = read("v 0 0 0 1\nv 1 0 0 0.5 0.5 0.5\nv 0\t1 0\nf 1 2 3\n");
-        assert_eq!(m.facets[0][2], [0.0, 1.0, 0.0]);
+        assert_eq!(m.facets.get(0)[2], [0.0, 1.0, 0.0]);
     }
 
     #[test]
     fn f64_precision_is_kept() {
         let m = read("v 0.1 0.2 0.3\nv 1e-17 0 0\nv 0 0 1\nf 1 2 3\n");
-        assert_eq!(m.facets[0][0], [0.1, 0.2, 0.3]);
-        assert_eq!(m.facets[0][1][0], 1e-17);
+        assert_eq!(m.facets.get(0)[0], [0.1, 0.2, 0.3]);
+        assert_eq!(m.facets.get(0)[1][0], 1e-17);
     }
 
     /// Twice the vector area of a facet: (b − a) × (c − a).
@@ -312,7 +312,7 @@ mod tests {
         for (k, f) in m.facets.iter().enumerate() {
             // Closed form: each half of the unit square has area ½, normal ±z.
             let z = if k < 2 { 1.0 } else { -1.0 };
-            assert_eq!(area2(f), [0.0, 0.0, z], "{f:?}");
+            assert_eq!(area2(&f), [0.0, 0.0, z], "{f:?}");
         }
     }
 
@@ -325,8 +325,8 @@ mod tests {
         let m = read(text);
         assert_eq!(m.facets.len(), 3);
         let mut area = 0.0;
-        for f in &m.facets {
-            let a = area2(f);
+        for f in m.facets.iter() {
+            let a = area2(&f);
             assert!(
                 a[2] > 0.0 && a[0] == 0.0 && a[1] == 0.0,
                 "winding kept: {f:?}"
@@ -519,7 +519,7 @@ mod tests {
                     [p(t[0]), p(t[1]), p(t[2])]
                 })
                 .collect();
-            assert_eq!(theirs, ours.facets[part.facets.clone()]);
+            assert_eq!(theirs, ours.facets.to_vec()[part.facets.clone()]);
         }
     }
 }

@@ -28,8 +28,8 @@ use rayon::prelude::*;
 
 use super::polygon::Triangulator;
 use super::{
-    Facet, Format, LineError, Mesh, MeshError, Part, PartsBuilder, Problem, is_stale_normal,
-    parse_coordinate, parse_f64, quote, stem_name,
+    Coords, Format, LineError, Mesh, MeshError, Part, PartsBuilder, Problem, SingleFacet,
+    is_stale_normal, parse_coordinate, parse_f64, quote, stem_name,
 };
 
 /// Size of the binary header plus the facet count.
@@ -112,7 +112,7 @@ fn read_binary(path: &Path, bytes: &[u8]) -> Result<Mesh, MeshError> {
 /// header (checked against the file size), [`BinaryStl::push`] with the records in order,
 /// then [`BinaryStl::finish`]. [`read_stl`] pushes the whole file at once.
 pub struct BinaryStl {
-    facets: Vec<Facet>,
+    facets: Vec<SingleFacet>,
     /// Whether each facet's stored normal is stale ([`is_stale_normal`]).
     stale: Vec<bool>,
     /// Facets converted so far.
@@ -199,10 +199,12 @@ impl BinaryStl {
                             if !value.is_finite() && bad.is_none() {
                                 bad = Some((start + c * CHUNK + i, value));
                             }
-                            *v = f64::from(value);
+                            *v = value;
                         }
                     }
-                    *stale = is_stale_normal(facet, &[f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)]);
+                    let wide = facet.map(|p| p.map(f64::from));
+                    let normal = [f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)];
+                    *stale = is_stale_normal(&wide, &normal);
                 }
                 bad
             })
@@ -233,7 +235,7 @@ impl BinaryStl {
             });
         }
         Ok(Mesh {
-            facets: self.facets,
+            facets: Coords::Single(self.facets),
             parts: vec![Part {
                 name: stem_name(path),
                 facets: 0..count,
@@ -490,7 +492,7 @@ mod tests {
         assert_eq!(m.parts[0].name, "gate");
         assert_eq!(m.parts[0].facets, 0..10);
         // f32 widened exactly: 0.1f32 is not 0.1f64.
-        assert_eq!(m.facets[3][0][0], f64::from(0.1f32));
+        assert_eq!(m.facets.get(3)[0][0], f64::from(0.1f32));
         // Stored normals (0, 0, 1) agree with the winding's +z; one turned over disagrees.
         assert_eq!(m.normal_stale, Some(vec![false; 10]));
         let mut bytes = bytes;
@@ -620,9 +622,9 @@ mod tests {
             )
         );
         let m = read_stl(Path::new("p.stl"), text.as_bytes()).expect("ascii");
-        assert_eq!(m.facets[0][0], [0.1, 0.2, 0.3]);
-        assert_eq!(m.facets[0][1][0], 1e-17);
-        assert_eq!(m.facets[0][2][2], 123456.789012345);
+        assert_eq!(m.facets.get(0)[0], [0.1, 0.2, 0.3]);
+        assert_eq!(m.facets.get(0)[1][0], 1e-17);
+        assert_eq!(m.facets.get(0)[2][2], 123456.789012345);
         // The winding's normal is about (8, 1, 0): (0, 0, 1) is over 45° from it.
         assert_eq!(m.normal_stale, Some(vec![true]));
     }
@@ -652,7 +654,7 @@ mod tests {
             vertex 0 0 0\r\nvertex 1 0 0\r\nvertex 0 1 0\r\nendloop\r\nendfacet\r\nendsolid crlf part\r\n";
         let m = read_stl(Path::new("c.stl"), text.as_bytes()).expect("ascii");
         assert_eq!(m.parts[0].name, "crlf part");
-        assert_eq!(m.facets[0][1], [1.0, 0.0, 0.0]);
+        assert_eq!(m.facets.get(0)[1], [1.0, 0.0, 0.0]);
     }
 
     #[test]

@@ -119,7 +119,7 @@ mod tests {
                     facets: hull.len()..facets.len(),
                 },
             ],
-            facets,
+            facets: facets.into(),
             normal_stale: None,
             vertex_ids: None,
             format: Format::Obj,

@@ -275,7 +275,7 @@ fn real_exports_closed_or_open_as_checked() {
     let mut verdicts = Vec::new();
     for name in FILES {
         let mesh = read(name);
-        let tris = &mesh.facets;
+        let tris = &mesh.facets.to_vec();
         let t = robust_topology(name, tris);
         let top = tris.iter().flatten().map(|p| p[2]).fold(f64::MIN, f64::max);
         let json = format!(
@@ -363,11 +363,11 @@ fn busted_export_is_closed_despite_zero_normals() {
     // A zero normal means "not given": none is reported stale.
     let stale = mesh.normal_stale.as_ref().expect("an STL");
     assert!(stale.iter().all(|s| !s));
-    let t = robust_topology("busted.STL", &mesh.facets);
+    let t = robust_topology("busted.STL", &mesh.facets.to_vec());
     assert!(t.closed && t.shells == 1, "busted.STL: one closed shell");
     let mut points = std::collections::HashSet::new();
     let mut edges = std::collections::HashSet::new();
-    for f in &mesh.facets {
+    for f in mesh.facets.iter() {
         for k in 0..3 {
             let (a, b) = (f[k].map(f64::to_bits), f[(k + 1) % 3].map(f64::to_bits));
             points.insert(a);
@@ -388,7 +388,7 @@ fn busted_export_is_closed_despite_zero_normals() {
 #[test]
 fn open_export_is_refused_without_a_wet_side() {
     let mesh = read("teapot.stl");
-    let t = robust_topology("teapot.stl", &mesh.facets);
+    let t = robust_topology("teapot.stl", &mesh.facets.to_vec());
     assert!(!t.closed, "teapot.stl is open by the independent check");
     let e = try_run(
         &mesh,

@@ -31,7 +31,7 @@
 
 use rayon::prelude::*;
 
-use super::super::{CHUNK, Tri, Vec3};
+use super::super::{CHUNK, Tri, Tris, Vec3};
 
 /// A closed body prepared for cutting: outward-wound facets about a local origin.
 #[derive(Clone, Debug)]
@@ -189,14 +189,17 @@ impl Hull {
     /// when inward, `0` to leave it out (a sealed cavity's wall, whose volume belongs to
     /// the body). Returns `None` when no facet is left or the enclosed volume is not
     /// positive and finite.
-    pub fn new(tris: &[Tri], vol_sign: &[i8]) -> Option<Hull> {
+    pub fn new<T: Tris + ?Sized>(tris: &T, vol_sign: &[i8]) -> Option<Hull> {
         let mut lo = Vec3::repeat(f64::INFINITY);
         let mut hi = Vec3::repeat(f64::NEG_INFINITY);
-        let mut kept = Vec::with_capacity(tris.len());
-        for (t, s) in tris.iter().zip(vol_sign) {
+        let mut kept = Vec::with_capacity(tris.count());
+        for (f, s) in vol_sign.iter().enumerate().take(tris.count()) {
             let t = match s {
-                1 => *t,
-                -1 => [t[0], t[2], t[1]],
+                1 => tris.tri(f),
+                -1 => {
+                    let t = tris.tri(f);
+                    [t[0], t[2], t[1]]
+                }
                 _ => continue,
             };
             for v in &t {

@@ -26,7 +26,7 @@ mod nest;
 mod shells;
 mod weld;
 
-use super::{Tri, Vec3};
+use super::{Tri, Tris, Vec3};
 use edges::{EdgeFindings, Incidence, NO_NEIGHBOUR, duplicate_facet_list};
 use nest::nest;
 use shells::{flood, join_pieces, shell_sums};
@@ -104,8 +104,8 @@ pub struct EdgeFault {
 
 impl EdgeFault {
     /// The edge's two end points, from the facets it was built on.
-    pub fn ends(&self, tris: &[Tri]) -> [Vec3; 2] {
-        let t = &tris[self.facet as usize];
+    pub fn ends<T: Tris + ?Sized>(&self, tris: &T) -> [Vec3; 2] {
+        let t = tris.tri(self.facet as usize);
         let s = self.slot as usize % 3;
         [t[s], t[(s + 1) % 3]]
     }
@@ -150,14 +150,14 @@ impl Topology {
     }
 
     /// Builds the topology of `tris`.
-    pub fn build(tris: &[Tri]) -> Topology {
-        let (lo, hi) = bounding_box(tris.iter().flat_map(|t| t.iter()));
+    pub fn build<T: Tris + ?Sized>(tris: &T) -> Topology {
+        let (lo, hi) = bounding_box((0..tris.count()).flat_map(|f| tris.tri(f)));
         Topology::build_in_box(tris, (lo, hi))
     }
 
     /// [`Topology::build`] for a caller that already has the bounding box of `tris`.
-    pub fn build_in_box(tris: &[Tri], (lo, hi): (Vec3, Vec3)) -> Topology {
-        let n = tris.len();
+    pub fn build_in_box<T: Tris + ?Sized>(tris: &T, (lo, hi): (Vec3, Vec3)) -> Topology {
+        let n = tris.count();
         let diag = if n == 0 { 0.0 } else { (hi - lo).norm() };
         let tolerance = WELD_TOLERANCE_REL * diag;
         let centre = (lo + hi) / 2.0;
@@ -238,7 +238,7 @@ impl Topology {
 
         // Signed volume per shell about the box centre (no cancellation far from origin).
         let vol = shell_sums(&facet_shell, shells.len(), |f| {
-            let [a, b, c] = tris[f].map(|p| p - centre);
+            let [a, b, c] = tris.tri(f).map(|p| p - centre);
             let v6 = a.dot(&b.cross(&c));
             (if flip[f] { -v6 } else { v6 }) / 6.0
         });
@@ -289,10 +289,11 @@ impl Topology {
 }
 
 /// The axis-aligned bounding box of some points ((+∞, −∞) when there are none).
-pub fn bounding_box<'a>(points: impl Iterator<Item = &'a Vec3>) -> (Vec3, Vec3) {
+pub fn bounding_box<P: std::borrow::Borrow<Vec3>>(points: impl Iterator<Item = P>) -> (Vec3, Vec3) {
     let mut lo = Vec3::repeat(f64::INFINITY);
     let mut hi = Vec3::repeat(f64::NEG_INFINITY);
     for p in points {
+        let p = p.borrow();
         lo = lo.inf(p);
         hi = hi.sup(p);
     }

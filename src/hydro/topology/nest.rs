@@ -4,13 +4,18 @@
 //! It expects the shells wound consistently and outward already, and changes neither
 //! winding nor membership.
 
-use super::{NO_SHELL, ShellInfo, Tri, Vec3};
+use super::{NO_SHELL, ShellInfo, Tri, Tris, Vec3};
 
 /// Sets the nesting depth of every closed shell: how many other closed shells enclose it.
 ///
 /// A shell A lies inside a closed shell B when B's box contains A's box and a point of A
 /// has winding number ≈ 1 with respect to B (sum of signed solid angles / 4π).
-pub(super) fn nest(tris: &[Tri], facet_shell: &[u32], flip: &[bool], shells: &mut [ShellInfo]) {
+pub(super) fn nest<T: Tris + ?Sized>(
+    tris: &T,
+    facet_shell: &[u32],
+    flip: &[bool],
+    shells: &mut [ShellInfo],
+) {
     let closed: Vec<usize> = (0..shells.len()).filter(|&s| shells[s].closed).collect();
     if closed.len() < 2 {
         return;
@@ -19,7 +24,7 @@ pub(super) fn nest(tris: &[Tri], facet_shell: &[u32], flip: &[bool], shells: &mu
     let mut probe = vec![None; shells.len()];
     for (f, &s) in facet_shell.iter().enumerate() {
         if s != NO_SHELL && probe[s as usize].is_none() {
-            let t = &tris[f];
+            let t = tris.tri(f);
             probe[s as usize] = Some((t[0] + t[1] + t[2]) / 3.0);
         }
     }
@@ -28,7 +33,7 @@ pub(super) fn nest(tris: &[Tri], facet_shell: &[u32], flip: &[bool], shells: &mu
     for (f, &s) in facet_shell.iter().enumerate() {
         if s != NO_SHELL {
             let b = &mut bbox[s as usize];
-            for p in &tris[f] {
+            for p in &tris.tri(f) {
                 b.0 = b.0.inf(p);
                 b.1 = b.1.sup(p);
             }
@@ -53,7 +58,7 @@ pub(super) fn nest(tris: &[Tri], facet_shell: &[u32], flip: &[bool], shells: &mu
             if s as usize != b {
                 continue;
             }
-            let t = &tris[f];
+            let t = &tris.tri(f);
             for (w, &a) in wind.iter_mut().zip(&candidates) {
                 if let Some(p) = probe[a] {
                     let omega = solid_angle(t, p);

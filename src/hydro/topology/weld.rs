@@ -4,7 +4,7 @@
 //! Topology only: no coordinate is moved, and nothing here looks at edges, facets or
 //! shells beyond the corners they are made of.
 
-use super::{Tri, UnionFind, Vec3};
+use super::{Tris, UnionFind, Vec3};
 
 /// Cells per axis of the weld grid fit in this many bits of a packed key.
 const CELL_BITS: u32 = 21;
@@ -27,7 +27,11 @@ const EXACT_SLOTS: usize = 1 << 14;
 /// those of the neighbour cells within `tol` (union-find).
 /// The sort, not a hash map, keeps every step in cache-friendly order; the result does
 /// not depend on the number of threads.
-pub(super) fn weld(tris: &[Tri], tol: f64, bbox: (Vec3, Vec3)) -> (Vec<[u32; 3]>, usize) {
+pub(super) fn weld<T: Tris + ?Sized>(
+    tris: &T,
+    tol: f64,
+    bbox: (Vec3, Vec3),
+) -> (Vec<[u32; 3]>, usize) {
     weld_in_blocks(tris, tol, bbox, WELD_BLOCK)
 }
 
@@ -36,8 +40,8 @@ pub(super) fn weld(tris: &[Tri], tol: f64, bbox: (Vec3, Vec3)) -> (Vec<[u32; 3]>
 const WELD_BLOCK: usize = 1 << 18;
 
 /// [`weld`], its first step in blocks of `block` facets.
-pub(super) fn weld_in_blocks(
-    tris: &[Tri],
+pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
+    tris: &T,
     tol: f64,
     (origin, _): (Vec3, Vec3),
     block: usize,
@@ -49,17 +53,17 @@ pub(super) fn weld_in_blocks(
     // of first appearance (a point repeated across blocks is one candidate per block, and
     // step 3 joins them). `ids` holds candidate indices until step 4.
     let block = block.max(1);
-    let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.len()];
+    let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.count()];
     // Each candidate's corner (3 × facet + corner), relative to `origin` its position.
-    let corner = |c: u32| tris[c as usize / 3][c as usize % 3] - origin;
-    let blocks: Vec<Vec<u32>> = tris
-        .par_chunks(block)
-        .zip(ids.par_chunks_mut(block))
+    let corner = |c: u32| tris.corner(c as usize / 3, c as usize % 3) - origin;
+    let blocks: Vec<Vec<u32>> = ids
+        .par_chunks_mut(block)
         .enumerate()
-        .map(|(b, (tris, ids))| {
+        .map(|(b, ids)| {
             let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
-            let mut candidates: Vec<u32> = Vec::with_capacity(tris.len() / 2 + 16);
-            for (f, (t, c)) in tris.iter().zip(ids).enumerate() {
+            let mut candidates: Vec<u32> = Vec::with_capacity(ids.len() / 2 + 16);
+            for (f, c) in ids.iter_mut().enumerate() {
+                let t = tris.tri(b * block + f);
                 for k in 0..3 {
                     let p = &t[k];
                     let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
@@ -279,7 +283,7 @@ mod tests {
             7,
         ));
         for mesh in [plain, noisy] {
-            let mut mesh: Vec<Tri> = mesh
+            let mut mesh: Vec<crate::hydro::Tri> = mesh
                 .iter()
                 .enumerate()
                 .map(|(i, t)| {
