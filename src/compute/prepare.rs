@@ -94,9 +94,10 @@ pub(super) fn prepare(
         facets,
         parts,
         format,
-        normal_stale: _,
+        normal_stale,
         vertex_ids,
     } = mesh;
+    drop(normal_stale); // counted above; not kept through the topology
     // Min and max are exact, so this parallel pass gives the same bits on any thread count.
     let (lo, hi) = facets.bounds();
     if stale > 0 {

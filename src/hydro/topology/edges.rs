@@ -13,18 +13,65 @@ use super::Defect;
 /// No neighbour across a facet's edge (an open or non-manifold edge).
 pub(super) const NO_NEIGHBOUR: u32 = u32::MAX;
 
-/// Vertex ranges, one per thread, for the steps whose every range reads all the facets
-/// and writes only its own vertices' part. The results do not depend on the split.
-fn vertex_ranges(vertices: usize) -> Vec<std::ops::Range<u32>> {
+/// Vertex ranges, one per thread, covering `window`, for the steps whose every range
+/// reads all the facets and writes only its own vertices' part. The results do not
+/// depend on the split.
+fn vertex_ranges(window: std::ops::Range<u32>) -> Vec<std::ops::Range<u32>> {
+    let vertices = window.len();
     let parts = if vertices < 1 << 14 {
         1
     } else {
         rayon::current_num_threads().max(1)
     };
     let step = vertices.div_ceil(parts).max(1);
-    (0..parts)
-        .map(|i| ((i * step).min(vertices) as u32)..(((i + 1) * step).min(vertices) as u32))
-        .collect()
+    let at = |i: usize| window.start + (i * step).min(vertices) as u32;
+    (0..parts).map(|i| at(i)..at(i + 1)).collect()
+}
+
+/// Meshes of more vertices than this find their edges in [`WINDOWS`] windows of vertices
+/// one after the other, so the facets around the vertices (4 bytes a corner) are held for
+/// one window at a time: a quarter of the memory, for a second read of part of the ids.
+const WINDOWED_FROM: usize = 1 << 17;
+
+/// Windows of vertices for a mesh of more than [`WINDOWED_FROM`] vertices (a constant,
+/// so the cost per facet does not grow with the mesh).
+const WINDOWS: usize = 4;
+
+/// Every edge of the welded facets `ids` (`degenerate` ones left out) and each facet's
+/// neighbours, found from the facets around each vertex a window of vertices at a time.
+/// The result does not depend on the windows or the thread count: findings come in order
+/// of (lower, higher) vertex, and every neighbour is written once.
+pub(super) fn find_edges(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize) -> Edges {
+    let windows = if vertices > WINDOWED_FROM { WINDOWS } else { 1 };
+    find_edges_in(ids, degenerate, vertices, windows)
+}
+
+/// [`find_edges`] in `windows` windows of vertices.
+fn find_edges_in(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize, windows: usize) -> Edges {
+    use rayon::prelude::*;
+    let neighbours = Neighbours(
+        (0..3 * ids.len())
+            .into_par_iter()
+            .map(|_| AtomicU32::new(NO_NEIGHBOUR))
+            .collect(),
+    );
+    let step = vertices.div_ceil(windows.max(1)).max(1);
+    let mut parts = Vec::new();
+    // The first facet that can use a vertex of the window: no facet before it uses one
+    // as high as the window's first (it only moves forward as the windows rise).
+    let mut from = 0;
+    for w in (0..vertices).step_by(step) {
+        let window = w as u32..(w + step).min(vertices) as u32;
+        while from < ids.len() && ids[from].iter().all(|&v| v < window.start) {
+            from += 1;
+        }
+        let around = Incidence::in_ranges(ids, degenerate, from, vertex_ranges(window));
+        parts.extend(around.edges(ids, &neighbours));
+    }
+    Edges {
+        findings: EdgeFindings::concat(parts),
+        neighbours,
+    }
 }
 
 /// `s` cut into consecutive pieces of the given lengths (which sum to its length).
@@ -38,40 +85,41 @@ fn split_lengths<T>(mut s: &mut [T], lengths: impl Iterator<Item = usize>) -> Ve
     out
 }
 
-/// The non-degenerate facets around every vertex, each vertex's in facet order.
-pub(super) struct Incidence {
-    /// Where each vertex's facets end in `facets` (and the next vertex's begin).
+/// The non-degenerate facets around every vertex of a window of vertices, each vertex's
+/// in facet order.
+struct Incidence {
+    /// The window's first vertex.
+    base: u32,
+    /// Where each vertex's facets end in `facets` (and the next vertex's begin), from the
+    /// window's first vertex.
     end: Vec<u32>,
     facets: Vec<u32>,
     ranges: Vec<std::ops::Range<u32>>,
 }
 
 impl Incidence {
-    /// A counting sort of the facets' corners by vertex, each range of vertices on a
-    /// thread of its own.
-    pub(super) fn new(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize) -> Incidence {
-        Incidence::in_ranges(ids, degenerate, vertices, vertex_ranges(vertices))
-    }
-
-    /// [`Incidence::new`] with the vertices split into `ranges` (consecutive, covering
-    /// `0..vertices`).
+    /// A counting sort by vertex of the corners of facets `from..` that fall in the
+    /// window `ranges` (consecutive), each range on a thread of its own. No facet before
+    /// `from` may use a vertex of the window.
     fn in_ranges(
         ids: &[[u32; 3]],
         degenerate: &[bool],
-        vertices: usize,
+        from: usize,
         ranges: Vec<std::ops::Range<u32>>,
     ) -> Incidence {
         use rayon::prelude::*;
+        let base = ranges.first().map_or(0, |r| r.start);
         let lengths = || ranges.iter().map(|r| r.len());
         let corners = || {
-            ids.iter()
-                .zip(degenerate)
+            ids[from..]
+                .iter()
+                .zip(&degenerate[from..])
                 .enumerate()
                 .filter(|(_, (_, d))| !**d)
-                .map(|(f, (t, _))| (f as u32, t))
+                .map(move |(f, (t, _))| ((from + f) as u32, t))
         };
         // Facets per vertex.
-        let mut end = vec![0u32; vertices];
+        let mut end = vec![0u32; lengths().sum()];
         split_lengths(&mut end, lengths())
             .into_par_iter()
             .zip(&ranges)
@@ -91,7 +139,8 @@ impl Incidence {
             *e = total;
             total += count;
         }
-        let first = |r: &std::ops::Range<u32>| end.get(r.start as usize).map_or(total, |&s| s);
+        let first =
+            |r: &std::ops::Range<u32>| end.get((r.start - base) as usize).map_or(total, |&s| s);
         let bounds: Vec<u32> = ranges.iter().map(first).chain([total]).collect();
         // Each range fills its own part of `facets`, moving its vertices' starts to ends.
         let mut facets = vec![0u32; total as usize];
@@ -116,30 +165,26 @@ impl Incidence {
                 }
             });
         Incidence {
+            base,
             end,
             facets,
             ranges,
         }
     }
 
-    /// Vertex `v`'s facets.
+    /// Vertex `v`'s facets (`v` in the window).
     fn around(&self, v: u32) -> &[u32] {
-        let from = if v == 0 { 0 } else { self.end[v as usize - 1] };
-        &self.facets[from as usize..self.end[v as usize] as usize]
+        let i = (v - self.base) as usize;
+        let from = if i == 0 { 0 } else { self.end[i - 1] };
+        &self.facets[from as usize..self.end[i] as usize]
     }
 
-    /// Every edge, found from its lower vertex with the uses in facet order: the findings
-    /// in order of (lower, higher) vertex, and the manifold neighbours.
-    pub(super) fn edges(&self, ids: &[[u32; 3]]) -> Edges {
+    /// Every edge whose lower vertex is in the window, found with the uses in facet
+    /// order: the findings of each range in order of (lower, higher) vertex; the manifold
+    /// neighbours written into `neighbours`.
+    fn edges(&self, ids: &[[u32; 3]], neighbours: &Neighbours) -> Vec<EdgeFindings> {
         use rayon::prelude::*;
-        let neighbours = Neighbours(
-            (0..3 * ids.len())
-                .into_par_iter()
-                .map(|_| AtomicU32::new(NO_NEIGHBOUR))
-                .collect(),
-        );
-        let found: Vec<EdgeFindings> = self
-            .ranges
+        self.ranges
             .par_iter()
             .map(|r| {
                 let mut out = EdgeFindings::default();
@@ -161,17 +206,12 @@ impl Incidence {
                     // six uses; a vertex shared by many facets still costs O(k log k).
                     uses.sort_by_key(|e| e.hi);
                     for group in uses.chunk_by(|a, b| a.hi == b.hi) {
-                        out.visit(group, &neighbours);
+                        out.visit(group, neighbours);
                     }
                 }
                 out
             })
-            .collect();
-        let findings = EdgeFindings::concat(found);
-        Edges {
-            findings,
-            neighbours,
-        }
+            .collect()
     }
 }
 
@@ -375,7 +415,7 @@ mod tests {
     }
 
     #[test]
-    fn edges_found_in_ranges_of_vertices_are_those_found_in_one() {
+    fn edges_found_in_windows_and_ranges_of_vertices_are_those_found_in_one() {
         // A torus with holes, a duplicate, a fin (non-manifold) and reversed facets.
         let mut t = tris(shapes::torus([0.0; 3], 3.0, 1.0, 48, 24));
         t.retain(|f| f[0].x > -2.5 || f[0].y > 0.0);
@@ -386,26 +426,31 @@ mod tests {
         t.push([t[20][0], t[20][1], Vec3::new(9.0, 9.0, 9.0)]);
         let (lo, hi) = bounding_box(t.iter().flatten());
         let (ids, vertices) = weld(&t, WELD_TOLERANCE_REL * (hi - lo).norm(), (lo, hi));
-        let degenerate = vec![false; ids.len()];
+        let mut degenerate = vec![false; ids.len()];
+        degenerate[5] = true; // left out of every edge
         let whole = std::iter::once(0..vertices as u32).collect();
-        let one = Incidence::in_ranges(&ids, &degenerate, vertices, whole);
+        let one = Incidence::in_ranges(&ids, &degenerate, 0, whole);
         let (ref_edges, ref_neighbours) = {
-            let e = one.edges(&ids);
+            let e = find_edges_in(&ids, &degenerate, vertices, 1);
             let n: Vec<[u32; 3]> = (0..ids.len()).map(|f| e.neighbours.of(f)).collect();
             (e.findings, n)
         };
         assert!(ref_edges.open_edges > 0 && ref_edges.non_manifold_edges > 0);
         assert!(ref_edges.inconsistent_edges > 0);
         for parts in [2u32, 3, 7] {
+            // One window in ranges: the same facets around each vertex.
             let v = vertices as u32;
             let ranges = (0..parts)
                 .map(|i| i * v / parts..(i + 1) * v / parts)
                 .collect();
-            let split = Incidence::in_ranges(&ids, &degenerate, vertices, ranges);
+            let split = Incidence::in_ranges(&ids, &degenerate, 0, ranges);
             assert_eq!((&split.end, &split.facets), (&one.end, &one.facets));
-            let e = split.edges(&ids);
+        }
+        for windows in [2, 3, 7, vertices] {
+            // Windows of vertices one after the other: the same edges and neighbours.
+            let e = find_edges_in(&ids, &degenerate, vertices, windows);
             let n: Vec<[u32; 3]> = (0..ids.len()).map(|f| e.neighbours.of(f)).collect();
-            assert_eq!(n, ref_neighbours, "{parts} ranges");
+            assert_eq!(n, ref_neighbours, "{windows} windows");
             let f = e.findings;
             assert_eq!(
                 (f.open_edges, f.non_manifold_edges, f.inconsistent_edges),

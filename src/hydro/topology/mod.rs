@@ -27,7 +27,7 @@ mod shells;
 mod weld;
 
 use super::{Tri, Tris, Vec3};
-use edges::{EdgeFindings, Incidence, NO_NEIGHBOUR, duplicate_facet_list};
+use edges::{EdgeFindings, NO_NEIGHBOUR, duplicate_facet_list, find_edges};
 use nest::nest;
 use shells::{flood, join_pieces, shell_sums};
 use weld::weld;
@@ -177,10 +177,8 @@ impl Topology {
 
         // The facets around every vertex (a counting sort, in facet order), then each
         // vertex's edges to higher vertices grouped by that vertex: both in ranges of
-        // vertices on all threads.
-        let around = Incidence::new(&ids, &degenerate, vertices);
-        let edges = around.edges(&ids);
-        drop(around);
+        // vertices on all threads, a window of vertices at a time.
+        let edges = find_edges(&ids, &degenerate, vertices);
         let EdgeFindings {
             open_edges,
             non_manifold_edges,

@@ -120,18 +120,27 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
     };
     // (cell, candidate, its corner with [`NEAR_FACE`] set when the point lies that close
     // to a face of its cell): the candidate breaks ties, so the order is unique.
-    let mut order: Vec<(u64, u32, u32)> = blocks
-        .par_iter()
+    // Filled in place, block by block (a collected list would grow by copies).
+    let mut order: Vec<(u64, u32, u32)> = vec![(0, 0, 0); count];
+    let mut rest = &mut order[..];
+    let mut places = Vec::with_capacity(blocks.len());
+    for b in &blocks {
+        let (head, tail) = std::mem::take(&mut rest).split_at_mut(b.len());
+        places.push(head);
+        rest = tail;
+    }
+    places
+        .into_par_iter()
+        .zip(&blocks)
         .zip(&offsets)
-        .flat_map_iter(|(b, &o)| {
-            b.iter().enumerate().map(move |(i, &c)| {
+        .for_each(|((out, b), &o)| {
+            for (i, (slot, &c)) in out.iter_mut().zip(b).enumerate() {
                 let q = corner(c);
                 let k = key(&q);
                 let near = (0..3).any(|ax| near_face(&q, &k, ax) != 0);
-                (pack(k), o + i as u32, c | if near { NEAR_FACE } else { 0 })
-            })
-        })
-        .collect();
+                *slot = (pack(k), o + i as u32, c | if near { NEAR_FACE } else { 0 });
+            }
+        });
     drop(blocks);
     order.par_sort_unstable();
     // The position of the candidate at `a` in `order`.
