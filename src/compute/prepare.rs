@@ -11,7 +11,7 @@ use super::cases::{profiles_of, run};
 use super::finite::check_extent;
 use super::plausible;
 use super::wet::Wet;
-use crate::hydro::{self, Frame, PartAccum, Profile, Topology, Tri, Tris, Vec3, WetSide};
+use crate::hydro::{self, Frame, PartAccum, PointMap, Profile, Topology, Tri, Tris, Vec3, WetSide};
 use crate::mesh::{Coords, Format, Mesh, Part, STALE_NORMAL_DEG};
 use crate::sidecar::{Sidecar, quoted_list};
 
@@ -41,12 +41,23 @@ pub(super) struct Prepared {
 }
 
 /// A mesh's facets as read, each mapped into the internal frame about the local origin
-/// when it is read: `frame.point_in(p) − centre` with `p` widened to f64, the same
-/// arithmetic, so the same bits, as mapping every facet once into f64 storage.
+/// when it is read: `frame.point_in(p) − centre` with `p` widened to f64 (through
+/// [`Frame::point_map`], the same bits), as mapping every facet once into f64 storage
+/// gave.
 pub(super) struct Local {
     facets: Coords,
-    frame: Frame,
+    map: PointMap,
     centre: Vec3,
+}
+
+impl Local {
+    fn new(facets: Coords, frame: Frame, centre: Vec3) -> Local {
+        Local {
+            facets,
+            map: frame.point_map(),
+            centre,
+        }
+    }
 }
 
 impl Tris for Local {
@@ -56,9 +67,20 @@ impl Tris for Local {
 
     #[inline]
     fn tri(&self, i: usize) -> Tri {
-        self.facets
-            .get(i)
-            .map(|p| self.frame.point_in(p) - self.centre)
+        let map = |p: [f64; 3]| self.map.apply(p, &self.centre);
+        match &self.facets {
+            Coords::Single(f) => f[i].map(|p| map(p.map(f64::from))),
+            Coords::Double(f) => f[i].map(map),
+        }
+    }
+
+    #[inline]
+    fn corner(&self, i: usize, k: usize) -> Vec3 {
+        let p = match &self.facets {
+            Coords::Single(f) => f[i][k].map(f64::from),
+            Coords::Double(f) => f[i][k],
+        };
+        self.map.apply(p, &self.centre)
     }
 }
 
@@ -114,11 +136,7 @@ pub(super) fn prepare(
     let centre = frame.point_in(mid);
     // Into the internal frame about the local origin as each facet is read: the facets
     // stay as the file gave them (f32 from a binary STL: half the memory of f64).
-    let tris = Local {
-        facets,
-        frame,
-        centre,
-    };
+    let tris = Local::new(facets, frame, centre);
     // The box of `tris`, from the mesh's box: each internal coordinate is one mesh
     // coordinate times ±1 and the (positive) scale, less the centre, and each of those steps
     // keeps the order of values under rounding, so the corners map to corners exactly.
