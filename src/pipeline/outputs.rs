@@ -598,6 +598,7 @@ mod tests {
                 "report.html",
                 "wall._._flood.csv",
                 "wall._._flood.nodal.csv",
+                "wall._._flood.section.svg",
                 "wall._._flood.sweep.svg",
                 "wall._._flood.view.json",
                 "wall._._flood.vtp",
@@ -605,6 +606,7 @@ mod tests {
                 "wall.json",
                 "wall.normal.csv",
                 "wall.normal.nodal.csv",
+                "wall.normal.section.svg",
                 "wall.normal.sweep.svg",
                 "wall.normal.view.json",
                 "wall.normal.vtp",
@@ -616,6 +618,8 @@ mod tests {
         assert_eq!(page.matches("<canvas class=\"v3d\"").count(), 2);
         assert_eq!(page.matches("<script>").count(), 1);
         assert!(!page.contains("no view file"));
+        // And each case's pressure diagram, inline.
+        assert_eq!(page.matches("<figure class=\"diagram\"><svg ").count(), 2);
         assert!(!page.contains("http-equiv=\"refresh\""));
         let sweep = fs::read_to_string(results.join("wall.normal.sweep.svg")).expect("svg");
         assert!(sweep.contains("level of liquid (m)"));
