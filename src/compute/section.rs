@@ -463,14 +463,14 @@ fn run_of(chain: &[ChainPoint], closed: bool) -> Run {
     };
     let mut points = Vec::new();
     let mut normals = Vec::new();
-    for i in 0..n {
+    for (i, c) in chain.iter().enumerate() {
         let (keep, kink) = change(i);
         if !keep {
             continue;
         }
         points.push(RunPoint {
-            at: chain[i].0,
-            pressure_pa: chain[i].1,
+            at: c.0,
+            pressure_pa: c.1,
             kink,
         });
         if i < segs {

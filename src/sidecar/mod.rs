@@ -12,6 +12,12 @@
 //! core's [`Profile`](crate::hydro::Profile), so the liquid rules live in one place.
 //! Lengths are metres in the mesh's own axes (after unit scaling), as CONTRACT.md says.
 //!
+//! Beyond CONTRACT.md's keys, `sections` is ours: named vertical planes for the pressure
+//! diagram, `{"<name>": {"point": [x, y, z], "normal": [nx, ny, nz]}}`, the point in
+//! `sidecar_units` and mesh axes, the normal of any length > 0 with no component along
+//! `up` (a tilt of up to a micro-radian is taken out); see [`NamedSection`]. A sidecar
+//! without it has only the default section through the resultant.
+//!
 //! The files, one concern each:
 //!
 //! - this file: the limits and defaults, and [`parse_sidecar`], the entry point that

@@ -83,7 +83,7 @@ fn the_diagram_follows_the_units_option() {
     f.calc(&["--units", "us", "wall.obj"]).expect_code(0);
     let text = svg(&f, "wall.section.svg");
     // 1 psi = 6894.757 Pa (the pound-force and the inch by definition).
-    let psi = 1000.0 * G * 3.0 / 6894.757_293_168;
+    let psi = 1000.0 * G * 3.0 / 6_894.757_293_168;
     assert!(text.contains(&format!(">{psi:.3} psi<")), "{psi:.3} psi");
     assert!(!text.contains("kPa"));
 }

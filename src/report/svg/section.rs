@@ -137,8 +137,12 @@ impl View {
     }
 }
 
-/// The offset ends of each segment of `run`: the band's outer edge, m per Pa `k`.
-fn band(run: &Run, k: f64) -> Vec<([f64; 2], [f64; 2], [f64; 2], [f64; 2])> {
+/// One segment's part of the pressure band, `(s, z)` in m: its two ends on the surface,
+/// then the outer edge from the second end back to the first.
+type Quad = ([f64; 2], [f64; 2], [f64; 2], [f64; 2]);
+
+/// The band of each segment of `run`, `k` m per Pa.
+fn band(run: &Run, k: f64) -> Vec<Quad> {
     let n = run.points.len();
     run.normals
         .iter()
@@ -623,7 +627,7 @@ mod tests {
         // 1 psi = 6894.757 Pa (exact definitions of the pound-force and the inch).
         let label = format!(
             "{} psi",
-            crate::report::units::num(base / 6894.757_293_168, 3)
+            crate::report::units::num(base / 6_894.757_293_168, 3)
         );
         assert!(svg.contains(&label), "{label} missing");
         assert!(!svg.contains("kPa"));
@@ -677,7 +681,7 @@ mod tests {
         let svg = text_of(&section_svg("t", &[sec], &Units::of(UnitSystem::Si)));
         let labels = svg.matches(" kPa</text>").count();
         // The drawing is at most MAX_DRAWING_H px high; labels need LABEL_GAP each.
-        assert!(labels >= 2 && labels < 40, "{labels}");
+        assert!((2..40).contains(&labels), "{labels}");
         // Both ends are written, the first tried.
         assert!(svg.contains(">1.00 kPa</text>") && svg.contains(">1.04 kPa</text>"));
     }
