@@ -17,6 +17,7 @@
 //! - `sweep.rs`: the steps of a level sweep and the governing value of each quantity.
 //! - `flotation.rs`: the flotation check of a case or a sweep step.
 //! - `field.rs`: the per-facet pressure field that the exports write.
+//! - `section.rs`: vertical sections through that field, for the pressure diagram.
 //! - `finite.rs`: the refusal of coordinates and results that overflow f64.
 
 mod cases;
@@ -27,6 +28,7 @@ mod flotation;
 mod plausible;
 mod prepare;
 mod result;
+mod section;
 mod surface;
 mod sweep;
 mod wet;
@@ -36,6 +38,9 @@ pub use floating::{FLOATING_CAUTION, FloatingResult};
 pub use result::{
     AxisMoment, CaseResult, DatumEcho, FlotationCheck, Inputs, LineOut, LiquidEcho, Loads,
     MeshResult, PartInputs, PartResult, PresetEcho, SweepStep,
+};
+pub use section::{
+    CORNER_DEG, HORIZONTAL_REL, Level, PlaneChoice, Run, RunPoint, Section, SectionPlane, sections,
 };
 pub use sweep::{Extreme, FlotationLimit, Governing, governing};
 

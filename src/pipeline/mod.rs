@@ -312,7 +312,7 @@ pub fn calc_logged(mesh_path: &Path, units: UnitSystem) -> Result<Logged, RunErr
     let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
     computed.result.project = project;
     let layout = Layout::of_mesh(mesh_path, mesh::is_mesh_path);
-    if let Some(dropped) = write_computed(&layout, mesh_path, &computed)? {
+    if let Some(dropped) = write_computed(&layout, mesh_path, &computed, units)? {
         return Err(dropped.error.into());
     }
     let mut notes = iterations::keep_file(&layout, mesh_path, &hashes, sidecar_text.as_bytes());
@@ -329,11 +329,12 @@ pub fn calc_logged(mesh_path: &Path, units: UnitSystem) -> Result<Logged, RunErr
 /// Writes the result document of a computed mesh and its exports together (see
 /// [`results::Batch`]): `Err` when nothing could be written (the old files stay, and
 /// agree with each other); `Ok(Some(..))` when the result was written but its exports
-/// could not be, and were removed.
+/// could not be, and were removed. The pressure diagrams show their values in `units`.
 pub fn write_computed(
     layout: &Layout,
     mesh_path: &Path,
     computed: &Computed,
+    units: UnitSystem,
 ) -> Result<Option<results::ExportsDropped>, RunError> {
     let mut batch = results::Batch::new();
     batch.put_result(
@@ -347,6 +348,7 @@ pub fn write_computed(
         &computed.model,
         &computed.sidecar,
         &computed.result,
+        units,
     )?;
     Ok(batch.commit()?)
 }

@@ -1,5 +1,6 @@
 //! Pictures and exports beside the result document: per mesh the pressure field (`.vtp`),
-//! the facet loads (`.csv`) and the sweep charts (`.sweep.svg`); per folder the page
+//! the facet loads (`.csv`), the pressure diagrams (`.section.svg`) and the sweep charts
+//! (`.sweep.svg`); per folder the page
 //! `report.html` and each mesh's load history (`.history.svg`).
 //!
 //! Owns which writer runs for which file, and when an export is written or removed. The
@@ -66,6 +67,7 @@ fn exports_by_kind(
             fields.push(e.facet_loads);
             fields.push(e.nodal_loads);
             fields.push(e.view);
+            fields.push(e.section);
         }
         cases.push(e.sweep_chart);
     }
@@ -100,7 +102,8 @@ pub fn missing_files(
 /// computed mesh into `batch` (see [`results::Batch`]), and the removal of field exports
 /// an earlier result had when this one has none.
 ///
-/// `model` and `sidecar` must be the ones `result` was computed from.
+/// `model` and `sidecar` must be the ones `result` was computed from; the pressure
+/// diagrams show their values in `units` (the other exports are SI whatever it is).
 pub fn stage_outputs(
     batch: &mut Batch,
     layout: &Layout,
@@ -108,11 +111,13 @@ pub fn stage_outputs(
     model: &Model,
     sidecar: &Sidecar,
     result: &MeshResult,
+    units: UnitSystem,
 ) -> Result<(), RunError> {
     let parts = results::case_parts(result.cases.iter().map(|c| c.name.as_str()));
     let shared = crate::report::summary::shared_sweep(result);
     // One mesh's views share the budget, so the page grows with meshes, not cases.
     let view_budget = view::VIEW_MAX_TRIANGLES / result.cases.len().max(1);
+    let diagram_units = Units::of(units).with_datum(datum_origin(result));
     for (i, (case, part)) in result.cases.iter().zip(parts).enumerate() {
         let files = layout.exports(mesh_path, part.as_deref());
         // The field, its exports and the page's 3D view go together: for meshes of at most
@@ -136,12 +141,19 @@ pub fn stage_outputs(
             batch.put(&files.field, &vtk::render(&field, &result.mesh, &case.name))?;
             batch.put(&files.facet_loads, &csv::render(&field))?;
             batch.put(&files.nodal_loads, &nodal::render(&field))?;
+            let sections = compute::sections(&field, &result.inputs, case, &sidecar.sections);
+            let title = format!("{} · case {} · pressure diagram", result.mesh, case.name);
+            batch.put(
+                &files.section,
+                &svg::section_svg(&title, &sections, &diagram_units),
+            )?;
         } else {
             // Exports of an earlier iteration would no longer match the result: remove them.
             batch.remove(files.view);
             batch.remove(files.field);
             batch.remove(files.facet_loads);
             batch.remove(files.nodal_loads);
+            batch.remove(files.section);
         }
         // A sweep the same in every case is drawn once, as `<name>.sweep.svg`.
         match case.sweep.as_ref().filter(|_| shared.is_none()) {
@@ -170,7 +182,14 @@ pub fn stage_outputs(
             .iter()
             .flat_map(|part| {
                 let e = layout.exports(mesh_path, part.as_deref());
-                [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart, e.view]
+                [
+                    e.field,
+                    e.facet_loads,
+                    e.nodal_loads,
+                    e.sweep_chart,
+                    e.view,
+                    e.section,
+                ]
             })
             .collect();
     current.push(layout.exports(mesh_path, None).sweep_chart);
@@ -202,7 +221,14 @@ fn previous_exports(layout: &Layout, mesh_path: &Path) -> Vec<PathBuf> {
         .iter()
         .flat_map(|part| {
             let e = layout.exports(mesh_path, part.as_deref());
-            [e.field, e.facet_loads, e.nodal_loads, e.sweep_chart, e.view]
+            [
+                e.field,
+                e.facet_loads,
+                e.nodal_loads,
+                e.sweep_chart,
+                e.view,
+                e.section,
+            ]
         })
         .collect();
     files.push(layout.exports(mesh_path, None).sweep_chart);
@@ -235,13 +261,17 @@ fn sweep_chart(
             .and_then(|g| g.flotation_limit.flatten())
             .map(|l| l.level),
     };
-    let origin = result
+    let units = Units::of(UnitSystem::Si).with_datum(datum_origin(result));
+    svg::sweep_chart(&result.mesh, title, swept, &points, &marks, &units)
+}
+
+/// The project elevation of the mesh's origin, m (0 without a datum).
+fn datum_origin(result: &MeshResult) -> f64 {
+    result
         .inputs
         .datum
         .as_ref()
-        .map_or(0.0, |d| d.mesh_origin_elevation);
-    let units = Units::of(UnitSystem::Si).with_datum(origin);
-    svg::sweep_chart(&result.mesh, title, swept, &points, &marks, &units)
+        .map_or(0.0, |d| d.mesh_origin_elevation)
 }
 
 /// Writes `report.html` and every mesh's `<stem>.history.svg` in `results_dir`, from the
@@ -345,6 +375,7 @@ impl Page {
                         stem: self.layout.name(mesh_path),
                         mesh: name.clone(),
                         views: read_views(&self.layout, &self.layout.name(mesh_path), &doc),
+                        diagrams: read_diagrams(&self.layout, &self.layout.name(mesh_path), &doc),
                         result: Some(doc),
                     },
                 );
@@ -379,6 +410,7 @@ impl Page {
                     mesh: name.clone(),
                     result: None,
                     views: Vec::new(),
+                    diagrams: Vec::new(),
                 });
             }
         }
@@ -465,6 +497,25 @@ fn read_views(layout: &Layout, name: &str, doc: &Value) -> Vec<Option<Value>> {
         .collect()
 }
 
+/// The pressure diagram of every case of the result document `doc` named `<name>.json`,
+/// in its cases' order: the file's name and its text (`None` when there is no such file or
+/// it is not UTF-8).
+fn read_diagrams(layout: &Layout, name: &str, doc: &Value) -> Vec<(String, Option<String>)> {
+    let names: Vec<&str> = doc["cases"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .map(|c| c["name"].as_str().unwrap_or(""))
+        .collect();
+    results::case_parts(names.into_iter())
+        .iter()
+        .map(|part| {
+            let path = layout.section_of(name, part.as_deref());
+            (file_name(&path), fs::read_to_string(&path).ok())
+        })
+        .collect()
+}
+
 /// The result documents in `dir`: `*.json` files with `schema`, `mesh` and `cases`.
 fn read_results(dir: &Path) -> Vec<html::MeshEntry> {
     let layout = Layout::new(dir.to_owned());
@@ -488,6 +539,7 @@ fn read_results(dir: &Path) -> Vec<html::MeshEntry> {
                 let stem = results::stem(&p);
                 html::MeshEntry {
                     views: read_views(&layout, &stem, &doc),
+                    diagrams: read_diagrams(&layout, &stem, &doc),
                     stem,
                     mesh,
                     result: Some(doc),
@@ -546,6 +598,7 @@ mod tests {
                 "report.html",
                 "wall._._flood.csv",
                 "wall._._flood.nodal.csv",
+                "wall._._flood.section.svg",
                 "wall._._flood.sweep.svg",
                 "wall._._flood.view.json",
                 "wall._._flood.vtp",
@@ -553,6 +606,7 @@ mod tests {
                 "wall.json",
                 "wall.normal.csv",
                 "wall.normal.nodal.csv",
+                "wall.normal.section.svg",
                 "wall.normal.sweep.svg",
                 "wall.normal.view.json",
                 "wall.normal.vtp",
@@ -564,6 +618,8 @@ mod tests {
         assert_eq!(page.matches("<canvas class=\"v3d\"").count(), 2);
         assert_eq!(page.matches("<script>").count(), 1);
         assert!(!page.contains("no view file"));
+        // And each case's pressure diagram, inline.
+        assert_eq!(page.matches("<figure class=\"diagram\"><svg ").count(), 2);
         assert!(!page.contains("http-equiv=\"refresh\""));
         let sweep = fs::read_to_string(results.join("wall.normal.sweep.svg")).expect("svg");
         assert!(sweep.contains("level of liquid (m)"));

@@ -1,7 +1,8 @@
 //! Line charts as SVG: the load history of a mesh across design iterations
 //! (`results/<stem>.history.svg`), the loads against the level of a sweep
 //! (`results/<stem>[.<case>].sweep.svg`) and a floating case's righting-lever curve (on
-//! the page).
+//! the page); and, drawn by hand in `svg/section.rs`, a case's pressure diagram
+//! (`results/<stem>[.<case>].section.svg`).
 //!
 //! Owns the chart model ([`Chart`], [`Panel`], [`Series`]), its building from the change
 //! log and from sweeps, and the rendering into bytes with plotters' SVG backend (no font
@@ -30,8 +31,10 @@ use serde_json::Value;
 
 use crate::compute::SweepStep;
 
+mod section;
 mod stability;
 use crate::report::units::{Unit, Units};
+pub use section::{LABEL_GAP, SECTION_WIDTH, section_svg};
 pub use stability::stability_chart;
 
 /// One line of a chart: a label and its points (x, y in the units its panel names).

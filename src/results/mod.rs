@@ -10,6 +10,7 @@
 //!     ├── <name>[.<case>].nodal.csv  consistent nodal forces (`report::nodal`)
 //!     ├── <name>[.<case>].sweep.svg  loads against level, with a sweep (`report::svg`)
 //!     ├── <name>[.<case>].view.json  the page's 3D view of the case (`report::view`)
+//!     ├── <name>[.<case>].section.svg  the case's pressure diagram (`report::svg`)
 //!     ├── <name>.history.svg      headline loads at every computation in the change log
 //!     ├── <name>.edges.obj        open and non-manifold edges found by `wetload check`
 //!     ├── report.html             the folder's page (`report::html`)
@@ -180,6 +181,16 @@ impl Layout {
             nodal_loads: self.dir.join(format!("{base}.nodal.csv")),
             sweep_chart: self.dir.join(format!("{base}.sweep.svg")),
             view: self.dir.join(format!("{base}.view.json")),
+            section: self.dir.join(format!("{base}.section.svg")),
+        }
+    }
+
+    /// `<name>[.<case>].section.svg` for the result document `<name>.json` (`name` as
+    /// [`Layout::name`] gave it, `case` a part from [`case_parts`]).
+    pub fn section_of(&self, name: &str, case: Option<&str>) -> PathBuf {
+        match case {
+            Some(c) => self.dir.join(format!("{name}.{c}.section.svg")),
+            None => self.dir.join(format!("{name}.section.svg")),
         }
     }
 
@@ -251,6 +262,8 @@ pub struct Exports {
     pub sweep_chart: PathBuf,
     /// `.view.json`: the data of the page's 3D view (see `crate::report::view`).
     pub view: PathBuf,
+    /// `.section.svg`: the pressure diagram (see `crate::report::svg::section_svg`).
+    pub section: PathBuf,
 }
 
 /// `name` made safe as one component of a file name: path separators, characters that

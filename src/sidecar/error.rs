@@ -132,6 +132,14 @@ pub enum SidecarErrorKind {
     DuplicateCase { name: String, first: usize },
     #[error("direction {0:?} has no length: give a non-zero vector along the axis")]
     ZeroDirection([f64; 3]),
+    #[error(
+        "normal {0:?} has no length: give a non-zero horizontal vector square to the section's plane, e.g. [1, 0, 0]"
+    )]
+    ZeroNormal([f64; 3]),
+    #[error(
+        "normal {normal:?} is not horizontal (up is \"{up}\"): a section is a vertical plane, so its normal has no component along up; e.g. [1, 0, 0] cuts along the mesh's y axis"
+    )]
+    SectionNotVertical { normal: [f64; 3], up: &'static str },
     #[error("the sweep has several liquids to choose from ({0}): add \"liquid\": \"<name>\"")]
     SweepLiquid(String),
     #[error("step must be a number > 0 m, got {0}")]

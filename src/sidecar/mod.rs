@@ -12,6 +12,12 @@
 //! core's [`Profile`](crate::hydro::Profile), so the liquid rules live in one place.
 //! Lengths are metres in the mesh's own axes (after unit scaling), as CONTRACT.md says.
 //!
+//! Beyond CONTRACT.md's keys, `sections` is ours: named vertical planes for the pressure
+//! diagram, `{"<name>": {"point": [x, y, z], "normal": [nx, ny, nz]}}`, the point in
+//! `sidecar_units` and mesh axes, the normal of any length > 0 with no component along
+//! `up` (a tilt of up to a micro-radian is taken out); see [`NamedSection`]. A sidecar
+//! without it has only the default section through the resultant.
+//!
 //! The files, one concern each:
 //!
 //! - this file: the limits and defaults, and [`parse_sidecar`], the entry point that
@@ -41,7 +47,8 @@ pub use project::{PROJECT_FILE, Project, ProjectError, parse_project};
 pub use stability::{CriteriaSet, CriterionPreset, criteria_sets, find_criteria};
 pub use types::{
     AUTO_FIELD_EXPORT_FACETS, Case, Datum, FieldExports, Floating, Flotation, LengthUnit,
-    LiquidChoice, NamedAxis, NamedLiquid, PartRule, PartRules, Sidecar, Sweep, UnassignedPart,
+    LiquidChoice, NamedAxis, NamedLiquid, NamedSection, PartRule, PartRules, Sidecar, Sweep,
+    UnassignedPart,
 };
 pub use water::{LiquidPreset, liquid_presets, water_density_cipm};
 
@@ -991,6 +998,47 @@ mod tests {
                 .contains(r#"unknown preset "brine": the presets are "fresh_water_4c""#),
             "{e}"
         );
+    }
+
+    #[test]
+    fn sections_are_vertical_planes_in_the_sidecars_units() {
+        // No key: no named section, as every sidecar written before the key.
+        assert!(ok(&with(r#""gravity": 9.81"#)).sections.is_empty());
+        let s = ok(r#"{"units": "mm", "sidecar_units": "mm", "up": "+y",
+            "liquid": {"level": 5000, "density": 1000},
+            "sections": {"gate centre": {"point": [1000, 0, 2500], "normal": [3, 0, 4]}}}"#);
+        assert_eq!(s.sections.len(), 1);
+        assert_eq!(s.sections[0].name, "gate centre");
+        // Sidecar lengths in mm become metres, like the axes' points.
+        assert_eq!(s.sections[0].point_m, [1.0, 0.0, 2.5]);
+        // Closed form: (3, 0, 4)/5, horizontal for up = +y.
+        approx::assert_abs_diff_eq!(s.sections[0].normal[0], 0.6, epsilon = 1e-15);
+        approx::assert_abs_diff_eq!(s.sections[0].normal[2], 0.8, epsilon = 1e-15);
+
+        let text = "{\"units\": \"m\", \"liquid\": {\"level\": 5, \"density\": 1000},\n\"sections\": {\"a\": {\"point\": [0, 0, 0],\n\"normal\": [1, 0, 1]}}}";
+        let e = err(text);
+        assert_eq!(e.key, "sections.a.normal");
+        assert_eq!(e.line, Some(3));
+        let shown = e.to_string();
+        assert!(shown.starts_with("sidecar gate.json, line 3"), "{shown}");
+        assert!(shown.contains("not horizontal"), "{shown}");
+        assert!(shown.contains("at sections.a.normal"), "{shown}");
+
+        let e = err(&with(
+            r#""sections": {"a": {"point": [0, 0, 0], "normal": [0, 0, 0]}}"#,
+        ));
+        assert_eq!(e.key, "sections.a.normal");
+        assert_eq!(*e.kind, SidecarErrorKind::ZeroNormal([0.0; 3]));
+        let e = err(&with(
+            r#""sections": {"a": {"point": [0, 0], "normal": [1, 0, 0]}}"#,
+        ));
+        assert_eq!(e.key, "sections.a.point");
+        let e = err(&with(r#""sections": {"a": {"point": [0, 0, 0]}}"#));
+        assert!(e.to_string().contains("\"normal\""), "{e}");
+        let e = err(&with(
+            r#""sections": [{"point": [0, 0, 0], "normal": [1, 0, 0]}]"#,
+        ));
+        assert_eq!(e.key, "sections");
     }
 
     #[test]

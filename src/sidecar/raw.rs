@@ -54,6 +54,8 @@ pub(super) struct RawSidecar {
     pub sidecar_units: Option<LengthUnit>,
     #[serde(default, deserialize_with = "some")]
     pub datum: Option<RawDatum>,
+    #[serde(default, deserialize_with = "some")]
+    pub sections: Option<Named<RawSection>>,
 }
 
 /// The `datum` object: where the mesh's origin sits in the project's elevations.
@@ -108,6 +110,14 @@ pub(super) struct RawPart {
 pub(super) struct RawAxis {
     pub point: Triple,
     pub direction: Triple,
+}
+
+/// One entry of `sections`: a vertical plane for the pressure diagram.
+#[derive(Debug, Deserialize)]
+#[serde(remote = "Self", deny_unknown_fields)]
+pub(super) struct RawSection {
+    pub point: Triple,
+    pub normal: Triple,
 }
 
 /// One entry of `cases`: the keys of a liquid, a name, and per-liquid overrides.
@@ -211,6 +221,7 @@ object_only!(
     RawLayer: "a layer object such as {\"density\": 1000, \"down_to\": 2.0}",
     RawPart: "a part object such as {\"liquid\": \"headwater\", \"wet_side\": \"front\"}",
     RawAxis: "an axis object such as {\"point\": [0, 0, 0], \"direction\": [1, 0, 0]}",
+    RawSection: "a section object such as {\"point\": [0, 2.5, 0], \"normal\": [0, 1, 0]}",
     RawCase: "a case object such as {\"name\": \"flood\", \"level\": 9.0}",
     RawSweep: "a sweep object such as {\"from\": 2.0, \"to\": 8.0, \"step\": 0.25}",
     RawFlotation: "a flotation object such as {\"resisting\": {\"weight\": 1.0e6}, \"required_factor\": 1.3}",

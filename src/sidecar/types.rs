@@ -67,6 +67,9 @@ pub struct Sidecar {
     pub moment_about_m: [f64; 3],
     /// Named axes for moments, in file order.
     pub axes: Vec<NamedAxis>,
+    /// Named vertical planes of the pressure diagram (besides the default one), in file
+    /// order.
+    pub sections: Vec<NamedSection>,
     /// The load cases, never empty; each holds every liquid fully resolved.
     pub cases: Vec<Case>,
     /// A level sweep, if asked for.
@@ -143,6 +146,9 @@ impl Sidecar {
         self.moment_about_m = self.moment_about_m.map(|v| v * scale);
         for a in &mut self.axes {
             a.point_m = a.point_m.map(|v| v * scale);
+        }
+        for c in &mut self.sections {
+            c.point_m = c.point_m.map(|v| v * scale);
         }
         self
     }
@@ -314,6 +320,17 @@ pub struct NamedAxis {
     pub point_m: [f64; 3],
     /// Unit vector (normalised from the file's direction, which may have any length > 0).
     pub direction: [f64; 3],
+}
+
+/// The sidecar key `sections`: a named vertical plane the pressure diagram is drawn in.
+#[derive(Clone, Debug, PartialEq)]
+pub struct NamedSection {
+    pub name: String,
+    /// A point of the plane, m, mesh axes.
+    pub point_m: [f64; 3],
+    /// The plane's unit normal, mesh axes, perpendicular to `up` (normalised from the
+    /// file's, which may have any length > 0).
+    pub normal: [f64; 3],
 }
 
 /// The level of one liquid stepped from `from_m` to `to_m` inclusive.

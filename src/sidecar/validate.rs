@@ -11,8 +11,8 @@ use super::raw::{KeyPath, RawLiquid, RawSidecar};
 use super::types::sweep_steps;
 use super::{
     Case, DEFAULT_CASE_NAME, DEFAULT_GRAVITY_M_S2, Flotation, LiquidChoice, NamedAxis, NamedLiquid,
-    PartRule, PartRules, SHORTHAND_LIQUID_NAME, Sidecar, SidecarErrorKind, Sweep, factor_presets,
-    flotation,
+    NamedSection, PartRule, PartRules, SHORTHAND_LIQUID_NAME, Sidecar, SidecarErrorKind, Sweep,
+    factor_presets, flotation,
 };
 use crate::hydro::UpAxis;
 
@@ -102,6 +102,36 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
             name: name.clone(),
             point_m: axis.point.0,
             direction,
+        });
+    }
+
+    let mut sections = Vec::new();
+    for (name, section) in raw.sections.iter().flat_map(|c| &c.0) {
+        let key = root.key("sections").key(name).key("normal");
+        let given = section.normal.0;
+        let n = unit_vector(given).ok_or_else(|| problem(key.clone(), K::ZeroNormal(given)))?;
+        // Vertical up to a tilt of a micro-radian; the rest is written-out round-off and is
+        // taken out, so the plane holds the vertical exactly.
+        let u = up.unit();
+        let along_up = n[0] * u.x + n[1] * u.y + n[2] * u.z;
+        if along_up.abs() > SECTION_TILT {
+            return Err(problem(
+                key,
+                K::SectionNotVertical {
+                    normal: given,
+                    up: up.as_str(),
+                },
+            ));
+        }
+        let flat = [
+            n[0] - along_up * u.x,
+            n[1] - along_up * u.y,
+            n[2] - along_up * u.z,
+        ];
+        sections.push(NamedSection {
+            name: name.clone(),
+            point_m: section.point.0,
+            normal: unit_vector(flat).unwrap_or(n),
         });
     }
 
@@ -356,6 +386,7 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
         parts,
         moment_about_m: raw.moment_about.map_or([0.0; 3], |t| t.0),
         axes,
+        sections,
         cases,
         sweep,
         flotation,
@@ -365,6 +396,10 @@ pub(super) fn validate(raw: RawSidecar) -> Result<Sidecar, Problem> {
     }
     .into_mesh_frame())
 }
+
+/// The largest component along up (of the unit normal) a section's normal may have: the
+/// sine of a micro-radian's tilt.
+const SECTION_TILT: f64 = 1e-6;
 
 /// `v` scaled to length 1, or `None` when it has no length. Divides by the largest
 /// component first, so neither huge nor tiny components overflow or underflow.

@@ -73,7 +73,8 @@ pub struct WatchOptions {
     pub verbose: bool,
     /// How many times a file that looks half-written is retried before it counts as broken.
     pub retries: u32,
-    /// The units of the terminal lines (result files are SI either way).
+    /// The units of the terminal lines, the page and the pressure diagrams (result files
+    /// are SI either way).
     pub units: crate::report::units::UnitSystem,
 }
 
@@ -579,7 +580,7 @@ impl Watch<'_> {
             Err(e) => return self.failed(mesh, &name, &e, schedule),
         };
         let layout = self.layout().clone();
-        let dropped = match pipeline::write_computed(&layout, mesh, &computed) {
+        let dropped = match pipeline::write_computed(&layout, mesh, &computed, self.opts.units) {
             Ok(d) => d,
             Err(e) => {
                 // A full or read-only results folder: say so once, keep running, try

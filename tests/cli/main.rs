@@ -10,6 +10,7 @@ mod determinism;
 mod errors;
 mod iterations;
 mod presentation;
+mod section;
 mod traps;
 
 use std::fs;

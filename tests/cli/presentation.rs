@@ -227,7 +227,7 @@ fn exports_of_cases_that_no_longer_exist_are_removed() {
             .filter(|n| !n.ends_with(".history.svg"))
             .collect()
     };
-    assert_eq!(exports(&f), ["wall.csv", "wall.vtp"]);
+    assert_eq!(exports(&f), ["wall.csv", "wall.section.svg", "wall.vtp"]);
     // One default case becomes two named ones: the default's files go.
     f.write(
         "wall.json",
@@ -239,8 +239,10 @@ fn exports_of_cases_that_no_longer_exist_are_removed() {
         exports(&f),
         [
             "wall.flood.csv",
+            "wall.flood.section.svg",
             "wall.flood.vtp",
             "wall.normal.csv",
+            "wall.normal.section.svg",
             "wall.normal.vtp"
         ]
     );
@@ -255,8 +257,10 @@ fn exports_of_cases_that_no_longer_exist_are_removed() {
         exports(&f),
         [
             "wall.extreme.csv",
+            "wall.extreme.section.svg",
             "wall.extreme.vtp",
             "wall.normal.csv",
+            "wall.normal.section.svg",
             "wall.normal.vtp"
         ]
     );

@@ -111,6 +111,10 @@ const KEYS: &[(Base, &str, Kind)] = &[
     (Base::Shorthand, "axes.hinge", Kind::Object),
     (Base::Shorthand, "axes.hinge.point", Kind::Triple),
     (Base::Shorthand, "axes.hinge.direction", Kind::Triple),
+    (Base::Shorthand, "sections", Kind::Named),
+    (Base::Shorthand, "sections.middle", Kind::Object),
+    (Base::Shorthand, "sections.middle.point", Kind::Triple),
+    (Base::Shorthand, "sections.middle.normal", Kind::Triple),
     (Base::Shorthand, "cases", Kind::Array),
     (Base::Shorthand, "cases[0]", Kind::Object),
     (Base::Shorthand, "cases[0].name", Kind::Text),
@@ -189,6 +193,7 @@ fn shorthand() -> Value {
         "parts": {"*": {"liquid": "liquid", "wet_side": "outside"}},
         "moment_about": [0, 0, 0],
         "axes": {"hinge": {"point": [0, 0, 0], "direction": [1, 0, 0]}},
+        "sections": {"middle": {"point": [0, 0, 0], "normal": [0, 1, 0]}},
         "cases": [
             {"name": "flood", "level": 0.0, "surface_pressure": 10, "density": 1000,
              "floating": {"mass": 2000}},

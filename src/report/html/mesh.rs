@@ -118,6 +118,9 @@ pub(super) fn mesh_section(s: &mut String, m: &MeshEntry, log: &[Value], units: 
         case_block(s, &m.mesh, c, several_parts, contained, u);
         let view = m.views.get(i).and_then(Option::as_ref);
         view3d::view_block(s, &format!("{}-view-{i}", anchor(&m.stem)), view, u);
+        if let Some((file, svg)) = m.diagrams.get(i) {
+            super::diagram::diagram_block(s, svg.as_deref(), file);
+        }
     }
 
     changes(s, &lines, u);

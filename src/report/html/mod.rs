@@ -43,6 +43,7 @@
 
 mod case;
 mod changes;
+mod diagram;
 mod format;
 mod inputs;
 mod mesh;
@@ -73,6 +74,9 @@ pub struct MeshEntry {
     /// The 3D view file of each case (`crate::report::view`), in the order of the
     /// result's cases; `None` where it could not be read.
     pub views: Vec<Option<Value>>,
+    /// The pressure diagram of each case (`crate::report::svg::section_svg`), in the order
+    /// of the result's cases: its file name and its text, `None` where there is no file.
+    pub diagrams: Vec<(String, Option<String>)>,
 }
 
 /// Everything the page shows.
@@ -327,12 +331,14 @@ mod tests {
                 mesh: "gate.stl".into(),
                 result: Some(result(stale)),
                 views: Vec::new(),
+                diagrams: Vec::new(),
             },
             MeshEntry {
                 stem: "broken".into(),
                 mesh: "broken.obj".into(),
                 result: None,
                 views: Vec::new(),
+                diagrams: Vec::new(),
             },
         ];
         let log = log();
@@ -428,6 +434,7 @@ mod tests {
             mesh: "gate.stl".into(),
             result: Some(result(false)),
             views: Vec::new(),
+            diagrams: Vec::new(),
         }];
         let project = Project {
             project: Some("North weir <refit>".into()),
