@@ -25,6 +25,7 @@ pub mod float;
 mod integrate;
 mod loads;
 mod pressure;
+pub mod progress;
 mod sweep;
 mod topology;
 
@@ -32,7 +33,8 @@ pub use clip::{Piece, clip_polygon, slab_pieces};
 pub use integrate::{CHUNK, FacetLoads, PartAccum, PartInput, facet_loads, integrate, part_planes};
 pub use loads::{LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of};
 pub use pressure::{Layer, Liquid, LiquidError, Profile};
-pub use sweep::{SweepPart, SweptLiquid, sweep};
+pub use progress::{Progress, Quiet, Stage, Tally};
+pub use sweep::{SweepPart, SweptLiquid, sweep, sweep_with};
 pub use topology::{
     Defect, EdgeFault, NO_SHELL, ShellInfo, Topology, WELD_TOLERANCE_REL, bounding_box,
 };

@@ -53,7 +53,7 @@ use rayon::prelude::*;
 
 use super::clip::slab_pieces;
 use super::integrate::{CHUNK, PartAccum, facet_loads, part_planes};
-use super::{Liquid, LiquidError, Profile, Tri, Tris, Vec3, Wetting};
+use super::{Liquid, LiquidError, Profile, Tally, Tri, Tris, Vec3, Wetting};
 
 /// What the sweep needs to know about one part.
 #[derive(Clone, Debug)]
@@ -102,11 +102,36 @@ pub fn sweep<T: Tris + ?Sized>(
     swept: &SweptLiquid<'_>,
     levels_m: &[f64],
 ) -> Result<Vec<PartAccum>, LiquidError> {
-    sweep_in_batches(tris, parts, wetting, vol_sign, swept, levels_m, CUT_BUDGET)
+    sweep_with(
+        tris,
+        parts,
+        wetting,
+        vol_sign,
+        swept,
+        levels_m,
+        &Tally::quiet(),
+    )
 }
 
-/// [`sweep`] listing at most `cut_budget` (level, facet) pairs at once (but always at
+/// [`sweep`], counting the levels done on `tally` (its total is the number of levels; the
+/// count rises as levels are finished, in any order, and never changes a sum).
+pub fn sweep_with<T: Tris + ?Sized>(
+    tris: &T,
+    parts: &[SweepPart],
+    wetting: &[Wetting],
+    vol_sign: &[i8],
+    swept: &SweptLiquid<'_>,
+    levels_m: &[f64],
+    tally: &Tally<'_>,
+) -> Result<Vec<PartAccum>, LiquidError> {
+    sweep_in_batches(
+        tris, parts, wetting, vol_sign, swept, levels_m, CUT_BUDGET, tally,
+    )
+}
+
+/// [`sweep_with`] listing at most `cut_budget` (level, facet) pairs at once (but always at
 /// least one level).
+#[allow(clippy::too_many_arguments)] // those of `sweep_with`, and the budget tests lower
 fn sweep_in_batches<T: Tris + ?Sized>(
     tris: &T,
     parts: &[SweepPart],
@@ -115,7 +140,9 @@ fn sweep_in_batches<T: Tris + ?Sized>(
     swept: &SweptLiquid<'_>,
     levels_m: &[f64],
     cut_budget: usize,
+    tally: &Tally<'_>,
 ) -> Result<Vec<PartAccum>, LiquidError> {
+    tally.begin(levels_m.len() as u64);
     // Every level's profile, exactly as a single calculation builds it.
     let mut order: Vec<usize> = (0..levels_m.len()).collect();
     order.sort_by(|&a, &b| levels_m[a].total_cmp(&levels_m[b]));
@@ -281,6 +308,8 @@ fn sweep_in_batches<T: Tris + ?Sized>(
                     );
                     acc.add_facet(&loads);
                 }
+                // One report a level (not a facet): the lock is nothing next to the level.
+                tally.add(1);
                 acc
             })
             .collect();
@@ -839,7 +868,8 @@ mod tests {
         let b = run(2, &up);
         assert_eq!(a, b);
         // One level per batch of cut facets: the same sums in the same order.
-        let one_by_one = sweep_in_batches(&t, &parts, &w, &v, &swept, &up, 1).expect("valid");
+        let one_by_one =
+            sweep_in_batches(&t, &parts, &w, &v, &swept, &up, 1, &Tally::quiet()).expect("valid");
         assert_eq!(a, one_by_one);
         let mut c = run(2, &down);
         c.reverse();

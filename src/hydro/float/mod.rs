@@ -41,7 +41,7 @@ mod solve;
 
 pub use curve::{Criterion, CriterionCheck, Summary, evaluate, summarise};
 pub use section::{Hull, Section};
-pub use solve::{Attitude, Body, Solution, solve};
+pub use solve::{Attitude, Body, Solution, solve, solve_with};
 
 use nalgebra::Matrix3;
 use thiserror::Error;

@@ -1,7 +1,7 @@
 //! The equilibrium attitude and the trim-free branch at constant displacement (see the
 //! module doc of [`super`] for the axes, the branch and the rule that picks the root).
 
-use super::super::Vec3;
+use super::super::{Tally, Vec3};
 use super::section::{Hull, Section};
 use super::{EQUILIBRIUM_REL, FloatError};
 
@@ -106,6 +106,17 @@ pub struct Solution {
 /// `heel_angles_deg` must lie in [−90°, 90°] (the caller validates). A body heavier than
 /// its whole volume of liquid sinks: `sinks_kg` is set and nothing else is solved.
 pub fn solve(hull: &Hull, body: &Body, heel_angles_deg: &[f64]) -> Result<Solution, FloatError> {
+    solve_with(hull, body, heel_angles_deg, &Tally::quiet())
+}
+
+/// [`solve`], counting the heel angles solved on `tally` (the grid's and the listed ones,
+/// each once); the equilibrium found from them comes after the last.
+pub fn solve_with(
+    hull: &Hull,
+    body: &Body,
+    heel_angles_deg: &[f64],
+    tally: &Tally<'_>,
+) -> Result<Solution, FloatError> {
     let finite = body.mass_kg.is_finite()
         && body.density_kg_m3.is_finite()
         && body.centre_of_gravity.iter().all(|x| x.is_finite())
@@ -136,14 +147,6 @@ pub fn solve(hull: &Hull, body: &Body, heel_angles_deg: &[f64]) -> Result<Soluti
     positive.extend(heel_angles_deg.iter().copied().filter(|a| *a >= 0.0));
     positive.sort_by(f64::total_cmp);
     positive.dedup();
-    let mut solved: Vec<(f64, Attitude)> = Vec::new();
-    let mut prev: Option<Attitude> = None;
-    for phi in positive {
-        let a = s.branch(phi, prev.as_ref())?;
-        solved.push((phi, a));
-        prev = Some(a);
-    }
-    let upright = solved[0].1;
     let mut negative: Vec<f64> = heel_angles_deg
         .iter()
         .copied()
@@ -151,11 +154,22 @@ pub fn solve(hull: &Hull, body: &Body, heel_angles_deg: &[f64]) -> Result<Soluti
         .collect();
     negative.sort_by(|a, b| b.total_cmp(a));
     negative.dedup();
+    tally.begin((positive.len() + negative.len()) as u64);
+    let mut solved: Vec<(f64, Attitude)> = Vec::new();
+    let mut prev: Option<Attitude> = None;
+    for phi in positive {
+        let a = s.branch(phi, prev.as_ref())?;
+        solved.push((phi, a));
+        prev = Some(a);
+        tally.add(1);
+    }
+    let upright = solved[0].1;
     let mut prev = upright;
     for phi in negative {
         let a = s.branch(phi, Some(&prev))?;
         solved.push((phi, a));
         prev = a;
+        tally.add(1);
     }
     let find = |phi: f64| solved.iter().find(|(p, _)| *p == phi).map(|(_, a)| *a);
     out.grid = (0..=90).filter_map(|k| find(f64::from(k))).collect();
