@@ -8,7 +8,7 @@ use serde::Serialize;
 use super::surface::Surface;
 use super::{ComputeError, Prepared};
 use crate::hydro::float::{self, Attitude, Body, Hull};
-use crate::hydro::{UpAxis, Vec3, WetSide};
+use crate::hydro::{Tally, UpAxis, Vec3, WetSide};
 use crate::sidecar::{Floating, Sidecar};
 
 /// The caution written with every floating result.
@@ -137,6 +137,7 @@ pub(super) fn floating(
     case: &str,
     f: &Floating,
     density_kg_m3: f64,
+    tally: &Tally<'_>,
 ) -> Result<(FloatingResult, Surface, Vec<String>), ComputeError> {
     let outside = sidecar.wet_side.is_none_or(|w| w == WetSide::Outside);
     if !prep.wet.closed || !outside {
@@ -161,10 +162,11 @@ pub(super) fn floating(
         density_kg_m3,
         length_axis: frame.vector_in([a.x, a.y, a.z]),
     };
-    let sol =
-        float::solve(&hull, &body, &f.heel_angles_deg).map_err(|e| ComputeError::Floating {
+    let sol = float::solve_with(&hull, &body, &f.heel_angles_deg, tally).map_err(|e| {
+        ComputeError::Floating {
             message: e.to_string(),
-        })?;
+        }
+    })?;
     let out = |v: Vec3| frame.vector_out(v);
     let point = |v: Vec3| frame.vector_out(v + c);
     let mut warnings = Vec::new();

@@ -46,7 +46,7 @@ pub use sweep::{Extreme, FlotationLimit, Governing, governing};
 
 use thiserror::Error;
 
-use crate::hydro::{LiquidError, Tris, Vec3, WetSide};
+use crate::hydro::{LiquidError, Progress, Quiet, Stage, Tally, Tris, Vec3, WetSide};
 use crate::mesh::Mesh;
 use crate::sidecar::{AUTO_FIELD_EXPORT_FACETS, FieldExports, Sidecar, UnassignedPart};
 use cases::{assemble, echo, run};
@@ -145,6 +145,18 @@ pub fn compute_model(
     mesh: Mesh,
     sidecar: &Sidecar,
 ) -> Result<(MeshResult, Model), ComputeError> {
+    compute_model_with(mesh_name, mesh, sidecar, &Quiet)
+}
+
+/// [`compute_model`], telling `progress` how far it has got: the topology, then per case
+/// its integration, its floating body's heel angles, its sweep's levels and its flotation
+/// limit's halvings (see [`Stage`]). The results are the same bits with any sink.
+pub fn compute_model_with(
+    mesh_name: &str,
+    mesh: Mesh,
+    sidecar: &Sidecar,
+    progress: &dyn Progress,
+) -> Result<(MeshResult, Model), ComputeError> {
     if mesh.facets.is_empty() {
         return Err(ComputeError::Empty);
     }
@@ -156,7 +168,9 @@ pub fn compute_model(
         });
     }
     let mut warnings = Vec::new();
+    progress.report(Stage::Topology, 0, 1);
     let (prep, early) = prepare(mesh, sidecar, &mut warnings)?;
+    progress.report(Stage::Topology, 1, 1);
     let facets = prep.tris.count();
     if sidecar.field_exports == FieldExports::Auto && !sidecar.field_exports.writes(facets) {
         warnings.push(format!(
@@ -167,8 +181,18 @@ pub fn compute_model(
     let mut cases = Vec::with_capacity(sidecar.cases.len());
     let mut surfaces = Vec::with_capacity(sidecar.cases.len());
     let ahead = early.profiles.into_iter().zip(early.accs);
-    for (case, (profiles, ahead)) in sidecar.cases.iter().zip(ahead) {
+    for (k, (case, (profiles, ahead))) in sidecar.cases.iter().zip(ahead).enumerate() {
         let profiles = profiles?;
+        // Case `no` of `of`, as the stages count them.
+        let (no, of) = (k + 1, sidecar.cases.len());
+        progress.report(
+            Stage::Case {
+                case: no,
+                cases: of,
+            },
+            0,
+            1,
+        );
         // A floating case is solved first: its loads are integrated on the solved free
         // surface (surface.rs), not at the liquid's given level.
         let (floating, surface) = match &case.floating {
@@ -178,8 +202,15 @@ pub fn compute_model(
                     .layers
                     .first()
                     .map_or(0.0, |l| l.density_kg_m3);
+                let tally = Tally::new(
+                    progress,
+                    Stage::Curve {
+                        case: no,
+                        cases: of,
+                    },
+                );
                 let (result, surface, found) =
-                    floating::floating(&prep, sidecar, &case.name, f, density)?;
+                    floating::floating(&prep, sidecar, &case.name, f, density, &tally)?;
                 warnings.extend(found);
                 (Some(result), Some(surface))
             }
@@ -207,7 +238,16 @@ pub fn compute_model(
                 ));
                 None
             }
-            (Some(sw), None) => Some(sweep_steps(&prep, sidecar, case, sw, &accs)?),
+            (Some(sw), None) => {
+                let tally = Tally::new(
+                    progress,
+                    Stage::Sweep {
+                        case: no,
+                        cases: of,
+                    },
+                );
+                Some(sweep_steps(&prep, sidecar, case, sw, &accs, &tally)?)
+            }
         };
         let mut sweep_governing = sweep
             .as_deref()
@@ -217,7 +257,15 @@ pub fn compute_model(
             (&mut sweep_governing, sweep.as_deref(), &sidecar.sweep)
             && sidecar.flotation.is_some()
         {
-            g.flotation_limit = Some(flotation_limit(&prep, sidecar, case, sw, &accs, steps)?);
+            let tally = Tally::new(
+                progress,
+                Stage::FlotationLimit {
+                    case: no,
+                    cases: of,
+                },
+            );
+            let limit = flotation_limit(&prep, sidecar, case, sw, &accs, steps, &tally)?;
+            g.flotation_limit = Some(limit);
         }
         let flotation = sidecar
             .flotation
@@ -243,6 +291,14 @@ pub fn compute_model(
             sweep_governing,
             flotation,
         });
+        progress.report(
+            Stage::Case {
+                case: no,
+                cases: of,
+            },
+            1,
+            1,
+        );
     }
 
     let (lo, hi) = prep.local_box;
@@ -448,5 +504,105 @@ mod tests {
         let cp = l.centre_of_pressure.expect("planar");
         assert_relative_eq!(-cp[2], 26.0 / 12.0, max_relative = 1e-13);
         assert_relative_eq!(cp[0], 1.0, epsilon = 1e-12);
+    }
+
+    /// The result as JSON text: every number in its shortest round-trip form, so equal
+    /// texts are equal bits (and -0 differs from 0).
+    fn bits(r: &MeshResult) -> String {
+        serde_json::to_string(r).expect("serializes")
+    }
+
+    /// Computes with a recording sink, on `threads` threads.
+    fn recorded(
+        m: &Mesh,
+        s: &Sidecar,
+        threads: usize,
+    ) -> (MeshResult, crate::hydro::progress::tests::Recorder) {
+        let sink = crate::hydro::progress::tests::Recorder::default();
+        let r = rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .expect("a pool")
+            .install(|| compute_model_with("p", m.clone(), s, &sink))
+            .expect("computes")
+            .0;
+        (r, sink)
+    }
+
+    #[test]
+    fn progress_counts_every_level_of_a_sweep_and_changes_no_bit() {
+        use crate::hydro::progress::tests::assert_counts_up_to;
+        // The box of tests/reference/sweep.rs: the flotation limit lies between 2.0 and 2.5 m.
+        let m = mesh(vec![("b", shapes::box_solid([0.0; 3], [2.0, 3.0, 4.0], 6))]);
+        let s = side(
+            r#"{"units": "m", "liquid": {"level": 1.0, "density": 1000},
+                "flotation": {"resisting": {"structure": 200000}, "required_factor": 1.5},
+                "sweep": {"from": 0.0, "to": 4.0, "step": 0.05},
+                "cases": [{"name": "a"}, {"name": "b", "density": 1025}]}"#,
+        );
+        let quiet = compute("p", &m, &s).expect("computes");
+        let levels = quiet.cases[0].sweep.as_ref().expect("a sweep").len() as u64;
+        assert_eq!(levels, 81);
+        for threads in [1, 2] {
+            let (r, sink) = recorded(&m, &s, threads);
+            assert_eq!(bits(&r), bits(&quiet), "{threads} thread(s)");
+            assert_eq!(sink.of(Stage::Topology), vec![(0, 1), (1, 1)]);
+            for case in [1, 2] {
+                let cases = 2;
+                assert_eq!(sink.of(Stage::Case { case, cases }), vec![(0, 1), (1, 1)]);
+                assert_counts_up_to(&sink.of(Stage::Sweep { case, cases }), levels);
+                // The bisection stops early (1e-12 of the bracket) and is then finished.
+                assert_counts_up_to(&sink.of(Stage::FlotationLimit { case, cases }), 80);
+            }
+            // Stages come in order: the topology, then each case's integration, sweep and
+            // limit before the next case begins.
+            let order: Vec<Stage> = sink
+                .0
+                .lock()
+                .expect("not poisoned")
+                .iter()
+                .map(|r| r.0)
+                .collect();
+            let mut firsts = order.clone();
+            firsts.dedup();
+            assert_eq!(
+                firsts,
+                vec![
+                    Stage::Topology,
+                    Stage::Case { case: 1, cases: 2 },
+                    Stage::Sweep { case: 1, cases: 2 },
+                    Stage::FlotationLimit { case: 1, cases: 2 },
+                    Stage::Case { case: 1, cases: 2 },
+                    Stage::Case { case: 2, cases: 2 },
+                    Stage::Sweep { case: 2, cases: 2 },
+                    Stage::FlotationLimit { case: 2, cases: 2 },
+                    Stage::Case { case: 2, cases: 2 },
+                ]
+            );
+        }
+    }
+
+    #[test]
+    fn progress_counts_every_heel_angle_of_a_stability_curve_and_changes_no_bit() {
+        use crate::hydro::progress::tests::assert_counts_up_to;
+        let hull = shapes::box_solid([-10.0, -3.0, 0.0], [10.0, 3.0, 3.0], 2);
+        let m = mesh(vec![("b", hull)]);
+        // The 0°…90° grid and two listed angles, one of them on the grid: 91 + 1 + 1.
+        let s = side(
+            r#"{"units": "m", "liquid": {"level": 1.0, "density": 1025},
+                "floating": {"mass": 150000, "centre_of_gravity": [0, 0, 1.8],
+                             "heel_angles": [12.5, 30, -7]}}"#,
+        );
+        let quiet = compute("p", &m, &s).expect("computes");
+        assert!(quiet.cases[0].floating.is_some());
+        for threads in [1, 2] {
+            let (r, sink) = recorded(&m, &s, threads);
+            assert_eq!(bits(&r), bits(&quiet), "{threads} thread(s)");
+            assert_counts_up_to(&sink.of(Stage::Curve { case: 1, cases: 1 }), 93);
+            assert_eq!(
+                sink.of(Stage::Case { case: 1, cases: 1 }),
+                vec![(0, 1), (1, 1)]
+            );
+        }
     }
 }

@@ -10,7 +10,7 @@ use serde::Serialize;
 use super::cases::loads_of;
 use super::flotation::flotation_check;
 use super::{ComputeError, Loads, Prepared, SweepStep};
-use crate::hydro::{self, PartAccum, Vec3};
+use crate::hydro::{self, PartAccum, Tally, Vec3};
 use crate::sidecar::{Case, Sidecar, Sweep};
 
 /// The steps of a level sweep in one case: the parts the swept liquid does not reach
@@ -21,9 +21,10 @@ pub(super) fn sweep_steps(
     case: &Case,
     sw: &Sweep,
     accs: &[PartAccum],
+    tally: &Tally<'_>,
 ) -> Result<Vec<SweepStep>, ComputeError> {
     let levels = sw.levels();
-    let loads = loads_at(prep, sidecar, case, sw, accs, &levels)?;
+    let loads = loads_at(prep, sidecar, case, sw, accs, &levels, tally)?;
     // A net uplift within round-off of the sweep's largest loads counts as none (at a level
     // through a body's base the sums cancel to a few ulps, which would give FS ≈ 1e16).
     let noise = uplift_noise(&loads);
@@ -65,6 +66,7 @@ fn loads_at(
     sw: &Sweep,
     accs: &[PartAccum],
     levels: &[f64],
+    tally: &Tally<'_>,
 ) -> Result<Vec<Loads>, ComputeError> {
     let closed = prep.wet.closed;
     let mut fixed = PartAccum::default();
@@ -88,13 +90,14 @@ fn loads_at(
         g_m_s2: sidecar.gravity_m_s2,
         origin_z: prep.centre.z,
     };
-    let sums = hydro::sweep(
+    let sums = hydro::sweep_with(
         &prep.tris,
         &parts,
         &prep.wet.wetting,
         &prep.wet.vol_sign,
         &swept,
         levels,
+        tally,
     )
     .map_err(|source| ComputeError::Liquid {
         case: case.name.clone(),
@@ -143,6 +146,7 @@ pub(super) fn flotation_limit(
     sw: &Sweep,
     accs: &[PartAccum],
     steps: &[SweepStep],
+    tally: &Tally<'_>,
 ) -> Result<Option<FlotationLimit>, ComputeError> {
     let Some(f) = &sidecar.flotation else {
         return Ok(None);
@@ -165,18 +169,22 @@ pub(super) fn flotation_limit(
     let target = resisting / required;
     let (mut lo, mut hi) = (steps[k - 1].level, steps[k].level);
     let width = hi - lo;
-    for _ in 0..80 {
+    const HALVINGS: u64 = 80;
+    tally.begin(HALVINGS);
+    for _ in 0..HALVINGS {
         if hi - lo <= 1e-12 * width.max(f64::MIN_POSITIVE) {
             break;
         }
         let mid = 0.5 * (lo + hi);
-        let l = &loads_at(prep, sidecar, case, sw, accs, &[mid])?[0];
+        let l = &loads_at(prep, sidecar, case, sw, accs, &[mid], &Tally::quiet())?[0];
         if l.vertical_force.max(0.0) > target {
             hi = mid;
         } else {
             lo = mid;
         }
+        tally.add(1);
     }
+    tally.finish();
     Ok(Some(FlotationLimit {
         level: 0.5 * (lo + hi),
         required_factor: required,
