@@ -19,6 +19,7 @@ use std::path::{Path, PathBuf};
 use thiserror::Error;
 
 use crate::compute::{self, ComputeError, MeshResult, Model};
+use crate::hydro::{Progress, Quiet, Stage, Tally};
 use crate::mesh::{self, BinaryStl, Mesh, MeshError};
 use crate::report;
 use crate::report::units::UnitSystem;
@@ -161,12 +162,15 @@ const STREAM_BLOCK: usize = 16_384 * BinaryStl::RECORD;
 ///
 /// A binary STL (by its size, as [`mesh::read_stl`] decides) is converted a block at a
 /// time, so its bytes are never held whole: for a million facets that is 50 MB less to
-/// allocate and touch. Any other file is read whole and parsed as usual.
+/// allocate and touch. Any other file is read whole and parsed as usual. `progress` hears
+/// the bytes read ([`Stage::ReadingMesh`]) after every block, or before and after the
+/// whole read and parse of another file.
 fn read_mesh_streamed(
     path: &Path,
     mut file: fs::File,
     len: u64,
     hasher: &mut blake3::Hasher,
+    progress: &dyn Progress,
 ) -> Result<Mesh, RunError> {
     let limits = crate::limits::current();
     let io_err = |source| RunError::Read {
@@ -191,6 +195,8 @@ fn read_mesh_streamed(
                 file.read_exact(buf)
             };
             hasher.update(&header);
+            let total = (len - header_len) as usize;
+            progress.report(Stage::ReadingMesh, 0, len);
             read(&mut next, &mut left).map_err(io_err)?;
             while !next.is_empty() {
                 std::mem::swap(&mut next, &mut last);
@@ -202,11 +208,15 @@ fn read_mesh_streamed(
                     },
                 );
                 got.map_err(io_err)?;
+                // The blocks converted so far (one block stays read ahead).
+                let done = header_len + (total - left - next.len()) as u64;
+                progress.report(Stage::ReadingMesh, done, len);
             }
             return Ok(builder.finish(path)?);
         }
     }
     // Not a binary STL by its size: the whole file, within the cap even if it grows.
+    progress.report(Stage::ReadingMesh, 0, len);
     let read = if is_stl && len >= header_len {
         header.to_vec()
     } else {
@@ -215,14 +225,16 @@ fn read_mesh_streamed(
     let bytes = crate::limits::read_rest_capped(file, len, limits.max_file_bytes, read)
         .map_err(|e| read_error(path, e, false))?;
     hasher.update(&bytes);
-    Ok(mesh::read_mesh_with(path, &bytes, &limits)?)
+    let mesh = mesh::read_mesh_with(path, &bytes, &limits)?;
+    progress.report(Stage::ReadingMesh, len, len);
+    Ok(mesh)
 }
 
 /// Reads and parses a mesh file alone, under the limits of [`crate::limits::current`]
 /// (a binary STL a block at a time, as in [`calc_file`]).
 pub fn read_mesh_file(path: &Path) -> Result<Mesh, RunError> {
     let (file, len) = open_capped(path, crate::limits::current().max_file_bytes)?;
-    read_mesh_streamed(path, file, len, &mut blake3::Hasher::new())
+    read_mesh_streamed(path, file, len, &mut blake3::Hasher::new(), &Quiet)
 }
 
 /// Parses and computes inputs already read (no file system access).
@@ -242,26 +254,46 @@ pub struct Computed {
 /// dropped as soon as the mesh is read, and the mesh is given up to the computation, so
 /// no two copies of a large mesh are held at once.
 pub fn compute_parsed(mesh_path: &Path, inputs: Inputs) -> Result<Computed, RunError> {
+    compute_parsed_with(mesh_path, inputs, &Quiet)
+}
+
+/// [`compute_parsed`], telling `progress` how far it has got (the parse of the mesh's
+/// bytes as [`Stage::ReadingMesh`], then the stages of [`compute::compute_model_with`]).
+pub fn compute_parsed_with(
+    mesh_path: &Path,
+    inputs: Inputs,
+    progress: &dyn Progress,
+) -> Result<Computed, RunError> {
     let sidecar = sidecar::parse_sidecar(&sidecar_path(mesh_path), &inputs.sidecar_text)?;
     let project = read_project(mesh_path)?;
+    let len = inputs.mesh_bytes.len() as u64;
+    progress.report(Stage::ReadingMesh, 0, len);
     let mesh = mesh::read_mesh_with(mesh_path, &inputs.mesh_bytes, &crate::limits::current())?;
+    progress.report(Stage::ReadingMesh, len, len);
     drop(inputs);
-    let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
+    let mut computed = compute_mesh(mesh_path, mesh, sidecar, progress)?;
     computed.result.project = project;
     Ok(computed)
 }
 
 /// Computes a parsed mesh with its sidecar.
-fn compute_mesh(mesh_path: &Path, mesh: Mesh, sidecar: Sidecar) -> Result<Computed, RunError> {
+fn compute_mesh(
+    mesh_path: &Path,
+    mesh: Mesh,
+    sidecar: Sidecar,
+    progress: &dyn Progress,
+) -> Result<Computed, RunError> {
     let name = mesh_path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
     let (result, model) =
-        compute::compute_model(&name, mesh, &sidecar).map_err(|source| RunError::Compute {
-            mesh: mesh_path.to_owned(),
-            sidecar: sidecar_path(mesh_path),
-            source: Box::new(source),
+        compute::compute_model_with(&name, mesh, &sidecar, progress).map_err(|source| {
+            RunError::Compute {
+                mesh: mesh_path.to_owned(),
+                sidecar: sidecar_path(mesh_path),
+                source: Box::new(source),
+            }
         })?;
     Ok(Computed {
         model,
@@ -299,26 +331,46 @@ pub struct Logged {
 /// the snapshot store, appends the line (see [`iterations::log_calc`]) and writes the
 /// folder's page.
 pub fn calc_logged(mesh_path: &Path, units: UnitSystem) -> Result<Logged, RunError> {
+    calc_logged_with(mesh_path, units, &Quiet)
+}
+
+/// Steps of [`Stage::Writing`] in [`calc_logged_with`]: the result with its exports, the
+/// snapshot, the change log's line, the folder's page.
+const WRITING_STEPS: u64 = 4;
+
+/// [`calc_logged`], telling `progress` how far it has got: the bytes of the mesh read,
+/// the stages of [`compute::compute_model_with`], then the steps of writing.
+pub fn calc_logged_with(
+    mesh_path: &Path,
+    units: UnitSystem,
+    progress: &dyn Progress,
+) -> Result<Logged, RunError> {
     let (file, len) = open_capped(mesh_path, crate::limits::current().max_file_bytes)?;
     let sidecar_text = read_sidecar_text(mesh_path)?;
     let sidecar = sidecar::parse_sidecar(&sidecar_path(mesh_path), &sidecar_text)?;
     let project = read_project(mesh_path)?;
     let mut hasher = blake3::Hasher::new();
-    let mesh = read_mesh_streamed(mesh_path, file, len, &mut hasher)?;
+    let mesh = read_mesh_streamed(mesh_path, file, len, &mut hasher, progress)?;
     let hashes = (
         hasher.finalize().to_hex().to_string(),
         results::snapshots::hash_of(sidecar_text.as_bytes()),
     );
-    let mut computed = compute_mesh(mesh_path, mesh, sidecar)?;
+    let mut computed = compute_mesh(mesh_path, mesh, sidecar, progress)?;
     computed.result.project = project;
     let layout = Layout::of_mesh(mesh_path, mesh::is_mesh_path);
+    let writing = Tally::new(progress, Stage::Writing);
+    writing.begin(WRITING_STEPS);
     if let Some(dropped) = write_computed(&layout, mesh_path, &computed, units)? {
         return Err(dropped.error.into());
     }
+    writing.add(1);
     let mut notes = iterations::keep_file(&layout, mesh_path, &hashes, sidecar_text.as_bytes());
+    writing.add(1);
     let (line, more) = iterations::log_calc(&layout, &computed.result, hashes)?;
     notes.extend(more);
+    writing.add(1);
     outputs::write_folder_page(layout.dir(), false, units)?;
+    writing.add(1);
     Ok(Logged {
         result: computed.result,
         line,
@@ -365,7 +417,8 @@ mod tests {
         fs::write(&path, bytes).expect("writable");
         let (file, len) = open_capped(&path, u64::MAX).expect("opens");
         let mut hasher = blake3::Hasher::new();
-        let streamed = read_mesh_streamed(&path, file, len, &mut hasher).map_err(|e| e.to_string());
+        let streamed =
+            read_mesh_streamed(&path, file, len, &mut hasher, &Quiet).map_err(|e| e.to_string());
         // The bytes are hashed as they are read: the hash of the whole file.
         if streamed.is_ok() {
             assert_eq!(hasher.finalize(), blake3::hash(bytes));
@@ -416,5 +469,68 @@ mod tests {
                 (a, b) => assert_eq!(a.map(|_| ()), b.map(|_| ()), "{name}"),
             }
         }
+    }
+
+    #[test]
+    fn reading_a_binary_stl_reports_the_bytes_converted_a_block_at_a_time() {
+        use crate::hydro::progress::tests::{Recorder, assert_counts_up_to};
+        // Three blocks and a bit, as above.
+        let tris = shapes::torus([0.0; 3], 3.0, 1.0, 250, 80);
+        let bytes = encode::stl_binary(&tris, "torus");
+        let dir = tempfile::tempdir().expect("a temporary folder");
+        let path = dir.path().join("t.stl");
+        fs::write(&path, &bytes).expect("writable");
+        let (file, len) = open_capped(&path, u64::MAX).expect("opens");
+        let sink = Recorder::default();
+        let mut hasher = blake3::Hasher::new();
+        read_mesh_streamed(&path, file, len, &mut hasher, &sink).expect("reads");
+        let got = sink.of(Stage::ReadingMesh);
+        assert_counts_up_to(&got, bytes.len() as u64);
+        // 0, then one report per block converted: the header and whole blocks, then all.
+        let (header, block, len) = (
+            BinaryStl::HEADER as u64,
+            STREAM_BLOCK as u64,
+            bytes.len() as u64,
+        );
+        let mut want = vec![0];
+        want.extend((1..).map(|k| header + k * block).take_while(|&at| at < len));
+        want.push(len);
+        assert!(want.len() >= 4, "three blocks: {want:?}");
+        assert_eq!(got.iter().map(|r| r.0).collect::<Vec<_>>(), want);
+    }
+
+    #[test]
+    fn calc_reports_reading_the_topology_the_case_and_the_writing_and_computes_the_same() {
+        use crate::hydro::progress::tests::{Recorder, assert_counts_up_to};
+        let tris = shapes::box_solid([0.0; 3], [1.0, 2.0, 3.0], 2);
+        let stl = encode::stl_binary(&tris, "b");
+        let side = r#"{"units": "m", "liquid": {"level": 1.0, "density": 1000}}"#;
+        let mut docs = Vec::new();
+        for with in [false, true] {
+            // The same file name in two folders: the same document.
+            let dir = tempfile::tempdir().expect("a temporary folder");
+            let mesh = dir.path().join("b.stl");
+            fs::write(&mesh, &stl).expect("writable");
+            fs::write(sidecar_path(&mesh), side).expect("writable");
+            let sink = Recorder::default();
+            let logged = if with {
+                calc_logged_with(&mesh, UnitSystem::Si, &sink)
+            } else {
+                calc_logged(&mesh, UnitSystem::Si)
+            };
+            let r = logged.expect("computes").result;
+            docs.push(String::from_utf8(report::json::render(&r)).expect("UTF-8"));
+            if with {
+                assert_counts_up_to(&sink.of(Stage::ReadingMesh), stl.len() as u64);
+                assert_eq!(sink.of(Stage::Topology), vec![(0, 1), (1, 1)]);
+                assert_counts_up_to(&sink.of(Stage::Writing), WRITING_STEPS);
+                // Writing comes last.
+                let last = sink.0.lock().expect("not poisoned").last().map(|r| r.0);
+                assert_eq!(last, Some(Stage::Writing));
+            } else {
+                assert!(sink.0.lock().expect("not poisoned").is_empty());
+            }
+        }
+        assert!(docs[0] == docs[1], "{} / {}", docs[0], docs[1]);
     }
 }
