@@ -3,6 +3,7 @@
 //! The data walks one way: command line → pipeline → { mesh readers, sidecar } → the pure
 //! core in [`hydro`] → report writers. See DEVELOPERS.md for the architecture map.
 
+pub mod bar;
 pub mod check;
 pub mod cli;
 pub mod compute;
@@ -199,6 +200,7 @@ fn watch(args: &WatchArgs) -> ExitCode {
     opts.poll = args.poll_ms.map(std::time::Duration::from_millis);
     opts.verbose = args.verbose;
     opts.units = args.units.system();
+    opts.progress = bar::Settings::from_env(false);
     let stop = std::sync::Arc::new(std::sync::atomic::AtomicBool::new(false));
     let flag = stop.clone();
     if let Err(e) =
@@ -232,8 +234,17 @@ fn calc(args: &CalcArgs) -> ExitCode {
     let mut failed = false;
     let stdout = std::io::stdout();
     let mut out = stdout.lock();
+    let progress = bar::Settings::from_env(args.json);
     for mesh in &args.meshes {
-        match pipeline::calc_logged(mesh, args.units.system()) {
+        let name = mesh
+            .file_name()
+            .unwrap_or(mesh.as_os_str())
+            .to_string_lossy();
+        let bar = bar::Bar::start(progress, &name);
+        let logged = pipeline::calc_logged_with(mesh, args.units.system(), &bar);
+        // Cleared before anything else is printed.
+        drop(bar);
+        match logged {
             Ok(logged) => {
                 for note in &logged.notes {
                     eprintln!("note: {note}");

@@ -49,6 +49,8 @@ use notify::{RecursiveMode, Watcher};
 use serde_json::{Value, json};
 use thiserror::Error;
 
+use crate::bar::Bar;
+use crate::hydro::{Progress, Stage};
 use crate::pipeline::{self, RunError, iterations, outputs, record};
 use crate::results::changelog::{ChangeLog, LogError};
 use crate::results::{self, Layout};
@@ -76,6 +78,8 @@ pub struct WatchOptions {
     /// The units of the terminal lines, the page and the pressure diagrams (result files
     /// are SI either way).
     pub units: crate::report::units::UnitSystem,
+    /// The progress bar of a long recomputation (off by default; see [`crate::bar`]).
+    pub progress: crate::bar::Settings,
 }
 
 impl WatchOptions {
@@ -89,6 +93,7 @@ impl WatchOptions {
             verbose: false,
             retries: 2,
             units: crate::report::units::UnitSystem::Si,
+            progress: crate::bar::Settings::OFF,
         }
     }
 }
@@ -575,12 +580,20 @@ impl Watch<'_> {
                 clock()
             ));
         }
-        let computed = match pipeline::compute_parsed(mesh, inputs) {
-            Ok(c) => c,
+        // A long recomputation's bar (stderr), gone before the next line is said.
+        let bar = Bar::start(self.opts.progress, &name);
+        let layout = self.layout().clone();
+        let done = pipeline::compute_parsed_with(mesh, inputs, &bar).map(|c| {
+            bar.report(Stage::Writing, 0, 1);
+            let written = pipeline::write_computed(&layout, mesh, &c, self.opts.units);
+            (c, written)
+        });
+        drop(bar);
+        let (computed, written) = match done {
+            Ok(d) => d,
             Err(e) => return self.failed(mesh, &name, &e, schedule),
         };
-        let layout = self.layout().clone();
-        let dropped = match pipeline::write_computed(&layout, mesh, &computed, self.opts.units) {
+        let dropped = match written {
             Ok(d) => d,
             Err(e) => {
                 // A full or read-only results folder: say so once, keep running, try
