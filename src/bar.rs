@@ -103,7 +103,8 @@ impl Bar {
             .progress_chars("█▌ ");
         let bar = ProgressBar::with_draw_target(Some(0), ProgressDrawTarget::hidden())
             .with_style(style)
-            .with_prefix(name.to_owned());
+            .with_prefix(name.to_owned())
+            .with_message("starting");
         let (stop, wait) = mpsc::channel::<()>();
         let delayed = bar.clone();
         let delay = settings.delay;

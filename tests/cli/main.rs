@@ -10,6 +10,7 @@ mod determinism;
 mod errors;
 mod iterations;
 mod presentation;
+mod progress;
 mod section;
 mod traps;
 
