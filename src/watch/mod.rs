@@ -17,6 +17,11 @@
 //! broken. Only a folder that cannot be watched, or a change log that cannot be written,
 //! ends the watcher.
 //!
+//! A recomputation that runs long gets a progress bar on stderr ([`crate::bar`], when
+//! [`WatchOptions::progress`] allows it), from the parse of the mesh to its files written.
+//! The bar is dropped, and so cleared, before the watcher says anything about that mesh, so
+//! its line never mixes with the watcher's lines; quick recomputations draw none.
+//!
 //! File-system policy (README "Hostile input and file-system policy"):
 //! * Results, exports, the page and the change log are only ever written inside
 //!   `DIR/results/`, and only when that is a real folder: a `results` that is a symbolic
