@@ -16,7 +16,7 @@
 //! * `write`: `report::json::render` and `results::write_atomic` of the result;
 //! * `calc_file`: `pipeline::calc_file` end to end (read the files, parse, compute, write).
 //!
-//! The bench uses the binary's allocator (mimalloc), so the stages see the same memory
+//! The bench uses the binary's allocator (the system's), so the stages see the same memory
 //! behaviour as `wetload calc`.
 
 use std::fs;
@@ -29,9 +29,6 @@ use wetload::hydro::{
 };
 use wetload::mesh::{self, Mesh};
 use wetload::{compute, pipeline, report, results, sidecar};
-
-#[global_allocator]
-static ALLOC: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
 #[path = "../examples/genmesh.rs"]
 #[allow(dead_code)] // its `main` and argument parsing are the example's, unused here

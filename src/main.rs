@@ -4,9 +4,6 @@ use std::process::ExitCode;
 
 use clap::Parser;
 
-#[global_allocator]
-static ALLOC: mimalloc::MiMalloc = mimalloc::MiMalloc;
-
 fn main() -> ExitCode {
     let cli = wetload::cli::Cli::parse();
     wetload::run(cli)
