@@ -37,6 +37,7 @@
 //! changes (straight on and the same pressure gradient) are dropped.
 
 use super::{CaseResult, Field, Inputs};
+use crate::hydro::Vec3;
 use crate::sidecar::NamedSection;
 
 /// The horizontal force below which a case counts as without one, relative to the
@@ -487,28 +488,25 @@ fn run_of(chain: &[ChainPoint], closed: bool) -> Run {
     }
 }
 
+// Small vector steps on the field's `[f64; 3]` points, through nalgebra.
 fn add(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
-    [a[0] + b[0], a[1] + b[1], a[2] + b[2]]
+    (Vec3::from(a) + Vec3::from(b)).into()
 }
 
 fn sub(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
-    [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
+    (Vec3::from(a) - Vec3::from(b)).into()
 }
 
 fn scale(a: [f64; 3], k: f64) -> [f64; 3] {
-    [a[0] * k, a[1] * k, a[2] * k]
+    (Vec3::from(a) * k).into()
 }
 
 fn dot(a: [f64; 3], b: [f64; 3]) -> f64 {
-    a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
+    Vec3::from(a).dot(&Vec3::from(b))
 }
 
 fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
-    [
-        a[1] * b[2] - a[2] * b[1],
-        a[2] * b[0] - a[0] * b[2],
-        a[0] * b[1] - a[1] * b[0],
-    ]
+    Vec3::from(a).cross(&Vec3::from(b)).into()
 }
 
 fn norm(a: [f64; 3]) -> f64 {

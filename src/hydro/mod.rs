@@ -73,24 +73,16 @@ impl Tris for [Tri] {
     }
 }
 
-impl<const N: usize> Tris for [Tri; N] {
+/// A `Vec<Tri>` or anything else that derefs to a slice of them.
+impl<D: std::ops::Deref<Target = [Tri]> + Sync> Tris for D {
     fn count(&self) -> usize {
-        N
+        self.deref().count()
     }
     fn tri(&self, i: usize) -> Tri {
-        self[i]
-    }
-}
-
-impl Tris for Vec<Tri> {
-    fn count(&self) -> usize {
-        self.len()
-    }
-    fn tri(&self, i: usize) -> Tri {
-        self[i]
+        self.deref().tri(i)
     }
     fn corner(&self, i: usize, k: usize) -> Vec3 {
-        self[i][k]
+        self.deref().corner(i, k)
     }
 }
 

@@ -180,17 +180,7 @@ pub fn stage_outputs(
     let mut current: Vec<PathBuf> =
         results::case_parts(result.cases.iter().map(|c| c.name.as_str()))
             .iter()
-            .flat_map(|part| {
-                let e = layout.exports(mesh_path, part.as_deref());
-                [
-                    e.field,
-                    e.facet_loads,
-                    e.nodal_loads,
-                    e.sweep_chart,
-                    e.view,
-                    e.section,
-                ]
-            })
+            .flat_map(|part| layout.exports(mesh_path, part.as_deref()).all())
             .collect();
     current.push(layout.exports(mesh_path, None).sweep_chart);
     for stale in previous_exports(layout, mesh_path) {
@@ -219,17 +209,7 @@ fn previous_exports(layout: &Layout, mesh_path: &Path) -> Vec<PathBuf> {
         .collect();
     let mut files: Vec<PathBuf> = results::case_parts(names.into_iter())
         .iter()
-        .flat_map(|part| {
-            let e = layout.exports(mesh_path, part.as_deref());
-            [
-                e.field,
-                e.facet_loads,
-                e.nodal_loads,
-                e.sweep_chart,
-                e.view,
-                e.section,
-            ]
-        })
+        .flat_map(|part| layout.exports(mesh_path, part.as_deref()).all())
         .collect();
     files.push(layout.exports(mesh_path, None).sweep_chart);
     files
@@ -479,9 +459,9 @@ fn file_name(p: &Path) -> String {
         .unwrap_or_default()
 }
 
-/// The 3D view file of every case of the result document `doc` named `<name>.json`, in
-/// its cases' order; `None` for a file that is missing or not JSON (the page says so).
-fn read_views(layout: &Layout, name: &str, doc: &Value) -> Vec<Option<Value>> {
+/// The file-name part of every case of the result document `doc`, in its cases' order
+/// ([`results::case_parts`]).
+fn case_parts_of(doc: &Value) -> Vec<Option<String>> {
     let names: Vec<&str> = doc["cases"]
         .as_array()
         .into_iter()
@@ -489,6 +469,12 @@ fn read_views(layout: &Layout, name: &str, doc: &Value) -> Vec<Option<Value>> {
         .map(|c| c["name"].as_str().unwrap_or(""))
         .collect();
     results::case_parts(names.into_iter())
+}
+
+/// The 3D view file of every case of the result document `doc` named `<name>.json`, in
+/// its cases' order; `None` for a file that is missing or not JSON (the page says so).
+fn read_views(layout: &Layout, name: &str, doc: &Value) -> Vec<Option<Value>> {
+    case_parts_of(doc)
         .iter()
         .map(|part| {
             let bytes = fs::read(layout.view_of(name, part.as_deref())).ok()?;
@@ -501,13 +487,7 @@ fn read_views(layout: &Layout, name: &str, doc: &Value) -> Vec<Option<Value>> {
 /// in its cases' order: the file's name and its text (`None` when there is no such file or
 /// it is not UTF-8).
 fn read_diagrams(layout: &Layout, name: &str, doc: &Value) -> Vec<(String, Option<String>)> {
-    let names: Vec<&str> = doc["cases"]
-        .as_array()
-        .into_iter()
-        .flatten()
-        .map(|c| c["name"].as_str().unwrap_or(""))
-        .collect();
-    results::case_parts(names.into_iter())
+    case_parts_of(doc)
         .iter()
         .map(|part| {
             let path = layout.section_of(name, part.as_deref());

@@ -266,6 +266,20 @@ pub struct Exports {
     pub section: PathBuf,
 }
 
+impl Exports {
+    /// Every one of these files, in a fixed order.
+    pub fn all(self) -> [PathBuf; 6] {
+        [
+            self.field,
+            self.facet_loads,
+            self.nodal_loads,
+            self.sweep_chart,
+            self.view,
+            self.section,
+        ]
+    }
+}
+
 /// `name` made safe as one component of a file name: path separators, characters that
 /// Windows refuses (`< > : " | ? *`) and control characters become `_`, a leading `.`
 /// becomes `_` (no hidden files, no `..`), an empty name becomes `_`, and a long name is

@@ -402,7 +402,7 @@ mod tests {
             Vec3::new(1.0, 0.0, 0.0),
             Vec3::new(0.0, 1.0, 0.0),
         ];
-        let t = Topology::build(&[a, a]);
+        let t = Topology::build(&[a, a][..]);
         assert_eq!(
             (
                 t.duplicate_facets,
@@ -412,7 +412,7 @@ mod tests {
             (1, 3, 0)
         );
         assert_eq!(t.defects[0], (Defect::Duplicate, 1));
-        let t = Topology::build(&[a, [a[0], a[2], a[1]]]);
+        let t = Topology::build(&[a, [a[0], a[2], a[1]]][..]);
         assert_eq!(
             (t.duplicate_facets, t.inconsistent_edges, t.open_edges),
             (1, 0, 0)
