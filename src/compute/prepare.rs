@@ -11,8 +11,10 @@ use super::cases::{profiles_of, run};
 use super::finite::check_extent;
 use super::plausible;
 use super::wet::Wet;
-use crate::hydro::{self, Frame, PartAccum, PointMap, Profile, Topology, Tri, Tris, Vec3, WetSide};
-use crate::mesh::{Coords, Format, Mesh, Part, STALE_NORMAL_DEG};
+use crate::hydro::{
+    self, Extremes, Frame, PartAccum, PointMap, Profile, Topology, Tri, Tris, Vec3, WetSide,
+};
+use crate::mesh::{Coords, Format, Mesh, Part, STALE_NORMAL_DEG, widen};
 use crate::sidecar::{Sidecar, quoted_list};
 
 /// Everything about the mesh that does not change between cases.
@@ -67,17 +69,28 @@ impl Tris for Local {
 
     #[inline]
     fn tri(&self, i: usize) -> Tri {
-        let map = |p: [f64; 3]| self.map.apply(p, &self.centre);
+        // Written out rather than through array `map`, which costs copies here.
+        let (m, c) = (&self.map, &self.centre);
         match &self.facets {
-            Coords::Single(f) => f[i].map(|p| map(p.map(f64::from))),
-            Coords::Double(f) => f[i].map(map),
+            Coords::Single(f) => {
+                let t = &f[i];
+                [
+                    m.apply(widen(t[0]), c),
+                    m.apply(widen(t[1]), c),
+                    m.apply(widen(t[2]), c),
+                ]
+            }
+            Coords::Double(f) => {
+                let t = &f[i];
+                [m.apply(t[0], c), m.apply(t[1], c), m.apply(t[2], c)]
+            }
         }
     }
 
     #[inline]
     fn corner(&self, i: usize, k: usize) -> Vec3 {
         let p = match &self.facets {
-            Coords::Single(f) => f[i][k].map(f64::from),
+            Coords::Single(f) => widen(f[i][k]),
             Coords::Double(f) => f[i][k],
         };
         self.map.apply(p, &self.centre)
@@ -121,7 +134,16 @@ pub(super) fn prepare(
     } = mesh;
     drop(normal_stale); // counted above; not kept through the topology
     // Min and max are exact, so this parallel pass gives the same bits on any thread count.
-    let (lo, hi) = facets.bounds();
+    // Per part, then for the whole mesh: the box, and six vertices that prove most solids
+    // non-planar without another pass over their facets.
+    let part_extremes: Vec<Extremes> = parts
+        .iter()
+        .map(|p| facets.extremes(p.facets.clone()))
+        .collect();
+    let whole = part_extremes
+        .iter()
+        .fold(Extremes::none(), |a, b| Extremes::join(a, *b));
+    let (lo, hi): ([f64; 3], [f64; 3]) = (whole.lo.into(), whole.hi.into());
     if stale > 0 {
         warnings.push(format!(
             "{stale} stored STL normal(s) disagree with their facet's winding by more than {STALE_NORMAL_DEG}°: wetload ignores stored normals and uses the vertex order, but other tools may not"
@@ -140,10 +162,19 @@ pub(super) fn prepare(
     // The box of `tris`, from the mesh's box: each internal coordinate is one mesh
     // coordinate times ±1 and the (positive) scale, less the centre, and each of those steps
     // keeps the order of values under rounding, so the corners map to corners exactly.
-    let local_box = {
-        let (a, b) = (frame.point_in(lo) - centre, frame.point_in(hi) - centre);
-        (a.inf(&b), a.sup(&b))
+    let local = |e: &Extremes| {
+        let (a, b) = (
+            frame.point_in(e.lo.into()) - centre,
+            frame.point_in(e.hi.into()) - centre,
+        );
+        Extremes {
+            lo: a.inf(&b),
+            hi: a.sup(&b),
+            at: e.at.map(|p| frame.point_in(p.into()) - centre),
+        }
     };
+    let whole = local(&whole);
+    let local_box = (whole.lo, whole.hi);
     let profiles: Vec<_> = sidecar
         .cases
         .iter()
@@ -157,11 +188,15 @@ pub(super) fn prepare(
         || {
             let part_plane: Vec<Option<hydro::Plane>> = parts
                 .iter()
-                .map(|p| hydro::plane_of(p.facets.clone().map(|f| tris.tri(f))))
+                .zip(&part_extremes)
+                .map(|(p, e)| {
+                    let facets = p.facets.clone().map(|f| tris.tri(f));
+                    hydro::plane_of_given(facets, &local(e))
+                })
                 .collect();
             let mesh_plane = match &part_plane[..] {
                 [one] if parts.len() == 1 => *one,
-                _ => hydro::plane_of((0..tris.count()).map(|f| tris.tri(f))),
+                _ => hydro::plane_of_given((0..tris.count()).map(|f| tris.tri(f)), &whole),
             };
             let guess = Wet::clean_guess(&parts, sidecar, tris.count()).map(|wet| {
                 // Floating cases are integrated on their solved free surface later.

@@ -75,27 +75,76 @@ impl Plane {
 /// The set is planar when every vertex lies within `PLANAR_REL ×` the bounding-box
 /// diagonal of that plane. Returns `None` for an empty, degenerate or non-planar set.
 pub fn plane_of(tris: impl Iterator<Item = Tri> + Clone) -> Option<Plane> {
-    // First a cheap pass that rules most solids out: the bounding box and the vertices
-    // lowest and highest along each axis. Points within `tol` of a plane (a slab 2·tol
-    // thick) span tetrahedra of volume at most tol·D², D the box diagonal (the triple
-    // product of three differences, each at most D across the slab and 2·tol along its
-    // normal, has three terms of at most 2·tol·D² each; divided by 6). A tetrahedron of
-    // extreme vertices with more than twice that volume proves the set is not planar.
-    let mut lo = Vec3::repeat(f64::INFINITY);
-    let mut hi = Vec3::repeat(f64::NEG_INFINITY);
-    let mut extreme = [Vec3::zeros(); 6];
+    let mut e = Extremes::none();
     for p in tris.clone().flatten() {
+        e.take(p);
+    }
+    plane_of_given(tris, &e)
+}
+
+/// The bounding box of a set of points and six of its points, which [`plane_of_given`]
+/// tries first as the corners of a tetrahedron too large for a plane.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Extremes {
+    pub lo: Vec3,
+    pub hi: Vec3,
+    /// The first point lowest and highest along x, then y, then z.
+    pub at: [Vec3; 6],
+}
+
+impl Extremes {
+    /// Of no point: an empty box.
+    pub fn none() -> Extremes {
+        Extremes {
+            lo: Vec3::repeat(f64::INFINITY),
+            hi: Vec3::repeat(f64::NEG_INFINITY),
+            at: [Vec3::zeros(); 6],
+        }
+    }
+
+    /// The extremes of both sets: `b`'s point along an axis only where it is strictly
+    /// beyond `a`'s, so the first of equal points is kept when `a` comes first.
+    pub fn join(a: Extremes, b: Extremes) -> Extremes {
+        let mut e = a;
         for k in 0..3 {
-            if p[k] < lo[k] {
-                lo[k] = p[k];
-                extreme[2 * k] = p;
+            if b.lo[k] < e.lo[k] {
+                e.lo[k] = b.lo[k];
+                e.at[2 * k] = b.at[2 * k];
             }
-            if p[k] > hi[k] {
-                hi[k] = p[k];
-                extreme[2 * k + 1] = p;
+            if b.hi[k] > e.hi[k] {
+                e.hi[k] = b.hi[k];
+                e.at[2 * k + 1] = b.at[2 * k + 1];
+            }
+        }
+        e
+    }
+
+    /// Takes in one more point.
+    pub fn take(&mut self, p: Vec3) {
+        for k in 0..3 {
+            if p[k] < self.lo[k] {
+                self.lo[k] = p[k];
+                self.at[2 * k] = p;
+            }
+            if p[k] > self.hi[k] {
+                self.hi[k] = p[k];
+                self.at[2 * k + 1] = p;
             }
         }
     }
+}
+
+/// [`plane_of`] of `tris`, whose bounding box is `e.lo`–`e.hi` exactly; `e.at` may be any
+/// six of their vertices (the extremes rule most solids out fastest). Any six give the
+/// same answer: a tetrahedron of vertices proves only what the full check finds too.
+pub fn plane_of_given(tris: impl Iterator<Item = Tri> + Clone, e: &Extremes) -> Option<Plane> {
+    // First a cheap test that rules most solids out, on the bounding box and six vertices.
+    // Points within `tol` of a plane (a slab 2·tol thick) span tetrahedra of volume at
+    // most tol·D², D the box diagonal (the triple product of three differences, each at
+    // most D across the slab and 2·tol along its normal, has three terms of at most
+    // 2·tol·D² each; divided by 6). A tetrahedron of the given vertices with more than
+    // twice that volume proves the set is not planar.
+    let (lo, hi, extreme) = (e.lo, e.hi, e.at);
     let d2 = (hi - lo).norm_squared();
     let tol = PLANAR_REL * d2.sqrt();
     let mut six_v = 0.0f64; // the largest tetrahedron, six times its volume
@@ -208,5 +257,42 @@ mod tests {
         let p = plane_of(grid(0.5 * tol).iter().copied()).expect("within the tolerance");
         assert_relative_eq!(p.normal.dot(&n).abs(), 1.0, epsilon = 1e-9);
         assert!(plane_of(grid(3.0 * tol).iter().copied()).is_none());
+    }
+
+    #[test]
+    fn any_six_vertices_given_with_the_box_give_the_plane_of_the_full_check() {
+        // The six given points only try to prove a set non-planar; whichever six vertices
+        // they are, the answer is plane_of's own (planar, nearly planar within and beyond
+        // the tolerance, and solids).
+        let tol = PLANAR_REL * 10.0;
+        let plate = |off: f64| -> Vec<Tri> {
+            let mut t = Vec::new();
+            for i in 0..6 {
+                let x = i as f64;
+                let z = if i % 2 == 0 { off } else { -off };
+                t.push([
+                    Vec3::new(x, 0.0, z),
+                    Vec3::new(x + 1.0, 0.0, -z),
+                    Vec3::new(x, 4.0, z),
+                ]);
+            }
+            t
+        };
+        let torus: Vec<Tri> = shapes::torus([0.3, -1.0, 2.0], 3.0, 1.0, 12, 8)
+            .into_iter()
+            .map(|f| f.map(Vec3::from))
+            .collect();
+        for set in [plate(0.0), plate(0.3 * tol), plate(5.0 * tol), torus] {
+            let full = plane_of(set.iter().copied());
+            let points: Vec<Vec3> = set.iter().flatten().copied().collect();
+            let mut e = Extremes::none();
+            points.iter().for_each(|&p| e.take(p));
+            for start in [0, 1, 5] {
+                let mut given = e;
+                given.at = std::array::from_fn(|i| points[(start + 3 * i) % points.len()]);
+                assert_eq!(plane_of_given(set.iter().copied(), &given), full);
+            }
+            assert_eq!(plane_of_given(set.iter().copied(), &e), full);
+        }
     }
 }

@@ -31,7 +31,10 @@ mod topology;
 
 pub use clip::{Piece, clip_polygon, slab_pieces};
 pub use integrate::{CHUNK, FacetLoads, PartAccum, PartInput, facet_loads, integrate, part_planes};
-pub use loads::{LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of};
+pub use loads::{
+    Extremes, LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of,
+    plane_of_given,
+};
 pub use pressure::{Layer, Liquid, LiquidError, Profile};
 pub use progress::{Progress, Quiet, Stage, Tally};
 pub use sweep::{SweepPart, SweptLiquid, sweep, sweep_with};

@@ -92,7 +92,10 @@ impl Coords {
     #[inline]
     pub fn get(&self, i: usize) -> Facet {
         match self {
-            Coords::Single(f) => f[i].map(|p| p.map(f64::from)),
+            Coords::Single(f) => {
+                let t = &f[i];
+                [widen(t[0]), widen(t[1]), widen(t[2])]
+            }
             Coords::Double(f) => f[i],
         }
     }
@@ -107,33 +110,29 @@ impl Coords {
         self.iter().collect()
     }
 
-    /// The lowest and highest coordinate along each axis, in one parallel pass (min and
-    /// max are exact, so the result does not depend on the number of threads);
-    /// `([+∞; 3], [−∞; 3])` when there is no facet.
-    pub fn bounds(&self) -> ([f64; 3], [f64; 3]) {
+    /// The bounding box of the facets `range` (mesh axes, file units) and their first
+    /// vertex lowest and highest along each axis, in one parallel pass: the same for any
+    /// number of threads (min and max are exact, and of equal points the first is kept).
+    pub fn extremes(&self, range: std::ops::Range<usize>) -> crate::hydro::Extremes {
+        use crate::hydro::{Extremes, Vec3};
         use rayon::prelude::*;
-        let empty = || ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]);
-        let widen = |(mut lo, mut hi): ([f64; 3], [f64; 3]), t: Facet| {
-            for p in t {
-                for k in 0..3 {
-                    lo[k] = lo[k].min(p[k]);
-                    hi[k] = hi[k].max(p[k]);
-                }
-            }
-            (lo, hi)
-        };
-        let join = |(a, b): ([f64; 3], [f64; 3]), (c, d): ([f64; 3], [f64; 3])| {
-            (
-                [a[0].min(c[0]), a[1].min(c[1]), a[2].min(c[2])],
-                [b[0].max(d[0]), b[1].max(d[1]), b[2].max(d[2])],
-            )
-        };
-        (0..self.len())
+        range
             .into_par_iter()
             .with_min_len(4096)
-            .fold(empty, |acc, i| widen(acc, self.get(i)))
-            .reduce(empty, join)
+            .fold(Extremes::none, |mut e, i| {
+                for p in self.get(i) {
+                    e.take(Vec3::from(p));
+                }
+                e
+            })
+            .reduce(Extremes::none, Extremes::join)
     }
+}
+
+/// A point of a binary STL in f64 (exact).
+#[inline]
+pub fn widen(p: [f32; 3]) -> [f64; 3] {
+    [f64::from(p[0]), f64::from(p[1]), f64::from(p[2])]
 }
 
 /// A mesh's facets in its own axes and file units, as the core reads them.

@@ -236,7 +236,8 @@ impl Topology {
 
         // Signed volume per shell about the box centre (no cancellation far from origin).
         let vol = shell_sums(&facet_shell, shells.len(), |f| {
-            let [a, b, c] = tris.tri(f).map(|p| p - centre);
+            let t = tris.tri(f);
+            let (a, b, c) = (t[0] - centre, t[1] - centre, t[2] - centre);
             let v6 = a.dot(&b.cross(&c));
             (if flip[f] { -v6 } else { v6 }) / 6.0
         });
