@@ -131,15 +131,23 @@ pub(super) fn prepare(
         format,
         normal_stale,
         vertex_ids,
+        extremes,
     } = mesh;
     drop(normal_stale); // counted above; not kept through the topology
     // Min and max are exact, so this parallel pass gives the same bits on any thread count.
     // Per part, then for the whole mesh: the box, and six vertices that prove most solids
     // non-planar without another pass over their facets.
-    let part_extremes: Vec<Extremes> = parts
-        .iter()
-        .map(|p| facets.extremes(p.facets.clone()))
-        .collect();
+    // A binary STL's reader found them as it converted the facets.
+    let part_extremes: Vec<Extremes> = match (extremes, &parts[..]) {
+        (Some(e), [_]) => {
+            debug_assert_eq!(e, facets.extremes(0..facets.len()), "as the reader found");
+            vec![e]
+        }
+        _ => parts
+            .iter()
+            .map(|p| facets.extremes(p.facets.clone()))
+            .collect(),
+    };
     let whole = part_extremes
         .iter()
         .fold(Extremes::none(), |a, b| Extremes::join(a, *b));

@@ -169,6 +169,10 @@ pub struct Mesh {
     pub vertex_ids: Option<Vec<[u32; 3]>>,
     /// The format the file was read as.
     pub format: Format,
+    /// The bounding box and extreme vertices of all facets ([`Coords::extremes`] of the
+    /// whole), when the reader found them as it converted (a binary STL); `None` when not
+    /// known. Whoever changes `facets` sets it to `None`.
+    pub extremes: Option<crate::hydro::Extremes>,
 }
 
 /// A stored STL normal more than this far from the normal of its facet's winding is stale.
@@ -232,6 +236,7 @@ impl Mesh {
             normal_stale: None,
             vertex_ids: None,
             format,
+            extremes: None,
         }
     }
 
@@ -720,6 +725,7 @@ impl PartsBuilder {
                 normal_stale,
                 vertex_ids,
                 format,
+                extremes: None,
             });
         }
         let mut parts = Vec::new();
@@ -753,6 +759,7 @@ impl PartsBuilder {
             normal_stale: stale,
             vertex_ids: ids,
             format,
+            extremes: None,
         })
     }
 }

@@ -26,10 +26,12 @@ use std::path::Path;
 
 use rayon::prelude::*;
 
+use crate::hydro::{Extremes, Vec3};
+
 use super::polygon::Triangulator;
 use super::{
     Coords, Format, LineError, Mesh, MeshError, Part, PartsBuilder, Problem, SingleFacet,
-    is_stale_normal, parse_coordinate, parse_f64, quote, stem_name,
+    is_stale_normal, parse_coordinate, parse_f64, quote, stem_name, widen,
 };
 
 /// Size of the binary header plus the facet count.
@@ -119,6 +121,8 @@ pub struct BinaryStl {
     done: usize,
     /// The first facet with a non-finite coordinate, and the value.
     first_bad: Option<(usize, f32)>,
+    /// The box and extreme vertices of the facets converted so far.
+    extremes: Extremes,
 }
 
 /// The facet count a file's header claims (the u32 at byte 80), if it is that long.
@@ -170,6 +174,7 @@ impl BinaryStl {
             stale: vec![false; count],
             done: 0,
             first_bad: None,
+            extremes: Extremes::none(),
         }
     }
 
@@ -183,13 +188,16 @@ impl BinaryStl {
         let (records, _) = bytes.as_chunks::<BINARY_FACET>();
         let n = records.len().min(self.facets.len() - self.done);
         let start = self.done;
-        let bad = self.facets[start..start + n]
+        // Each chunk also finds its box and extreme vertices, joined in order below, so
+        // that the computation needs no pass of its own over the facets for them.
+        let chunks: Vec<(Option<(usize, f32)>, Extremes)> = self.facets[start..start + n]
             .par_chunks_mut(CHUNK)
             .zip(self.stale[start..start + n].par_chunks_mut(CHUNK))
             .zip(records[..n].par_chunks(CHUNK))
             .enumerate()
-            .filter_map(|(c, ((facets, stale), records))| {
+            .map(|(c, ((facets, stale), records))| {
                 let mut bad = None;
+                let mut e = Extremes::none();
                 for (i, ((facet, stale), r)) in
                     facets.iter_mut().zip(stale).zip(records).enumerate()
                 {
@@ -202,15 +210,21 @@ impl BinaryStl {
                             *v = value;
                         }
                     }
-                    let wide = facet.map(|p| p.map(f64::from));
+                    let wide = [widen(facet[0]), widen(facet[1]), widen(facet[2])];
+                    for p in wide {
+                        e.take(Vec3::from(p));
+                    }
                     let normal = [f32_at(r, 0), f32_at(r, 4), f32_at(r, 8)];
                     *stale = is_stale_normal(&wide, &normal);
                 }
-                bad
+                (bad, e)
             })
-            .min_by_key(|(i, _)| *i);
-        if self.first_bad.is_none() {
-            self.first_bad = bad;
+            .collect();
+        for (bad, e) in chunks {
+            if self.first_bad.is_none() {
+                self.first_bad = bad;
+            }
+            self.extremes = Extremes::join(self.extremes, e);
         }
         self.done += n;
     }
@@ -243,6 +257,7 @@ impl BinaryStl {
             normal_stale: Some(self.stale),
             vertex_ids: None,
             format: Format::StlBinary,
+            extremes: Some(self.extremes),
         })
     }
 }

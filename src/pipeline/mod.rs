@@ -436,6 +436,10 @@ mod tests {
         let (streamed, whole) = both_ways("t.stl", &bytes);
         let (streamed, whole) = (streamed.expect("reads"), whole.expect("reads"));
         assert_eq!(streamed.facets, whole.facets);
+        // The box and extremes found while converting, block by block or at once, are
+        // those of a pass of their own.
+        let own = whole.facets.extremes(0..whole.facets.len());
+        assert_eq!((streamed.extremes, whole.extremes), (Some(own), Some(own)));
         assert_eq!(streamed.normal_stale, whole.normal_stale);
         assert_eq!(streamed.parts, whole.parts);
 

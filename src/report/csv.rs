@@ -123,6 +123,7 @@ mod tests {
             normal_stale: None,
             vertex_ids: None,
             format: Format::Obj,
+            extremes: None,
         };
         let s = parse_sidecar(
             Path::new("t.json"),

@@ -99,17 +99,13 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
     let cell = if tol > 0.0 { 64.0 * tol } else { 1.0 };
     // Positions are relative to the box's lowest corner, so never negative, and the cast
     // (which truncates) is the floor without a call to `floor`.
-    let key = |q: &Vec3| -> [i64; 3] {
-        [
-            (q.x / cell) as i64,
-            (q.y / cell) as i64,
-            (q.z / cell) as i64,
-        ]
-    };
-    // Whether a point lies within `tol` of a face of its cell `k` along axis `ax`: -1
-    // (the lower face), 1 (the upper one) or 0.
-    let near_face = |q: &Vec3, k: &[i64; 3], ax: usize| -> i64 {
-        let inside = q[ax] / cell - k[ax] as f64; // position inside the cell, [0, 1)
+    // A point in cells (each coordinate divided once), and its cell.
+    let in_cells = |q: &Vec3| -> [f64; 3] { [q.x / cell, q.y / cell, q.z / cell] };
+    let key = |s: &[f64; 3]| -> [i64; 3] { [s[0] as i64, s[1] as i64, s[2] as i64] };
+    // Whether a point `s` (in cells) lies within `tol` of a face of its cell `k` along
+    // axis `ax`: -1 (the lower face), 1 (the upper one) or 0.
+    let near_face = |s: &[f64; 3], k: &[i64; 3], ax: usize| -> i64 {
+        let inside = s[ax] - k[ax] as f64; // position inside the cell, [0, 1)
         if inside * cell < tol {
             -1
         } else if (1.0 - inside) * cell <= tol {
@@ -136,8 +132,9 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
         .for_each(|((out, b), &o)| {
             for (i, (slot, &c)) in out.iter_mut().zip(b).enumerate() {
                 let q = corner(c);
-                let k = key(&q);
-                let near = (0..3).any(|ax| near_face(&q, &k, ax) != 0);
+                let s = in_cells(&q);
+                let k = key(&s);
+                let near = (0..3).any(|ax| near_face(&s, &k, ax) != 0);
                 *slot = (pack(k), o + i as u32, c | if near { NEAR_FACE } else { 0 });
             }
         });
@@ -200,11 +197,12 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
                 }
                 let q = at(a as usize);
                 // Neighbour cells worth visiting along each axis.
-                let k = key(&q);
+                let s = in_cells(&q);
+                let k = key(&s);
                 let mut offs = [[0i64; 2]; 3];
                 let mut counts = [1usize; 3];
                 for ax in 0..3 {
-                    let side = near_face(&q, &k, ax);
+                    let side = near_face(&s, &k, ax);
                     if side != 0 {
                         offs[ax][1] = side;
                         counts[ax] = 2;
