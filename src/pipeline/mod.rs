@@ -200,11 +200,11 @@ fn read_mesh_streamed(
             read(&mut next, &mut left).map_err(io_err)?;
             while !next.is_empty() {
                 std::mem::swap(&mut next, &mut last);
+                // Hashing (one thread) beside the conversion (in chunks, any thread).
                 let (got, ()) = rayon::join(
                     || read(&mut next, &mut left),
                     || {
-                        hasher.update(&last);
-                        builder.push(&last)
+                        rayon::join(|| hasher.update(&last), || builder.push(&last));
                     },
                 );
                 got.map_err(io_err)?;
