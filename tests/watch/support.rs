@@ -461,10 +461,12 @@ pub fn wait_result(w: &Watcher, dir: &Path, stem: &str, e: Expected) -> Value {
             result(dir, stem).filter(|d| {
                 doc_matches(d, &e)
                     && stale(d).is_none()
+                    // The newest line that computed this mesh: an `unchanged` line after
+                    // it (the same inputs heard again) leaves its result as it was.
                     && log(dir)
                         .iter()
                         .rev()
-                        .find(|l| l["mesh"] == d["mesh"])
+                        .find(|l| l["mesh"] == d["mesh"] && l["event"] != "unchanged")
                         .is_some_and(|l| {
                             l["event"] == "computed"
                                 && l["cases"][0]["force"] == d["cases"][0]["force"]
