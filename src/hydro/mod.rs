@@ -149,18 +149,19 @@ impl UpAxis {
         }
     }
 
+    /// Every axis, in the order of the enum.
+    pub const ALL: [UpAxis; 6] = [
+        UpAxis::PosX,
+        UpAxis::NegX,
+        UpAxis::PosY,
+        UpAxis::NegY,
+        UpAxis::PosZ,
+        UpAxis::NegZ,
+    ];
+
     /// The axis named by its keyword (`"+z"` …, as [`UpAxis::as_str`] writes it).
     pub fn from_keyword(keyword: &str) -> Option<UpAxis> {
-        [
-            UpAxis::PosX,
-            UpAxis::NegX,
-            UpAxis::PosY,
-            UpAxis::NegY,
-            UpAxis::PosZ,
-            UpAxis::NegZ,
-        ]
-        .into_iter()
-        .find(|a| a.as_str() == keyword)
+        UpAxis::ALL.into_iter().find(|a| a.as_str() == keyword)
     }
 
     /// The index (0, 1, 2 for x, y, z) of the mesh axis along up.
@@ -275,14 +276,7 @@ mod tests {
 
     #[test]
     fn every_frame_is_a_proper_rotation_with_z_up() {
-        for up in [
-            UpAxis::PosX,
-            UpAxis::NegX,
-            UpAxis::PosY,
-            UpAxis::NegY,
-            UpAxis::PosZ,
-            UpAxis::NegZ,
-        ] {
+        for up in UpAxis::ALL {
             let f = Frame { scale_m: 1.0, up };
             let ex = f.vector_in([1.0, 0.0, 0.0]);
             let ey = f.vector_in([0.0, 1.0, 0.0]);
@@ -315,14 +309,7 @@ mod tests {
             2.0f64.sqrt(),
         ];
         let origin = Vec3::new(0.7, -3.1, 1e5);
-        for up in [
-            UpAxis::PosX,
-            UpAxis::NegX,
-            UpAxis::PosY,
-            UpAxis::NegY,
-            UpAxis::PosZ,
-            UpAxis::NegZ,
-        ] {
+        for up in UpAxis::ALL {
             for scale_m in [1.0, 0.3048, 0.0254, 1e-3] {
                 let f = Frame { scale_m, up };
                 let map = f.point_map();
