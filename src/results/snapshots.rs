@@ -66,39 +66,28 @@ pub fn has(store: &Path, hash: &str) -> bool {
 /// returns whether it wrote one. Refuses (an error) bytes whose hash is not `hash`.
 pub fn store(store: &Path, hash: &str, bytes: &[u8]) -> Result<bool, WriteError> {
     let path = blob_path(store, hash);
-    let err = |source| WriteError {
+    let wrong = || WriteError {
         path: path.clone(),
-        source,
+        source: io::Error::other("the bytes do not have the hash they are stored under"),
     };
-    if !is_hash(hash) || hash_of(bytes) != hash {
-        return Err(err(io::Error::other(
-            "the bytes do not have the hash they are stored under",
-        )));
+    if !is_hash(hash) {
+        return Err(wrong());
     }
+    // A blob is named by its content: one already there holds these bytes (checked when
+    // it is read back), so they are hashed again only when a blob is written.
     if path.is_file() {
         return Ok(false);
     }
-    for dir in [store, path.parent().unwrap_or(store)] {
-        match fs::create_dir(dir) {
-            Ok(()) => {}
-            Err(e) if e.kind() == io::ErrorKind::AlreadyExists => {}
-            Err(e) => return Err(err(e)),
-        }
+    if hash_of(bytes) != hash {
+        return Err(wrong());
     }
-    // The temporary file sits at the top of the store, where `clean_orphans` looks.
-    let mut tmp = tempfile::Builder::new()
-        .prefix(&format!("{TEMP_PREFIX}{}-", std::process::id()))
-        .suffix(".tmp")
-        .tempfile_in(store)
-        .map_err(err)?;
-    tmp.write_all(bytes).map_err(err)?;
-    shareable(tmp.as_file()).map_err(err)?;
-    tmp.as_file().sync_all().map_err(err)?;
-    tmp.persist(&path).map_err(|e| err(e.error))?;
-    if let Ok(d) = fs::File::open(path.parent().unwrap_or(store)) {
-        let _ = d.sync_all();
-    }
-    Ok(true)
+    put(store, &path, |f| {
+        f.write_all(bytes).map_err(|source| WriteError {
+            path: path.clone(),
+            source,
+        })?;
+        Ok(true)
+    })
 }
 
 /// Stores the file at `from` under `hash`, copying it a block at a time (a large mesh is
@@ -107,17 +96,54 @@ pub fn store(store: &Path, hash: &str, bytes: &[u8]) -> Result<bool, WriteError>
 /// stored then. Otherwise whether it wrote one.
 pub fn store_file(store: &Path, hash: &str, from: &Path) -> Result<Option<bool>, WriteError> {
     let path = blob_path(store, hash);
-    let err = |source| WriteError {
-        path: path.clone(),
-        source,
-    };
     if !is_hash(hash) {
-        return Err(err(io::Error::other("not a content hash")));
+        return Err(WriteError {
+            path,
+            source: io::Error::other("not a content hash"),
+        });
     }
     if path.is_file() {
         return Ok(Some(false));
     }
-    for dir in [store, path.parent().unwrap_or(store)] {
+    let read_err = |source| WriteError {
+        path: from.to_owned(),
+        source,
+    };
+    let mut src = fs::File::open(from).map_err(read_err)?;
+    let written = put(store, &path, |f| {
+        let mut hasher = blake3::Hasher::new();
+        let mut buf = vec![0u8; 1 << 20];
+        loop {
+            let n = src.read(&mut buf).map_err(read_err)?;
+            if n == 0 {
+                break;
+            }
+            hasher.update(&buf[..n]);
+            f.write_all(&buf[..n]).map_err(|source| WriteError {
+                path: path.clone(),
+                source,
+            })?;
+        }
+        Ok(hasher.finalize().to_hex().as_str() == hash)
+    })?;
+    Ok(written.then_some(true))
+}
+
+/// Writes the blob at `path` with what `fill` writes into a temporary file at the top of
+/// the store (where `clean_orphans` looks), then syncs it and renames it into place, so
+/// no half-written blob is ever listed. `fill` returns `false` to give it up: nothing is
+/// stored, and `false` is returned.
+fn put(
+    store: &Path,
+    path: &Path,
+    fill: impl FnOnce(&mut fs::File) -> Result<bool, WriteError>,
+) -> Result<bool, WriteError> {
+    let err = |source| WriteError {
+        path: path.to_owned(),
+        source,
+    };
+    let folder = path.parent().unwrap_or(store);
+    for dir in [store, folder] {
         match fs::create_dir(dir) {
             Ok(()) => {}
             Err(e) if e.kind() == io::ErrorKind::AlreadyExists => {}
@@ -129,33 +155,16 @@ pub fn store_file(store: &Path, hash: &str, from: &Path) -> Result<Option<bool>,
         .suffix(".tmp")
         .tempfile_in(store)
         .map_err(err)?;
-    let mut src = fs::File::open(from).map_err(|source| WriteError {
-        path: from.to_owned(),
-        source,
-    })?;
-    let mut hasher = blake3::Hasher::new();
-    let mut buf = vec![0u8; 1 << 20];
-    loop {
-        let n = src.read(&mut buf).map_err(|source| WriteError {
-            path: from.to_owned(),
-            source,
-        })?;
-        if n == 0 {
-            break;
-        }
-        hasher.update(&buf[..n]);
-        tmp.write_all(&buf[..n]).map_err(err)?;
-    }
-    if hasher.finalize().to_hex().as_str() != hash {
-        return Ok(None);
+    if !fill(tmp.as_file_mut())? {
+        return Ok(false);
     }
     shareable(tmp.as_file()).map_err(err)?;
     tmp.as_file().sync_all().map_err(err)?;
-    tmp.persist(&path).map_err(|e| err(e.error))?;
-    if let Ok(d) = fs::File::open(path.parent().unwrap_or(store)) {
+    tmp.persist(path).map_err(|e| err(e.error))?;
+    if let Ok(d) = fs::File::open(folder) {
         let _ = d.sync_all();
     }
-    Ok(Some(true))
+    Ok(true)
 }
 
 /// Temporary files are created private (0600); snapshots are shared like results.
