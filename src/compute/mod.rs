@@ -351,7 +351,7 @@ pub fn compute_model_with(
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
     use crate::mesh::Format;
 
@@ -371,6 +371,18 @@ mod tests {
 
     pub(super) fn block() -> Vec<shapes::Triangle> {
         shapes::box_solid([-1.0, -1.5, 0.0], [1.0, 1.5, 2.0], 3)
+    }
+
+    /// A box 20 × 6 × 3 m of 150 t floating freely in sea water (1025 kg/m³), G on the
+    /// centre line 1.8 m up, judged by a criteria preset: the writers' floating case.
+    pub(crate) fn floating_box() -> MeshResult {
+        let hull = shapes::box_solid([-10.0, -3.0, 0.0], [10.0, 3.0, 3.0], 1);
+        let s = side(
+            r#"{"units": "m", "liquid": {"density": 1025},
+                "floating": {"mass": 150000, "centre_of_gravity": [0, 0, 1.8],
+                             "criteria": "imo-2008-is-code-general"}}"#,
+        );
+        compute("b.obj", &mesh(vec![("b", hull)]), &s).expect("computes")
     }
 
     #[test]

@@ -771,16 +771,7 @@ mod tests {
     fn a_floating_case_shows_its_draft_gm_and_curve_in_si_and_us() {
         // Box 20 × 6 × 3 m, 150 t in sea water: T = m/(ρ L B) and
         // GM_T = T/2 + B²/(12 T) − KG (closed forms), shown in m and in ft (1 ft = 0.3048 m).
-        let hull = shapes::box_solid([-10.0, -3.0, 0.0], [10.0, 3.0, 3.0], 1);
-        let side = crate::sidecar::parse_sidecar(
-            std::path::Path::new("b.json"),
-            r#"{"units": "m", "liquid": {"density": 1025},
-                "floating": {"mass": 150000, "centre_of_gravity": [0, 0, 1.8],
-                             "criteria": "imo-2008-is-code-general"}}"#,
-        )
-        .expect("valid");
-        let mesh = crate::mesh::Mesh::from_parts(vec![("b", hull)], crate::mesh::Format::Obj);
-        let r = crate::compute::compute("b.obj", &mesh, &side).expect("computes");
+        let r = crate::compute::tests::floating_box();
         let t = 150_000.0 / (1025.0 * 120.0);
         let gm = t / 2.0 + 36.0 / (12.0 * t) - 1.8;
         let si = render(&r, SummaryOptions::default());

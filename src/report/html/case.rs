@@ -301,16 +301,7 @@ mod tests {
     fn a_floating_case_has_its_equilibrium_criteria_and_curve_on_the_page() {
         // Box 20 × 6 × 3 m, 150 t in sea water, G on the centre line: upright at
         // T = m/(ρ L B) with GM_T = T/2 + B²/(12 T) − KG (closed forms).
-        let hull = shapes::box_solid([-10.0, -3.0, 0.0], [10.0, 3.0, 3.0], 1);
-        let side = crate::sidecar::parse_sidecar(
-            std::path::Path::new("b.json"),
-            r#"{"units": "m", "liquid": {"density": 1025},
-                "floating": {"mass": 150000, "centre_of_gravity": [0, 0, 1.8],
-                             "criteria": "imo-2008-is-code-general"}}"#,
-        )
-        .expect("valid");
-        let mesh = crate::mesh::Mesh::from_parts(vec![("b", hull)], crate::mesh::Format::Obj);
-        let r = crate::compute::compute("b.obj", &mesh, &side).expect("computes");
+        let r = crate::compute::tests::floating_box();
         let doc = serde_json::to_value(&r).expect("serializes");
         let mut s = String::new();
         let u = Units::of(UnitSystem::Si);
