@@ -15,22 +15,6 @@ use crate::support::*;
 const MESHES: [&str; 3] = ["ring_a", "ring_b", "ring_c"];
 const ROUNDS: usize = 8;
 
-/// xorshift64* (Vigna), enough to spread the kill moments.
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 ^= self.0 >> 12;
-        self.0 ^= self.0 << 25;
-        self.0 ^= self.0 >> 27;
-        self.0.wrapping_mul(0x2545_F491_4F6C_DD1D)
-    }
-
-    fn below(&mut self, n: u64) -> u64 {
-        self.next() % n
-    }
-}
-
 /// The seed of the kill moments: `WETLOAD_CRASH_SEED` to repeat a run, else the clock.
 fn seed() -> u64 {
     std::env::var("WETLOAD_CRASH_SEED")

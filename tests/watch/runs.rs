@@ -170,16 +170,7 @@ fn calc_beside_a_running_watcher_logs_through_the_append_lock_and_numbering_cont
     // A one-shot calc of a new content while the watcher holds the folder lock: it does
     // not wait for the watcher to stop, and its line is iteration 2.
     fs::write(p.join("box.json"), sidecar(0.6)).expect("sidecar");
-    let out = std::process::Command::new(assert_cmd::cargo::cargo_bin("wetload"))
-        .arg("calc")
-        .arg(p.join("box.stl"))
-        .output()
-        .expect("calc");
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    calc_ok(&[p.join("box.stl")]);
     // The watcher hears that save too; whatever it logs for it, the next new content is
     // numbered after calc's iteration.
     std::thread::sleep(Duration::from_millis(600));

@@ -16,7 +16,6 @@ use std::collections::BTreeMap;
 use std::fs::{self, OpenOptions};
 use std::io::Write;
 use std::path::{Path, PathBuf};
-use std::process::Command;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::sync::{Arc, Mutex};
 use std::thread;
@@ -28,22 +27,6 @@ use crate::support::*;
 
 /// Level of every sidecar, m: above every box, so a box's load depends on its height.
 const LEVEL: f64 = 2.0;
-
-/// xorshift64*: the soak's choices, repeatable from a seed.
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 ^= self.0 >> 12;
-        self.0 ^= self.0 << 25;
-        self.0 ^= self.0 >> 27;
-        self.0.wrapping_mul(0x2545_f491_4f6c_dd1d)
-    }
-
-    fn below(&mut self, n: u64) -> u64 {
-        self.next() % n
-    }
-}
 
 /// A content a writer put in full into a mesh: `n` boxes of height `h` (the boxes at
 /// x = 3i, 2 × 1 m in plan).
@@ -356,17 +339,7 @@ fn soak_hundreds_of_mixed_saves_publish_only_complete_contents() {
     // Every result equals a fresh calc of the final content.
     for (stem, stl, _) in meshes {
         let ext = if stl { "stl" } else { "obj" };
-        let out = Command::new(assert_cmd::cargo::cargo_bin("wetload"))
-            .arg("calc")
-            .arg("--json")
-            .arg(p.join(format!("{stem}.{ext}")))
-            .output()
-            .expect("calc");
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        let out = calc_ok(&["--json".into(), p.join(format!("{stem}.{ext}"))]);
         let fresh: Value = serde_json::from_slice(&out.stdout).expect("calc --json");
         let doc = result(&p, stem).expect("result");
         assert_eq!(

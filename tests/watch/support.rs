@@ -495,3 +495,35 @@ pub fn wait_event(w: &Watcher, dir: &Path, skip: usize, mesh: &str, event: &str)
 pub fn settle() {
     thread::sleep(Duration::from_millis(5 * DEBOUNCE_MS + 400));
 }
+
+/// xorshift64*: pseudo-random choices (what to save, when to kill), repeatable from a
+/// seed.
+pub struct Rng(pub u64);
+
+impl Rng {
+    pub fn next(&mut self) -> u64 {
+        self.0 ^= self.0 >> 12;
+        self.0 ^= self.0 << 25;
+        self.0 ^= self.0 >> 27;
+        self.0.wrapping_mul(0x2545_f491_4f6c_dd1d)
+    }
+
+    pub fn below(&mut self, n: u64) -> u64 {
+        self.next() % n
+    }
+}
+
+/// `wetload calc` with `args`, which must succeed (its stderr otherwise in the panic).
+pub fn calc_ok(args: &[std::path::PathBuf]) -> std::process::Output {
+    let out = Command::new(assert_cmd::cargo::cargo_bin("wetload"))
+        .arg("calc")
+        .args(args)
+        .output()
+        .expect("calc");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out
+}
