@@ -7,7 +7,7 @@
 use super::{Tris, UnionFind, Vec3};
 
 /// Cells per axis of the weld grid fit in this many bits of a packed key.
-const CELL_BITS: u32 = 21;
+const CELL_BITS: u32 = 20;
 
 /// Slots of the weld's cache of exact corner positions (a power of two).
 const EXACT_SLOTS: usize = 1 << 14;
@@ -20,11 +20,13 @@ const EXACT_SLOTS: usize = 1 << 14;
 /// In a triangle soup every vertex is stored once per facet that uses it, bit for bit the
 /// same, usually a few facets apart. So, first, a small direct-mapped cache of exact
 /// positions sends each repeat to the corner it repeats; the corners it misses (the
-/// candidates, about one per vertex, plus the few repeats it forgot) go on. Second, the
-/// candidates are sorted by a grid cell 64 × `tol` wide and clustered cell by cell: the
-/// first candidate of a cluster is its representative, later ones within `tol` of it
-/// join it, and representatives within `tol` of a cell face (one in ten) are joined with
-/// those of the neighbour cells within `tol` (union-find).
+/// candidates, about one per vertex, plus the few repeats it forgot) go on. Second, each
+/// candidate's grid cell, 256 × `tol` wide, is marked in a small table: a candidate
+/// alone in its cell and more than 2 × `tol` from its faces (most of them: cells are far
+/// smaller than facets) is a vertex by itself. The others are sorted by cell and
+/// clustered cell by cell: the first candidate of a cluster is its representative, later
+/// ones within `tol` of it join it, and representatives within `tol` of a cell face are
+/// joined with those of the neighbour cells within `tol` (union-find).
 /// The sort, not a hash map, keeps every step in cache-friendly order; the result does
 /// not depend on the number of threads.
 pub(super) fn weld<T: Tris + ?Sized>(
@@ -43,8 +45,20 @@ const WELD_BLOCK: usize = 1 << 18;
 pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
     tris: &T,
     tol: f64,
+    bbox: (Vec3, Vec3),
+    block: usize,
+) -> (Vec<[u32; 3]>, usize) {
+    weld_with(tris, tol, bbox, block, None)
+}
+
+/// [`weld_in_blocks`] with a cell table of 2^`table_bits` marks (tests give small ones,
+/// so that many cells share a mark); `None` sizes it by the number of candidates.
+fn weld_with<T: Tris + ?Sized>(
+    tris: &T,
+    tol: f64,
     (origin, _): (Vec3, Vec3),
     block: usize,
+    table_bits: Option<u32>,
 ) -> (Vec<[u32; 3]>, usize) {
     use rayon::prelude::*;
 
@@ -93,55 +107,76 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
         .filter(|(_, o)| **o > 0)
         .for_each(|(ids, &o)| ids.iter_mut().for_each(|t| *t = t.map(|i| i + o)));
     let count = total as usize;
+    let table_bits = table_bits.unwrap_or_else(|| self::table_bits(count));
 
-    // 2. Candidates sorted by cell. With tol = 1e-7 × the diagonal every axis spans at
-    // most 1.6e5 cells (< 2^21, so the packed keys of real cells never collide).
-    let cell = if tol > 0.0 { 64.0 * tol } else { 1.0 };
+    // 2. Every candidate's cell. With tol = 1e-7 × the diagonal every axis spans at most
+    // 4e4 cells (< 2^20, so the packed keys of real cells never collide).
+    let cell = if tol > 0.0 { 256.0 * tol } else { 1.0 };
     // Positions are relative to the box's lowest corner, so never negative, and the cast
     // (which truncates) is the floor without a call to `floor`.
     // A point in cells (each coordinate divided once), and its cell.
     let in_cells = |q: &Vec3| -> [f64; 3] { [q.x / cell, q.y / cell, q.z / cell] };
     let key = |s: &[f64; 3]| -> [i64; 3] { [s[0] as i64, s[1] as i64, s[2] as i64] };
-    // Whether a point `s` (in cells) lies within `tol` of a face of its cell `k` along
+    // Whether a point `s` (in cells) lies within `d` of a face of its cell `k` along
     // axis `ax`: -1 (the lower face), 1 (the upper one) or 0.
-    let near_face = |s: &[f64; 3], k: &[i64; 3], ax: usize| -> i64 {
+    let near_face_within = |s: &[f64; 3], k: &[i64; 3], ax: usize, d: f64| -> i64 {
         let inside = s[ax] - k[ax] as f64; // position inside the cell, [0, 1)
-        if inside * cell < tol {
+        if inside * cell < d {
             -1
-        } else if (1.0 - inside) * cell <= tol {
+        } else if (1.0 - inside) * cell <= d {
             1
         } else {
             0
         }
     };
-    // (cell, candidate, its corner with [`NEAR_FACE`] set when the point lies that close
-    // to a face of its cell): the candidate breaks ties, so the order is unique.
-    // Filled in place, block by block (a collected list would grow by copies).
-    let mut order: Vec<(u64, u32, u32)> = vec![(0, 0, 0); count];
-    let mut rest = &mut order[..];
+    let near_face = |s: &[f64; 3], k: &[i64; 3], ax: usize| near_face_within(s, k, ax, tol);
+    // Each candidate's packed cell, with [`NEAR_FACE`] and [`NEAR_TWICE`] set as the point
+    // lies that close to a face of its cell. Filled in place, block by block.
+    let mut cells: Vec<u64> = vec![0; count];
+    let mut rest = &mut cells[..];
     let mut places = Vec::with_capacity(blocks.len());
     for b in &blocks {
         let (head, tail) = std::mem::take(&mut rest).split_at_mut(b.len());
         places.push(head);
         rest = tail;
     }
-    places
-        .into_par_iter()
-        .zip(&blocks)
-        .zip(&offsets)
-        .for_each(|((out, b), &o)| {
-            for (i, (slot, &c)) in out.iter_mut().zip(b).enumerate() {
-                let q = corner(c);
-                let s = in_cells(&q);
-                let k = key(&s);
-                let near = (0..3).any(|ax| near_face(&s, &k, ax) != 0);
-                *slot = (pack(k), o + i as u32, c | if near { NEAR_FACE } else { 0 });
+    places.into_par_iter().zip(&blocks).for_each(|(out, b)| {
+        for (slot, &c) in out.iter_mut().zip(b) {
+            let q = corner(c);
+            let s = in_cells(&q);
+            let k = key(&s);
+            let near = (0..3).any(|ax| near_face(&s, &k, ax) != 0);
+            let twice = near || (0..3).any(|ax| near_face_within(&s, &k, ax, 2.0 * tol) != 0);
+            *slot = pack(k) | if near { NEAR_FACE } else { 0 } | if twice { NEAR_TWICE } else { 0 };
+        }
+    });
+    // A table of cells, each marked once it holds a candidate and again once it holds
+    // two (by a hash of the cell, so two cells may share a mark: that only sends more
+    // candidates to the sort). A candidate alone in its cell and farther than 2 × `tol`
+    // from every face of it is a cluster by itself: no point of another cell is within
+    // `tol` of it, and no later step needs it. Most candidates are such.
+    let mut table = CellTable::new(table_bits);
+    for &c in &cells {
+        table.mark(c & CELL_MASK);
+    }
+    // The others, (cell, candidate, corner with [`NEAR_FACE`] set as above), sorted by
+    // cell; the candidate breaks ties, so the order is unique.
+    let mut order: Vec<(u64, u32, u32)> = Vec::new();
+    let mut j = 0usize;
+    for b in &blocks {
+        for &c in b {
+            let k = cells[j];
+            if k & NEAR_TWICE != 0 || table.shared(k & CELL_MASK) {
+                let near = if k & NEAR_FACE != 0 { NEAR_CORNER } else { 0 };
+                order.push((k & CELL_MASK, j as u32, c | near));
             }
-        });
-    drop(blocks);
+            j += 1;
+        }
+    }
+    drop((blocks, cells));
     order.par_sort_unstable();
     // The position of the candidate at `a` in `order`.
-    let at = |a: usize| corner(order[a].2 & !NEAR_FACE);
+    let at = |a: usize| corner(order[a].2 & !NEAR_CORNER);
 
     // 3. Clusters. Within a cell, in candidate order, the first candidate of a cluster is
     // its representative and every later one within `tol` of a representative joins it;
@@ -192,7 +227,7 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
             let mut found = Vec::new();
             for &a in block {
                 let (_, i, c) = order[a as usize];
-                if c & NEAR_FACE == 0 {
+                if c & NEAR_CORNER == 0 {
                     continue; // nothing in another cell is within `tol`
                 }
                 let q = at(a as usize);
@@ -216,6 +251,9 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
                             }
                             let other =
                                 pack([k[0] + offs[0][ia], k[1] + offs[1][ib], k[2] + offs[2][ic]]);
+                            if !table.holds(other) {
+                                continue; // an empty cell
+                            }
                             let from = rep_keys.partition_point(|&k| k < other);
                             for (&r, &key_r) in reps[from..].iter().zip(&rep_keys[from..]) {
                                 if key_r != other {
@@ -256,7 +294,68 @@ pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
 
 /// Marks a corner index in the weld's sort: the point lies within the tolerance of a
 /// face of its cell. Corner indices stay below 3 × [`crate::limits::FACETS_CEILING`] < 2^30.
-const NEAR_FACE: u32 = 1 << 31;
+const NEAR_CORNER: u32 = 1 << 31;
+
+/// Marks a packed cell: the point lies within the tolerance of a face of its cell.
+const NEAR_FACE: u64 = 1 << 63;
+
+/// Marks a packed cell: the point lies within twice the tolerance of a face of its cell.
+const NEAR_TWICE: u64 = 1 << 62;
+
+/// The bits of a packed cell that name the cell.
+const CELL_MASK: u64 = (1 << (3 * CELL_BITS)) - 1;
+
+/// Which cells hold a candidate, and which hold two or more, by a hash of the cell into
+/// two bit sets: a cell reported empty holds none, a cell reported alone holds one.
+struct CellTable {
+    once: Vec<u64>,
+    twice: Vec<u64>,
+    shift: u32,
+}
+
+impl CellTable {
+    /// A table of 2^`bits` marks (at least 64).
+    fn new(bits: u32) -> CellTable {
+        let bits = bits.max(6);
+        CellTable {
+            once: vec![0; 1 << (bits - 6)],
+            twice: vec![0; 1 << (bits - 6)],
+            shift: 64 - bits,
+        }
+    }
+
+    fn place(&self, cell: u64) -> (usize, u64) {
+        const K: u64 = 0x9E37_79B9_7F4A_7C15;
+        let h = (cell.wrapping_mul(K) >> self.shift) as usize;
+        (h / 64, 1 << (h % 64))
+    }
+
+    fn mark(&mut self, cell: u64) {
+        let (w, bit) = self.place(cell);
+        if self.once[w] & bit != 0 {
+            self.twice[w] |= bit;
+        }
+        self.once[w] |= bit;
+    }
+
+    /// Whether the cell may hold a candidate.
+    fn holds(&self, cell: u64) -> bool {
+        let (w, bit) = self.place(cell);
+        self.once[w] & bit != 0
+    }
+
+    /// Whether the cell may hold two candidates or more.
+    fn shared(&self, cell: u64) -> bool {
+        let (w, bit) = self.place(cell);
+        self.twice[w] & bit != 0
+    }
+}
+
+/// Marks of the weld's cell table for `count` candidates: about eight a candidate, so
+/// that few lone candidates share a mark.
+fn table_bits(count: usize) -> u32 {
+    (usize::BITS - (8 * count.max(1)).leading_zeros()).clamp(10, 28)
+}
 
 /// A cell's three indices packed into one key, [`CELL_BITS`] bits each.
 fn pack(k: [i64; 3]) -> u64 {
@@ -306,6 +405,14 @@ mod tests {
             // In blocks of a few facets: points repeated across blocks are joined again.
             for block in [1, 7, 100] {
                 assert_eq!(weld_in_blocks(&mesh, tol, bbox, block), (ids.clone(), n));
+            }
+            // A cell table of a few marks: most cells share one, so most candidates go
+            // through the sort, and empty neighbour cells are visited.
+            for bits in [0, 4, 9] {
+                assert_eq!(
+                    weld_with(&mesh, tol, bbox, WELD_BLOCK, Some(bits)),
+                    (ids.clone(), n)
+                );
             }
             assert_eq!(n, 24 * 12, "every torus vertex once");
         }
