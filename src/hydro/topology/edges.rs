@@ -425,7 +425,8 @@ mod tests {
         t.push(t[10]);
         t.push([t[20][0], t[20][1], Vec3::new(9.0, 9.0, 9.0)]);
         let (lo, hi) = bounding_box(t.iter().flatten());
-        let (ids, vertices) = weld(&t, WELD_TOLERANCE_REL * (hi - lo).norm(), (lo, hi));
+        let w = weld(&t, WELD_TOLERANCE_REL * (hi - lo).norm(), (lo, hi));
+        let (ids, vertices) = (w.ids, w.vertices);
         let mut degenerate = vec![false; ids.len()];
         degenerate[5] = true; // left out of every edge
         let whole = std::iter::once(0..vertices as u32).collect();

@@ -29,8 +29,8 @@ mod weld;
 use super::{Tri, Tris, Vec3};
 use edges::{EdgeFindings, NO_NEIGHBOUR, duplicate_facet_list, find_edges};
 use nest::nest;
-use shells::{flood, join_pieces, shell_sums};
-use weld::weld;
+use shells::{flood, join_pieces, shell_sums, shell_volumes};
+use weld::{Welded, six_volume, weld};
 
 /// Weld tolerance for topology, relative to the bounding-box diagonal (pinned).
 pub const WELD_TOLERANCE_REL: f64 = 1e-7;
@@ -162,7 +162,11 @@ impl Topology {
         let tolerance = WELD_TOLERANCE_REL * diag;
         let centre = (lo + hi) / 2.0;
 
-        let (ids, vertices) = weld(tris, tolerance, (lo, hi));
+        let Welded {
+            ids,
+            vertices,
+            volume_sums,
+        } = weld(tris, tolerance, (lo, hi));
         let degenerate: Vec<bool> = ids
             .iter()
             .map(|[a, b, c]| a == b || b == c || a == c)
@@ -234,13 +238,14 @@ impl Topology {
             shells = join_pieces(shells, &joins.into_vec(), &mut facet_shell);
         }
 
-        // Signed volume per shell about the box centre (no cancellation far from origin).
-        let vol = shell_sums(&facet_shell, shells.len(), |f| {
-            let t = tris.tri(f);
-            let (a, b, c) = (t[0] - centre, t[1] - centre, t[2] - centre);
-            let v6 = a.dot(&b.cross(&c));
-            (if flip[f] { -v6 } else { v6 }) / 6.0
-        });
+        // Signed volume per shell about the box centre (no cancellation far from origin),
+        // mostly from the weld's sums.
+        let vol: Vec<f64> = shell_volumes(&facet_shell, &flip, shells.len(), &volume_sums, |f| {
+            six_volume(&tris.tri(f), &centre)
+        })
+        .into_iter()
+        .map(|six| six / 6.0)
+        .collect();
         for (s, sh) in shells.iter_mut().enumerate() {
             sh.volume = vol[s];
             if sh.closed && vol[s] < 0.0 {
@@ -319,6 +324,26 @@ impl UnionFind {
         }
         x
     }
+    /// Numbers the sets in order of their lowest element: each element's set number, and
+    /// the number of sets. In place: every element's parent is at or below it (a union
+    /// hangs the higher root under the lower, and path halving only moves a parent
+    /// lower), so when the elements are taken in order, a parent's entry already holds
+    /// its set's number.
+    pub(super) fn into_numbers(self) -> (Vec<u32>, usize) {
+        let mut number = self.parent;
+        let mut sets = 0u32;
+        for i in 0..number.len() {
+            let p = number[i] as usize;
+            number[i] = if p == i {
+                sets += 1;
+                sets - 1
+            } else {
+                number[p]
+            };
+        }
+        (number, sets as usize)
+    }
+
     pub(super) fn union(&mut self, a: usize, b: usize) {
         let (ra, rb) = (self.find(a), self.find(b));
         if ra != rb {
@@ -330,7 +355,7 @@ impl UnionFind {
 
 #[cfg(test)]
 mod tests {
-    use super::weld::{weld, weld_in_blocks};
+    use super::weld::{weld, weld_with};
     use super::*;
 
     pub(super) fn tris(t: Vec<shapes::Triangle>) -> Vec<Tri> {
@@ -344,6 +369,35 @@ mod tests {
     }
 
     #[test]
+    fn sets_are_numbered_in_order_of_their_lowest_element() {
+        let mut seed = 11u64;
+        let mut next = |n: usize| {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (seed >> 33) as usize % n
+        };
+        for n in [1, 2, 10, 1000] {
+            let mut uf = UnionFind::new(n);
+            for _ in 0..n / 2 {
+                let (a, b) = (next(n), next(n));
+                uf.union(a, b);
+                let _ = uf.find(next(n)); // halves some paths
+            }
+            // By finds: the sets' roots numbered as they first come.
+            let mut by_root = std::collections::HashMap::new();
+            let want: Vec<u32> = (0..n)
+                .map(|i| {
+                    let r = uf.find(i);
+                    let k = by_root.len() as u32;
+                    *by_root.entry(r).or_insert(k)
+                })
+                .collect();
+            assert_eq!(uf.into_numbers(), (want, by_root.len()));
+        }
+    }
+
+    #[test]
     fn a_clean_box_is_one_closed_outward_shell() {
         let t = Topology::build(&unit_box());
         assert!(t.closed());
@@ -352,6 +406,32 @@ mod tests {
         assert_eq!(t.shells[0].flipped_facets, 0);
         // Exact polyhedron volume 2 × 3 × 4.
         assert!((t.shells[0].volume - 24.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn volumes_of_shells_over_many_blocks_and_read_both_ways_are_exact() {
+        // Two finely cut boxes (10,800 facets each: several of the weld's volume blocks),
+        // the second stored inward, and a stretch of the first's facets reversed so that
+        // blocks mix both ways. Exact polyhedron volumes: 2 × 3 × 4 and 1 × 1 × 2.
+        let mut m = tris(shapes::box_solid([0.0, 0.0, 0.0], [2.0, 3.0, 4.0], 30));
+        let first = m.len();
+        for t in &mut m[5000..5300] {
+            t.swap(1, 2);
+        }
+        m.extend(
+            tris(shapes::box_solid([5.0, 0.0, 0.0], [6.0, 1.0, 2.0], 30))
+                .into_iter()
+                .map(|[a, b, c]| [a, c, b]),
+        );
+        assert!(m.len() > 4 * super::weld::VOLUME_BLOCK);
+        let t = Topology::build(&m);
+        assert!(t.closed());
+        assert_eq!(t.shells.len(), 2);
+        assert_eq!(t.shells[0].facets, first);
+        assert_eq!(t.shells[0].flipped_facets, 300);
+        assert!(t.shells[1].inverted);
+        assert!((t.shells[0].volume - 24.0).abs() < 1e-12 * 24.0);
+        assert!((t.shells[1].volume - 2.0).abs() < 1e-12 * 2.0);
     }
 
     #[test]
@@ -492,7 +572,8 @@ mod tests {
             }
             let (lo, hi) = bounding_box(tris.iter().flat_map(|t| t.iter()));
             let tol = WELD_TOLERANCE_REL * (hi - lo).norm();
-            let (ids, vertices) = weld(&tris, tol, (lo, hi));
+            let w = weld(&tris, tol, (lo, hi));
+            let (ids, vertices) = (w.ids, w.vertices);
             let mut seen: std::collections::BTreeMap<u32, u32> = Default::default();
             for (got, want) in ids.iter().flatten().zip(point_ids.iter().flatten()) {
                 proptest::prop_assert_eq!(*seen.entry(*want).or_insert(*got), *got);
@@ -504,7 +585,8 @@ mod tests {
             let (plain, plain_vertices) = plain_weld(&tris, tol);
             proptest::prop_assert_eq!(&ids, &plain);
             proptest::prop_assert_eq!(plain_vertices, vertices);
-            proptest::prop_assert_eq!(weld_in_blocks(&tris, tol, (lo, hi), 3), (ids.clone(), vertices));
+            let w = weld_with(&tris, tol, (lo, hi), 3, None);
+            proptest::prop_assert_eq!((w.ids, w.vertices), (ids.clone(), vertices));
 
             let t = Topology::build(&tris);
             let (open, non_manifold, inconsistent) = naive_edge_counts(&point_ids);

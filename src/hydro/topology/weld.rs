@@ -29,37 +29,44 @@ const EXACT_SLOTS: usize = 1 << 14;
 /// joined with those of the neighbour cells within `tol` (union-find).
 /// The sort, not a hash map, keeps every step in cache-friendly order; the result does
 /// not depend on the number of threads.
-pub(super) fn weld<T: Tris + ?Sized>(
-    tris: &T,
-    tol: f64,
-    bbox: (Vec3, Vec3),
-) -> (Vec<[u32; 3]>, usize) {
-    weld_in_blocks(tris, tol, bbox, WELD_BLOCK)
+pub(super) fn weld<T: Tris + ?Sized>(tris: &T, tol: f64, bbox: (Vec3, Vec3)) -> Welded {
+    weld_with(tris, tol, bbox, WELD_BLOCK, None)
+}
+
+/// What [`weld`] gives: every facet's vertex ids, the number of vertices, and the sums
+/// of [`six_volume`] over every [`VOLUME_BLOCK`] facets (the weld reads every facet,
+/// so the shells' volumes need no pass of their own).
+pub(super) struct Welded {
+    pub(super) ids: Vec<[u32; 3]>,
+    pub(super) vertices: usize,
+    pub(super) volume_sums: Vec<f64>,
+}
+
+/// Facets per sum of [`Welded::volume_sums`] (a constant, so the sums do not depend on the
+/// number of threads).
+pub(super) const VOLUME_BLOCK: usize = 1 << 12;
+
+/// Six times the signed volume of the tetrahedron of facet `t` and the box centre `c`.
+#[inline]
+pub(super) fn six_volume(t: &[Vec3; 3], c: &Vec3) -> f64 {
+    let (a, b, d) = (t[0] - c, t[1] - c, t[2] - c);
+    a.dot(&b.cross(&d))
 }
 
 /// Facets per block of the weld's first step (a constant, so that nothing depends on the
 /// number of threads).
 const WELD_BLOCK: usize = 1 << 18;
 
-/// [`weld`], its first step in blocks of `block` facets.
-pub(super) fn weld_in_blocks<T: Tris + ?Sized>(
+/// [`weld`], its first step in blocks of `block` facets, with a cell table of
+/// 2^`table_bits` marks (tests give small ones, so that many cells share a mark); `None`
+/// sizes it by the number of candidates.
+pub(super) fn weld_with<T: Tris + ?Sized>(
     tris: &T,
     tol: f64,
-    bbox: (Vec3, Vec3),
-    block: usize,
-) -> (Vec<[u32; 3]>, usize) {
-    weld_with(tris, tol, bbox, block, None)
-}
-
-/// [`weld_in_blocks`] with a cell table of 2^`table_bits` marks (tests give small ones,
-/// so that many cells share a mark); `None` sizes it by the number of candidates.
-fn weld_with<T: Tris + ?Sized>(
-    tris: &T,
-    tol: f64,
-    (origin, _): (Vec3, Vec3),
+    (origin, top): (Vec3, Vec3),
     block: usize,
     table_bits: Option<u32>,
-) -> (Vec<[u32; 3]>, usize) {
+) -> Welded {
     use rayon::prelude::*;
 
     // 1. Exact repeats, block by block on both threads, each block with its own cache; the
@@ -70,31 +77,55 @@ fn weld_with<T: Tris + ?Sized>(
     let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.count()];
     // Each candidate's corner (3 × facet + corner), relative to `origin` its position.
     let corner = |c: u32| tris.corner(c as usize / 3, c as usize % 3) - origin;
-    let blocks: Vec<Vec<u32>> = ids
+    let centre = (origin + top) / 2.0;
+    // Per block: its candidates, and its sums of six volumes per volume block it meets.
+    type Found = (Vec<u32>, Vec<(usize, f64)>);
+    let found: Vec<Found> = ids
         .par_chunks_mut(block)
         .enumerate()
         .map(|(b, ids)| {
             let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
             let mut candidates: Vec<u32> = Vec::with_capacity(ids.len() / 2 + 16);
-            for (f, c) in ids.iter_mut().enumerate() {
-                let t = tris.tri(b * block + f);
-                for k in 0..3 {
-                    let p = &t[k];
-                    let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
-                    let slot = exact_slot(&bits);
-                    c[k] = if exact[slot].0 == bits {
-                        exact[slot].1
-                    } else {
-                        let i = candidates.len() as u32;
-                        candidates.push((3 * (b * block + f) + k) as u32);
-                        exact[slot] = (bits, i);
-                        i
-                    };
+            let mut volumes: Vec<(usize, f64)> = Vec::new();
+            // In pieces that end where a volume block ends.
+            let mut f = 0;
+            while f < ids.len() {
+                let g = b * block + f;
+                let end = (f + VOLUME_BLOCK - g % VOLUME_BLOCK).min(ids.len());
+                let mut sum = 0.0;
+                for (f, c) in (f..end).zip(&mut ids[f..end]) {
+                    let t = tris.tri(b * block + f);
+                    sum += six_volume(&t, &centre);
+                    for k in 0..3 {
+                        let p = &t[k];
+                        let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+                        let slot = exact_slot(&bits);
+                        c[k] = if exact[slot].0 == bits {
+                            exact[slot].1
+                        } else {
+                            let i = candidates.len() as u32;
+                            candidates.push((3 * (b * block + f) + k) as u32);
+                            exact[slot] = (bits, i);
+                            i
+                        };
+                    }
                 }
+                volumes.push((g / VOLUME_BLOCK, sum));
+                f = end;
             }
-            candidates
+            (candidates, volumes)
         })
         .collect();
+    // A volume block met by two blocks of this step (only with blocks that are not a
+    // multiple of it, as in tests) is summed in order.
+    let mut volume_sums = vec![0.0; ids.len().div_ceil(VOLUME_BLOCK)];
+    let mut blocks = Vec::with_capacity(found.len());
+    for (candidates, volumes) in found {
+        for (v, sum) in volumes {
+            volume_sums[v] += sum;
+        }
+        blocks.push(candidates);
+    }
     // Block-local candidate indices become global ones.
     let mut offsets = Vec::with_capacity(blocks.len());
     let mut total = 0u32;
@@ -161,12 +192,14 @@ fn weld_with<T: Tris + ?Sized>(
     }
     // The others, (cell, candidate, corner with [`NEAR_FACE`] set as above), sorted by
     // cell; the candidate breaks ties, so the order is unique.
-    let mut order: Vec<(u64, u32, u32)> = Vec::new();
+    let sorted = |k: u64| k & NEAR_TWICE != 0 || table.shared(k & CELL_MASK);
+    let mut order: Vec<(u64, u32, u32)> =
+        Vec::with_capacity(cells.iter().filter(|&&k| sorted(k)).count());
     let mut j = 0usize;
     for b in &blocks {
         for &c in b {
             let k = cells[j];
-            if k & NEAR_TWICE != 0 || table.shared(k & CELL_MASK) {
+            if sorted(k) {
                 let near = if k & NEAR_FACE != 0 { NEAR_CORNER } else { 0 };
                 order.push((k & CELL_MASK, j as u32, c | near));
             }
@@ -277,19 +310,14 @@ fn weld_with<T: Tris + ?Sized>(
 
     // 4. Number the clusters in order of their first candidate (the union-find keeps the
     // lowest index as the root, and candidates are in order of first appearance).
-    let mut vertex = vec![u32::MAX; count];
-    let mut vertices = 0u32;
-    for i in 0..count {
-        let r = uf.find(i);
-        if vertex[r] == u32::MAX {
-            vertex[r] = vertices;
-            vertices += 1;
-        }
-        vertex[i] = vertex[r];
-    }
+    let (vertex, vertices) = uf.into_numbers();
     ids.par_iter_mut()
         .for_each(|t| *t = t.map(|i| vertex[i as usize]));
-    (ids, vertices as usize)
+    Welded {
+        ids,
+        vertices,
+        volume_sums,
+    }
 }
 
 /// Marks a corner index in the weld's sort: the point lies within the tolerance of a
@@ -400,19 +428,20 @@ mod tests {
             mesh.push(mesh[0]);
             let bbox = bounding_box(mesh.iter().flat_map(|t| t.iter()));
             let tol = WELD_TOLERANCE_REL * (bbox.1 - bbox.0).norm();
-            let (ids, n) = weld(&mesh, tol, bbox);
+            let Welded {
+                ids, vertices: n, ..
+            } = weld(&mesh, tol, bbox);
             assert_eq!((ids.clone(), n), plain_weld(&mesh, tol));
             // In blocks of a few facets: points repeated across blocks are joined again.
             for block in [1, 7, 100] {
-                assert_eq!(weld_in_blocks(&mesh, tol, bbox, block), (ids.clone(), n));
+                let w = weld_with(&mesh, tol, bbox, block, None);
+                assert_eq!((w.ids, w.vertices), (ids.clone(), n));
             }
             // A cell table of a few marks: most cells share one, so most candidates go
             // through the sort, and empty neighbour cells are visited.
             for bits in [0, 4, 9] {
-                assert_eq!(
-                    weld_with(&mesh, tol, bbox, WELD_BLOCK, Some(bits)),
-                    (ids.clone(), n)
-                );
+                let w = weld_with(&mesh, tol, bbox, WELD_BLOCK, Some(bits));
+                assert_eq!((w.ids, w.vertices), (ids.clone(), n));
             }
             assert_eq!(n, 24 * 12, "every torus vertex once");
         }
