@@ -209,49 +209,79 @@ fn cut_loads(
     vol_sign: i8,
     mut out: FacetLoads,
 ) -> FacetLoads {
+    // A facet that no plane cuts is its own only piece.
+    let (lo, hi) = (
+        t[0].z.min(t[1].z).min(t[2].z),
+        t[0].z.max(t[1].z).max(t[2].z),
+    );
+    if planes.iter().all(|&h| h >= hi || h <= lo) {
+        add_polygon(&mut out, t, profile, side, level, volume_level, vol_sign);
+        return out;
+    }
     slab_pieces(t, planes, |piece: &Piece, _slab| {
-        let v = piece.vertices();
-        // Every piece lies on one side of each plane, so its centroid classifies it.
-        let zc = v.iter().map(|p| p.z).sum::<f64>() / v.len() as f64;
-        for i in 1..v.len() - 1 {
-            let (r0, r1, r2) = (v[0], v[i], v[i + 1]);
-            let a = 0.5 * (r1 - r0).cross(&(r2 - r0));
-            if let Some(prof) = profile {
-                let (p0, p1, p2) = (
-                    prof.pressure(r0.z),
-                    prof.pressure(r1.z),
-                    prof.pressure(r2.z),
-                );
-                let sum_p = p0 + p1 + p2;
-                out.force -= side * (sum_p / 3.0) * a;
-                let first = p0 * r0 + p1 * r1 + p2 * r2 + sum_p * (r0 + r1 + r2);
-                out.moment -= side / 12.0 * first.cross(&a);
-                if zc <= level {
-                    out.wetted_area += a.norm();
-                }
-                out.max_pressure = out.max_pressure.max(p0.max(p1).max(p2));
-                if sum_p != 0.0 || zc <= level {
-                    out.loaded = true;
-                }
-            }
-            if let Some(l) = volume_level
-                && zc <= l
-            {
-                let s = f64::from(vol_sign) * a.z;
-                let (d0, d1, d2) = (r0.z - l, r1.z - l, r2.z - l);
-                let sd = d0 + d1 + d2;
-                out.volume += s * sd / 3.0;
-                let mx = r0.x * d0 + r1.x * d1 + r2.x * d2 + (r0.x + r1.x + r2.x) * sd;
-                let my = r0.y * d0 + r1.y * d1 + r2.y * d2 + (r0.y + r1.y + r2.y) * sd;
-                let mz = d0 * d0 + d1 * d1 + d2 * d2 + sd * sd;
-                // ∫z dV = ∫(z − L) dV + L·V, so sums over different levels still add up.
-                let vol = s * sd / 3.0;
-                out.volume_moment +=
-                    Vec3::new(s * mx / 12.0, s * my / 12.0, s * mz / 24.0 + l * vol);
-            }
-        }
+        add_polygon(
+            &mut out,
+            piece.vertices(),
+            profile,
+            side,
+            level,
+            volume_level,
+            vol_sign,
+        );
     });
     out
+}
+
+/// Adds the loads of one piece `v` (a convex polygon lying in one slab) to `out`.
+#[allow(clippy::too_many_arguments)]
+#[inline]
+fn add_polygon(
+    out: &mut FacetLoads,
+    v: &[Vec3],
+    profile: Option<&Profile>,
+    side: f64,
+    level: f64,
+    volume_level: Option<f64>,
+    vol_sign: i8,
+) {
+    // Every piece lies on one side of each plane, so its centroid classifies it.
+    let zc = v.iter().map(|p| p.z).sum::<f64>() / v.len() as f64;
+    for i in 1..v.len() - 1 {
+        let (r0, r1, r2) = (v[0], v[i], v[i + 1]);
+        let a = 0.5 * (r1 - r0).cross(&(r2 - r0));
+        if let Some(prof) = profile {
+            let (p0, p1, p2) = (
+                prof.pressure(r0.z),
+                prof.pressure(r1.z),
+                prof.pressure(r2.z),
+            );
+            let sum_p = p0 + p1 + p2;
+            out.force -= side * (sum_p / 3.0) * a;
+            let first = p0 * r0 + p1 * r1 + p2 * r2 + sum_p * (r0 + r1 + r2);
+            out.moment -= side / 12.0 * first.cross(&a);
+            if zc <= level {
+                out.wetted_area += a.norm();
+            }
+            out.max_pressure = out.max_pressure.max(p0.max(p1).max(p2));
+            if sum_p != 0.0 || zc <= level {
+                out.loaded = true;
+            }
+        }
+        if let Some(l) = volume_level
+            && zc <= l
+        {
+            let s = f64::from(vol_sign) * a.z;
+            let (d0, d1, d2) = (r0.z - l, r1.z - l, r2.z - l);
+            let sd = d0 + d1 + d2;
+            out.volume += s * sd / 3.0;
+            let mx = r0.x * d0 + r1.x * d1 + r2.x * d2 + (r0.x + r1.x + r2.x) * sd;
+            let my = r0.y * d0 + r1.y * d1 + r2.y * d2 + (r0.y + r1.y + r2.y) * sd;
+            let mz = d0 * d0 + d1 * d1 + d2 * d2 + sd * sd;
+            // ∫z dV = ∫(z − L) dV + L·V, so sums over different levels still add up.
+            let vol = s * sd / 3.0;
+            out.volume_moment += Vec3::new(s * mx / 12.0, s * my / 12.0, s * mz / 24.0 + l * vol);
+        }
+    }
 }
 
 /// The cut planes for a part: the profile's kinks merged with the volume level.
@@ -344,11 +374,27 @@ mod tests {
     }
 
     #[test]
-    fn a_dry_facet_skipped_whole_gives_the_bits_of_its_pieces() {
-        // Facets above, across and below the level, with and without a volume level, on
-        // both wet sides and dry: the shortcut for a wholly dry facet must give exactly
-        // what integrating its pieces gives (signed zeros included, hence `{:?}`).
-        let prof = Profile::new(&Liquid::uniform(0.5, 1000.0), G).expect("valid");
+    fn facets_taken_whole_give_the_bits_of_their_pieces() {
+        // Facets above, across and below the level (and the kink of a two-layer liquid),
+        // with and without a volume level, on both wet sides and dry: the shortcuts for a
+        // wholly dry facet and for a facet no plane cuts must give exactly what cutting it
+        // into pieces and adding them gives (signed zeros included, hence `{:?}`).
+        let two = Liquid {
+            level_m: 0.5,
+            surface_pressure_pa: 0.0,
+            layers: vec![
+                Layer {
+                    density_kg_m3: 900.0,
+                    down_to_m: Some(-0.25),
+                },
+                Layer {
+                    density_kg_m3: 1025.0,
+                    down_to_m: None,
+                },
+            ],
+        };
+        let one = Profile::new(&Liquid::uniform(0.5, 1000.0), G).expect("valid");
+        let two = Profile::new(&two, G).expect("valid");
         let mut seed = 7u64;
         let mut next = || {
             seed = seed
@@ -356,56 +402,67 @@ mod tests {
                 .wrapping_add(1442695040888963407);
             (seed >> 11) as f64 / (1u64 << 53) as f64 * 4.0 - 1.5
         };
-        let mut skipped = 0;
+        let (mut dry, mut whole) = (0, 0);
         for _ in 0..2000 {
             let t: Tri = [
                 v(next(), next(), next()),
                 v(next(), next(), next()),
                 v(next(), next(), next()),
             ];
-            for (wetting, vol_sign, volume_level) in [
-                (Wetting::Front, 1, Some(0.5)),
-                (Wetting::Back, -1, Some(0.5)),
-                (Wetting::Front, 0, None),
-                (Wetting::Dry, 1, Some(1.0)),
-                (Wetting::Dry, 0, None),
-            ] {
-                let planes = part_planes(Some(&prof), volume_level);
-                let quick = facet_loads(&t, &planes, Some(&prof), wetting, volume_level, vol_sign);
-                let side = match wetting {
-                    Wetting::Front => 1.0,
-                    Wetting::Back => -1.0,
-                    Wetting::Dry => 0.0,
-                };
-                let profile = (side != 0.0).then_some(&prof);
-                let level = profile.map_or(f64::NEG_INFINITY, Profile::level);
-                let volume_level = if vol_sign == 0 { None } else { volume_level };
-                let empty = FacetLoads {
-                    force: Vec3::zeros(),
-                    moment: Vec3::zeros(),
-                    wetted_area: 0.0,
-                    max_pressure: f64::NEG_INFINITY,
-                    volume: 0.0,
-                    volume_moment: Vec3::zeros(),
-                    loaded: false,
-                };
-                let cut = cut_loads(
-                    &t,
-                    &planes,
-                    profile,
-                    side,
-                    level,
-                    volume_level,
-                    vol_sign,
-                    empty,
-                );
-                assert_eq!(format!("{quick:?}"), format!("{cut:?}"), "{t:?}");
-                if t.iter().all(|p| p.z > 0.5) && profile.is_some() {
-                    skipped += 1;
+            for prof in [&one, &two] {
+                for (wetting, vol_sign, volume_level) in [
+                    (Wetting::Front, 1, Some(0.5)),
+                    (Wetting::Back, -1, Some(0.5)),
+                    (Wetting::Front, 0, None),
+                    (Wetting::Dry, 1, Some(1.0)),
+                    (Wetting::Dry, 0, None),
+                ] {
+                    let planes = part_planes(Some(prof), volume_level);
+                    let quick =
+                        facet_loads(&t, &planes, Some(prof), wetting, volume_level, vol_sign);
+                    // Every piece added, as `facet_loads` would without its shortcuts.
+                    let side = match wetting {
+                        Wetting::Front => 1.0,
+                        Wetting::Back => -1.0,
+                        Wetting::Dry => 0.0,
+                    };
+                    let profile = (side != 0.0).then_some(prof);
+                    let level = profile.map_or(f64::NEG_INFINITY, Profile::level);
+                    let volume_level = if vol_sign == 0 { None } else { volume_level };
+                    let mut cut = FacetLoads {
+                        force: Vec3::zeros(),
+                        moment: Vec3::zeros(),
+                        wetted_area: 0.0,
+                        max_pressure: f64::NEG_INFINITY,
+                        volume: 0.0,
+                        volume_moment: Vec3::zeros(),
+                        loaded: false,
+                    };
+                    if profile.is_some() || volume_level.is_some() {
+                        slab_pieces(&t, &planes, |piece: &Piece, _| {
+                            let v = piece.vertices();
+                            add_polygon(&mut cut, v, profile, side, level, volume_level, vol_sign);
+                        });
+                    }
+                    assert_eq!(format!("{quick:?}"), format!("{cut:?}"), "{t:?}");
+                    let (lo, hi) = (
+                        t.iter().map(|p| p.z).fold(f64::INFINITY, f64::min),
+                        t.iter().map(|p| p.z).fold(f64::NEG_INFINITY, f64::max),
+                    );
+                    if profile.is_some() {
+                        if lo > 0.5 {
+                            dry += 1;
+                        } else if planes.iter().all(|&h| h >= hi || h <= lo) {
+                            whole += 1;
+                        }
+                    }
                 }
             }
         }
-        assert!(skipped > 100, "the shortcut was taken {skipped} times");
+        assert!(
+            dry > 200 && whole > 200,
+            "shortcuts taken: {dry} dry, {whole} whole"
+        );
     }
 
     #[test]
