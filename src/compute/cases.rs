@@ -54,6 +54,16 @@ pub(super) fn run<T: hydro::Tris + ?Sized>(
     wet: &Wet,
     profiles: &[Profile],
 ) -> Vec<PartAccum> {
+    integration(tris, parts, wet, profiles).run()
+}
+
+/// [`run`]'s work, to be shared out by the caller (see [`hydro::Integration`]).
+pub(super) fn integration<'a, T: hydro::Tris + ?Sized>(
+    tris: &'a T,
+    parts: &[Part],
+    wet: &'a Wet,
+    profiles: &'a [Profile],
+) -> hydro::Integration<'a, T> {
     let closed = wet.closed;
     let inputs: Vec<PartInput<'_>> = parts
         .iter()
@@ -69,7 +79,7 @@ pub(super) fn run<T: hydro::Tris + ?Sized>(
             }
         })
         .collect();
-    hydro::integrate(tris, &inputs, &wet.wetting, &wet.vol_sign)
+    hydro::Integration::new(tris, &inputs, &wet.wetting, &wet.vol_sign)
 }
 
 fn total_of(accs: &[PartAccum]) -> PartAccum {

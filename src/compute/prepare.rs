@@ -7,12 +7,16 @@
 //! loads only when the topology confirms the guess.
 
 use super::ComputeError;
-use super::cases::{profiles_of, run};
+use super::cases::{integration, profiles_of};
 use super::finite::check_extent;
 use super::plausible;
 use super::wet::Wet;
+use std::sync::OnceLock;
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+
 use crate::hydro::{
-    self, Extremes, Frame, PartAccum, PointMap, Profile, Topology, Tri, Tris, Vec3, WetSide,
+    self, Extremes, Frame, Integration, PartAccum, PointMap, Profile, Topology, Tri, Tris, Vec3,
+    WetSide,
 };
 use crate::mesh::{Coords, Format, Mesh, Part, STALE_NORMAL_DEG, widen};
 use crate::sidecar::{Sidecar, quoted_list};
@@ -189,10 +193,30 @@ pub(super) fn prepare(
         .map(|c| profiles_of(sidecar, &c.name, &c.liquids, centre.z))
         .collect();
     // The topology is mostly one thread's work. Meanwhile the other thread finds the
-    // planes of the parts, which need only the facets, and computes the cases on the guess
-    // that the mesh is clean; the guess is kept only if the topology confirms it exactly.
-    let (topology, (part_plane, mesh_plane, guess)) = rayon::join(
-        || Topology::build_in_box(&tris, local_box),
+    // planes of the parts, which need only the facets, then computes the cases on the guess
+    // that the mesh is clean, a chunk at a time, giving way to the topology's own parallel
+    // steps whenever they wait (see [`Filler`]); the guess is kept only if the topology
+    // confirms it exactly.
+    let guessed = Wet::clean_guess(&parts, sidecar, tris.count());
+    // Floating cases are integrated on their solved free surface later.
+    let work: Vec<Option<Integration<'_, Local>>> = match &guessed {
+        Some(wet) => profiles
+            .iter()
+            .zip(&sidecar.cases)
+            .map(|(p, c)| match (p, &c.floating) {
+                (Ok(p), None) => Some(integration(&tris, &parts, wet, p)),
+                _ => None,
+            })
+            .collect(),
+        None => Vec::new(),
+    };
+    let filler = Filler::new(&work);
+    let (topology, (part_plane, mesh_plane)) = rayon::join(
+        || {
+            let topology = Topology::build_in_box(&tris, local_box);
+            filler.stop();
+            topology
+        },
         || {
             let part_plane: Vec<Option<hydro::Plane>> = parts
                 .iter()
@@ -206,24 +230,13 @@ pub(super) fn prepare(
                 [one] if parts.len() == 1 => *one,
                 _ => hydro::plane_of_given((0..tris.count()).map(|f| tris.tri(f)), &whole),
             };
-            let guess = Wet::clean_guess(&parts, sidecar, tris.count()).map(|wet| {
-                // Floating cases are integrated on their solved free surface later.
-                let accs: Vec<Option<Vec<PartAccum>>> = profiles
-                    .iter()
-                    .zip(&sidecar.cases)
-                    .map(|(p, c)| match (p, &c.floating) {
-                        (Ok(p), None) => Some(run(&tris, &parts, &wet, p)),
-                        _ => None,
-                    })
-                    .collect();
-                (wet, accs)
-            });
-            (part_plane, mesh_plane, guess)
+            filler.fill();
+            (part_plane, mesh_plane)
         },
     );
     let wet = Wet::of(&parts, sidecar, &topology)?;
-    let accs = match guess {
-        Some((guessed, accs)) if guessed == wet => accs,
+    let accs = match &guessed {
+        Some(guessed) if *guessed == wet => filler.finish(),
         _ => vec![None; sidecar.cases.len()],
     };
     let closed = wet.closed;
@@ -271,6 +284,92 @@ pub(super) fn prepare(
         axes,
     };
     Ok((prepared, Early { profiles, accs }))
+}
+
+/// Chunks of several integrations ([`Integration`]) done as filler work: one thread takes
+/// them one at a time while another builds the topology, running first any of the
+/// topology's parallel work that waits for a thread (so the guess fills the stretches where
+/// the topology has one thread's work only, and never holds it up); [`Filler::finish`]
+/// shares what is left among all threads. Each chunk is kept in its own slot and the
+/// chunks are folded in order, so the results do not depend on who computed what.
+struct Filler<'w, 'a, T: ?Sized> {
+    work: &'w [Option<Integration<'a, T>>],
+    /// Every chunk to compute: (integration, chunk), integration by integration in order.
+    jobs: Vec<(usize, usize)>,
+    /// The next job to take.
+    next: AtomicUsize,
+    stop: AtomicBool,
+    done: Vec<OnceLock<PartAccum>>,
+}
+
+impl<'w, 'a, T: Tris + ?Sized> Filler<'w, 'a, T> {
+    fn new(work: &'w [Option<Integration<'a, T>>]) -> Self {
+        let jobs: Vec<(usize, usize)> = work
+            .iter()
+            .enumerate()
+            .flat_map(|(w, i)| (0..i.as_ref().map_or(0, Integration::chunks)).map(move |c| (w, c)))
+            .collect();
+        Filler {
+            work,
+            done: (0..jobs.len()).map(|_| OnceLock::new()).collect(),
+            jobs,
+            next: AtomicUsize::new(0),
+            stop: AtomicBool::new(false),
+        }
+    }
+
+    /// Ends [`Filler::fill`] after the chunk it is on.
+    fn stop(&self) {
+        self.stop.store(true, Ordering::Release);
+    }
+
+    /// Takes chunks until stopped or none is left, first running any work of the thread
+    /// pool that waits for a thread.
+    fn fill(&self) {
+        while !self.stop.load(Ordering::Acquire) {
+            if rayon::yield_now() == Some(rayon::Yield::Executed) {
+                continue;
+            }
+            let j = self.next.fetch_add(1, Ordering::Relaxed);
+            if j >= self.jobs.len() {
+                return;
+            }
+            self.compute(j);
+        }
+    }
+
+    fn compute(&self, j: usize) {
+        let (w, c) = self.jobs[j];
+        if let Some(work) = &self.work[w] {
+            // Each job is taken once, so its slot is empty.
+            let _ = self.done[j].set(work.chunk(c));
+        }
+    }
+
+    /// The chunks not taken yet, on all threads; then each integration's result (`None`
+    /// where there was none to do).
+    fn finish(&self) -> Vec<Option<Vec<PartAccum>>> {
+        use rayon::prelude::*;
+        let from = self.next.load(Ordering::Acquire).min(self.jobs.len());
+        (from..self.jobs.len())
+            .into_par_iter()
+            .for_each(|j| self.compute(j));
+        let mut at = 0;
+        self.work
+            .iter()
+            .map(|work| {
+                work.as_ref().map(|work| {
+                    let n = work.chunks();
+                    let partials: Vec<PartAccum> = self.done[at..at + n]
+                        .iter()
+                        .map(|d| *d.get().expect("every chunk is computed before the fold"))
+                        .collect();
+                    at += n;
+                    work.fold(&partials)
+                })
+            })
+            .collect()
+    }
 }
 
 fn describe_topology(
@@ -357,6 +456,50 @@ mod tests {
     use crate::mesh::Format;
     use crate::sidecar::parse_sidecar;
     use std::path::Path;
+
+    #[test]
+    fn the_guess_computed_as_filler_work_gives_the_bits_of_the_plain_integration() {
+        // Two closed parts of many chunks each and three cases (one floating, which the
+        // guess leaves alone): the loads the filler computed beside the topology, however
+        // the chunks were shared between 1, 2 or 3 threads, must be exactly those of
+        // integrating the cases afterwards.
+        let m = Mesh::from_parts(
+            vec![
+                ("a", shapes::box_solid([0.0; 3], [2.0, 3.0, 4.0], 30)),
+                ("b", shapes::torus([6.0, 0.0, 1.0], 2.0, 0.5, 90, 40)),
+            ],
+            Format::Obj,
+        );
+        let side = parse_sidecar(
+            Path::new("t.json"),
+            r#"{"units": "m", "liquid": {"level": 1.5, "density": 1000},
+                "cases": [{"name": "low"}, {"name": "high", "level": 3.25},
+                          {"name": "afloat",
+                           "floating": {"mass": 5000, "centre_of_gravity": [1, 1.5, 0.5]}}]}"#,
+        )
+        .expect("valid");
+        assert!(m.facets.len() > 4 * hydro::CHUNK);
+        for threads in [1, 2, 3] {
+            let pool = rayon::ThreadPoolBuilder::new()
+                .num_threads(threads)
+                .build()
+                .expect("a pool");
+            let (prep, early) = pool
+                .install(|| prepare(m.clone(), &side, &mut Vec::new()))
+                .expect("prepares");
+            assert!(early.accs[2].is_none(), "a floating case is not guessed");
+            for k in 0..2 {
+                let profiles = early.profiles[k].as_ref().expect("profiles");
+                let plain = super::super::cases::run(&prep.tris, &prep.parts, &prep.wet, profiles);
+                let guessed = early.accs[k].as_ref().expect("the clean guess holds");
+                assert_eq!(
+                    format!("{guessed:?}"),
+                    format!("{plain:?}"),
+                    "{threads} threads"
+                );
+            }
+        }
+    }
 
     #[test]
     fn the_local_box_derived_from_the_mesh_box_is_that_of_the_facets() {

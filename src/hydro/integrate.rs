@@ -307,36 +307,91 @@ pub fn integrate<T: Tris + ?Sized>(
     wetting: &[Wetting],
     vol_sign: &[i8],
 ) -> Vec<PartAccum> {
-    parts
-        .iter()
-        .map(|part| {
-            let planes = part_planes(part.profile, part.volume_level);
-            let range = part.facets.clone();
-            let (start, end) = (range.start, range.end);
-            let partials: Vec<PartAccum> = (0..range.len().div_ceil(CHUNK))
-                .into_par_iter()
-                .map(|c| {
-                    let mut acc = PartAccum::default();
-                    for i in start + c * CHUNK..(start + (c + 1) * CHUNK).min(end) {
-                        let t = tris.tri(i);
-                        let f = facet_loads(
-                            &t,
-                            &planes,
-                            part.profile,
-                            wetting[i],
-                            part.volume_level,
-                            vol_sign[i],
-                        );
-                        acc.add_facet(&f);
-                    }
-                    acc
-                })
-                .collect();
-            partials
+    Integration::new(tris, parts, wetting, vol_sign).run()
+}
+
+/// [`integrate`] as separate pieces of work: every part cut into chunks of [`CHUNK`]
+/// facets, each chunk integrated on its own (in any order, on any thread) and the chunks'
+/// sums folded per part in order, so the result is the same bits however the chunks were
+/// shared out.
+pub struct Integration<'a, T: ?Sized> {
+    tris: &'a T,
+    parts: Vec<(PartInput<'a>, Vec<f64>)>,
+    wetting: &'a [Wetting],
+    vol_sign: &'a [i8],
+    /// Every chunk: its part and its facets, part by part in order.
+    chunks: Vec<(usize, Range<usize>)>,
+}
+
+impl<'a, T: Tris + ?Sized> Integration<'a, T> {
+    /// The work of [`integrate`] with the same arguments.
+    pub fn new(
+        tris: &'a T,
+        parts: &[PartInput<'a>],
+        wetting: &'a [Wetting],
+        vol_sign: &'a [i8],
+    ) -> Self {
+        let mut chunks = Vec::new();
+        for (k, part) in parts.iter().enumerate() {
+            let Range { start, end } = part.facets;
+            for c in 0..(end - start).div_ceil(CHUNK) {
+                chunks.push((k, start + c * CHUNK..(start + (c + 1) * CHUNK).min(end)));
+            }
+        }
+        Integration {
+            tris,
+            parts: parts
                 .iter()
-                .fold(PartAccum::default(), |acc, p| acc.merge(p))
-        })
-        .collect()
+                .map(|p| (p.clone(), part_planes(p.profile, p.volume_level)))
+                .collect(),
+            wetting,
+            vol_sign,
+            chunks,
+        }
+    }
+
+    /// Every chunk on all threads, folded: [`integrate`]'s result.
+    pub fn run(&self) -> Vec<PartAccum> {
+        let partials: Vec<PartAccum> = (0..self.chunks())
+            .into_par_iter()
+            .map(|c| self.chunk(c))
+            .collect();
+        self.fold(&partials)
+    }
+
+    /// Number of chunks.
+    pub fn chunks(&self) -> usize {
+        self.chunks.len()
+    }
+
+    /// The sums over chunk `c`'s facets.
+    pub fn chunk(&self, c: usize) -> PartAccum {
+        let (k, range) = &self.chunks[c];
+        let (part, planes) = &self.parts[*k];
+        let mut acc = PartAccum::default();
+        for i in range.clone() {
+            let t = self.tris.tri(i);
+            let f = facet_loads(
+                &t,
+                planes,
+                part.profile,
+                self.wetting[i],
+                part.volume_level,
+                self.vol_sign[i],
+            );
+            acc.add_facet(&f);
+        }
+        acc
+    }
+
+    /// One accumulator per part: `partials[c]` is [`Self::chunk`]`(c)`.
+    pub fn fold(&self, partials: &[PartAccum]) -> Vec<PartAccum> {
+        let mut out = vec![PartAccum::default(); self.parts.len()];
+        for ((k, _), p) in self.chunks.iter().zip(partials) {
+            out[*k] = out[*k].merge(p);
+        }
+        out
+    }
 }
 
 #[cfg(test)]

@@ -30,7 +30,9 @@ mod sweep;
 mod topology;
 
 pub use clip::{Piece, clip_polygon, slab_pieces};
-pub use integrate::{CHUNK, FacetLoads, PartAccum, PartInput, facet_loads, integrate, part_planes};
+pub use integrate::{
+    CHUNK, FacetLoads, Integration, PartAccum, PartInput, facet_loads, integrate, part_planes,
+};
 pub use loads::{
     Extremes, LineOfAction, PLANAR_REL, Plane, ZERO_FORCE_REL, line_of_action, plane_of,
     plane_of_given,
