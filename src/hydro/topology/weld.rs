@@ -206,7 +206,7 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
             j += 1;
         }
     }
-    drop((blocks, cells));
+    drop(blocks);
     order.par_sort_unstable();
     // The position of the candidate at `a` in `order`.
     let at = |a: usize| corner(order[a].2 & !NEAR_CORNER);
@@ -311,6 +311,11 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
     // 4. Number the clusters in order of their first candidate (the union-find keeps the
     // lowest index as the root, and candidates are in order of first appearance).
     let (vertex, vertices) = uf.into_numbers();
+    // Freed last, though unused since step 2: glibc's allocator raises its threshold for
+    // mapping a block of its own to the size of the largest mapped block freed, so freeing
+    // this one early sent the union-find and the lists after it to the heap, where freed
+    // memory stays resident (the peak under the edges was 1.5 MB higher for a 1.3 M mesh).
+    drop(cells);
     ids.par_iter_mut()
         .for_each(|t| *t = t.map(|i| vertex[i as usize]));
     Welded {
