@@ -145,6 +145,21 @@ pub struct FacetLoads {
     pub loaded: bool,
 }
 
+impl FacetLoads {
+    /// No load: every sum zero, the maximum pressure −∞.
+    pub fn none() -> FacetLoads {
+        FacetLoads {
+            force: Vec3::zeros(),
+            moment: Vec3::zeros(),
+            wetted_area: 0.0,
+            max_pressure: f64::NEG_INFINITY,
+            volume: 0.0,
+            volume_moment: Vec3::zeros(),
+            loaded: false,
+        }
+    }
+}
+
 /// Integrates one facet.
 ///
 /// `planes` must be the cut elevations (descending) of `profile` merged with
@@ -159,15 +174,7 @@ pub fn facet_loads(
     volume_level: Option<f64>,
     vol_sign: i8,
 ) -> FacetLoads {
-    let mut out = FacetLoads {
-        force: Vec3::zeros(),
-        moment: Vec3::zeros(),
-        wetted_area: 0.0,
-        max_pressure: f64::NEG_INFINITY,
-        volume: 0.0,
-        volume_moment: Vec3::zeros(),
-        loaded: false,
-    };
+    let mut out = FacetLoads::none();
     let side = match wetting {
         Wetting::Front => 1.0,
         Wetting::Back => -1.0,
@@ -484,15 +491,7 @@ mod tests {
                     let profile = (side != 0.0).then_some(prof);
                     let level = profile.map_or(f64::NEG_INFINITY, Profile::level);
                     let volume_level = if vol_sign == 0 { None } else { volume_level };
-                    let mut cut = FacetLoads {
-                        force: Vec3::zeros(),
-                        moment: Vec3::zeros(),
-                        wetted_area: 0.0,
-                        max_pressure: f64::NEG_INFINITY,
-                        volume: 0.0,
-                        volume_moment: Vec3::zeros(),
-                        loaded: false,
-                    };
+                    let mut cut = FacetLoads::none();
                     if profile.is_some() || volume_level.is_some() {
                         slab_pieces(&t, &planes, |piece: &Piece, _| {
                             let v = piece.vertices();
