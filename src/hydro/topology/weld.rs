@@ -69,78 +69,7 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
 ) -> Welded {
     use rayon::prelude::*;
 
-    // 1. Exact repeats, block by block on both threads, each block with its own cache; the
-    // candidates of a block follow those of the blocks before it, so they stay in order
-    // of first appearance (a point repeated across blocks is one candidate per block, and
-    // step 3 joins them). `ids` holds candidate indices until step 4.
-    let block = block.max(1);
-    let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.count()];
-    // Each candidate's corner (3 × facet + corner), relative to `origin` its position.
-    let corner = |c: u32| tris.corner(c as usize / 3, c as usize % 3) - origin;
-    let centre = (origin + top) / 2.0;
-    // Per block: its candidates, and its sums of six volumes per volume block it meets.
-    type Found = (Vec<u32>, Vec<(usize, f64)>);
-    let found: Vec<Found> = ids
-        .par_chunks_mut(block)
-        .enumerate()
-        .map(|(b, ids)| {
-            let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
-            let mut candidates: Vec<u32> = Vec::with_capacity(ids.len() / 2 + 16);
-            let mut volumes: Vec<(usize, f64)> = Vec::new();
-            // In pieces that end where a volume block ends.
-            let mut f = 0;
-            while f < ids.len() {
-                let g = b * block + f;
-                let end = (f + VOLUME_BLOCK - g % VOLUME_BLOCK).min(ids.len());
-                let mut sum = 0.0;
-                for (f, c) in (f..end).zip(&mut ids[f..end]) {
-                    let t = tris.tri(b * block + f);
-                    sum += six_volume(&t, &centre);
-                    for k in 0..3 {
-                        let p = &t[k];
-                        let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
-                        let slot = exact_slot(&bits);
-                        c[k] = if exact[slot].0 == bits {
-                            exact[slot].1
-                        } else {
-                            let i = candidates.len() as u32;
-                            candidates.push((3 * (b * block + f) + k) as u32);
-                            exact[slot] = (bits, i);
-                            i
-                        };
-                    }
-                }
-                volumes.push((g / VOLUME_BLOCK, sum));
-                f = end;
-            }
-            (candidates, volumes)
-        })
-        .collect();
-    // A volume block met by two blocks of this step (only with blocks that are not a
-    // multiple of it, as in tests) is summed in order.
-    let mut volume_sums = vec![0.0; ids.len().div_ceil(VOLUME_BLOCK)];
-    let mut blocks = Vec::with_capacity(found.len());
-    for (candidates, volumes) in found {
-        for (v, sum) in volumes {
-            volume_sums[v] += sum;
-        }
-        blocks.push(candidates);
-    }
-    // Block-local candidate indices become global ones.
-    let mut offsets = Vec::with_capacity(blocks.len());
-    let mut total = 0u32;
-    for b in &blocks {
-        offsets.push(total);
-        total += b.len() as u32;
-    }
-    ids.par_chunks_mut(block)
-        .zip(&offsets)
-        .filter(|(_, o)| **o > 0)
-        .for_each(|(ids, &o)| ids.iter_mut().for_each(|t| *t = t.map(|i| i + o)));
-    let count = total as usize;
-    let table_bits = table_bits.unwrap_or_else(|| self::table_bits(count));
-
-    // 2. Every candidate's cell. With tol = 1e-7 × the diagonal every axis spans at most
+    // Every candidate's cell (found in step 1, used in step 2). With tol = 1e-7 × the diagonal every axis spans at most
     // 4e4 cells (< 2^20, so the packed keys of real cells never collide).
     let cell = if tol > 0.0 { 256.0 * tol } else { 1.0 };
     // Positions are relative to the box's lowest corner, so never negative, and the cast
@@ -161,44 +90,112 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
         }
     };
     let near_face = |s: &[f64; 3], k: &[i64; 3], ax: usize| near_face_within(s, k, ax, tol);
-    // Each candidate's packed cell, with [`NEAR_FACE`] and [`NEAR_TWICE`] set as the point
-    // lies that close to a face of its cell. Filled in place, block by block.
-    let mut cells: Vec<u64> = vec![0; count];
-    let mut rest = &mut cells[..];
-    let mut places = Vec::with_capacity(blocks.len());
-    for b in &blocks {
-        let (head, tail) = std::mem::take(&mut rest).split_at_mut(b.len());
-        places.push(head);
-        rest = tail;
-    }
-    places.into_par_iter().zip(&blocks).for_each(|(out, b)| {
-        for (slot, &c) in out.iter_mut().zip(b) {
-            let q = corner(c);
-            let s = in_cells(&q);
-            let k = key(&s);
-            let near = (0..3).any(|ax| near_face(&s, &k, ax) != 0);
-            let twice = near || (0..3).any(|ax| near_face_within(&s, &k, ax, 2.0 * tol) != 0);
-            *slot = pack(k) | if near { NEAR_FACE } else { 0 } | if twice { NEAR_TWICE } else { 0 };
+    // A point's packed cell, with [`NEAR_FACE`] and [`NEAR_TWICE`] set as it lies that
+    // close to a face of the cell.
+    let cell_of = |q: &Vec3| -> u64 {
+        let s = in_cells(q);
+        let k = key(&s);
+        let near = (0..3).any(|ax| near_face(&s, &k, ax) != 0);
+        let twice = near || (0..3).any(|ax| near_face_within(&s, &k, ax, 2.0 * tol) != 0);
+        pack(k) | if near { NEAR_FACE } else { 0 } | if twice { NEAR_TWICE } else { 0 }
+    };
+
+    // 1. Exact repeats, block by block on both threads, each block with its own cache; the
+    // candidates of a block follow those of the blocks before it, so they stay in order
+    // of first appearance (a point repeated across blocks is one candidate per block, and
+    // step 3 joins them). `ids` holds candidate indices until step 4.
+    let block = block.max(1);
+    let mut ids: Vec<[u32; 3]> = vec![[0; 3]; tris.count()];
+    // Each candidate's corner (3 × facet + corner), relative to `origin` its position.
+    let corner = |c: u32| tris.corner(c as usize / 3, c as usize % 3) - origin;
+    let centre = (origin + top) / 2.0;
+    // Per block: its candidates, their cells, and its sums of six volumes per volume
+    // block it meets.
+    type Found = (Vec<u32>, Vec<u64>, Vec<(usize, f64)>);
+    let found: Vec<Found> = ids
+        .par_chunks_mut(block)
+        .enumerate()
+        .map(|(b, ids)| {
+            let mut exact: Vec<([u64; 3], u32)> = vec![([u64::MAX; 3], u32::MAX); EXACT_SLOTS];
+            // One a facet, about twice what a mesh of shared vertices needs: untouched room
+            // costs no memory, and a list that grew would copy itself.
+            let mut candidates: Vec<u32> = Vec::with_capacity(ids.len());
+            let mut cells: Vec<u64> = Vec::with_capacity(ids.len());
+            let mut volumes: Vec<(usize, f64)> = Vec::new();
+            // In pieces that end where a volume block ends.
+            let mut f = 0;
+            while f < ids.len() {
+                let g = b * block + f;
+                let end = (f + VOLUME_BLOCK - g % VOLUME_BLOCK).min(ids.len());
+                let mut sum = 0.0;
+                for (f, c) in (f..end).zip(&mut ids[f..end]) {
+                    let t = tris.tri(b * block + f);
+                    sum += six_volume(&t, &centre);
+                    for k in 0..3 {
+                        let p = &t[k];
+                        let bits = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+                        let slot = exact_slot(&bits);
+                        c[k] = if exact[slot].0 == bits {
+                            exact[slot].1
+                        } else {
+                            let i = candidates.len() as u32;
+                            candidates.push((3 * (b * block + f) + k) as u32);
+                            cells.push(cell_of(&(p - origin)));
+                            exact[slot] = (bits, i);
+                            i
+                        };
+                    }
+                }
+                volumes.push((g / VOLUME_BLOCK, sum));
+                f = end;
+            }
+            (candidates, cells, volumes)
+        })
+        .collect();
+    // A volume block met by two blocks of this step (only with blocks that are not a
+    // multiple of it, as in tests) is summed in order.
+    let mut volume_sums = vec![0.0; ids.len().div_ceil(VOLUME_BLOCK)];
+    let mut blocks = Vec::with_capacity(found.len());
+    let mut cells = Vec::with_capacity(found.len());
+    for (candidates, found_cells, volumes) in found {
+        for (v, sum) in volumes {
+            volume_sums[v] += sum;
         }
-    });
+        blocks.push(candidates);
+        cells.push(found_cells);
+    }
+    // Block-local candidate indices become global ones.
+    let mut offsets = Vec::with_capacity(blocks.len());
+    let mut total = 0u32;
+    for b in &blocks {
+        offsets.push(total);
+        total += b.len() as u32;
+    }
+    ids.par_chunks_mut(block)
+        .zip(&offsets)
+        .filter(|(_, o)| **o > 0)
+        .for_each(|(ids, &o)| ids.iter_mut().for_each(|t| *t = t.map(|i| i + o)));
+    let count = total as usize;
+    let table_bits = table_bits.unwrap_or_else(|| self::table_bits(count));
+
+    // 2. The candidates that need the sort.
     // A table of cells, each marked once it holds a candidate and again once it holds
     // two (by a hash of the cell, so two cells may share a mark: that only sends more
     // candidates to the sort). A candidate alone in its cell and farther than 2 × `tol`
     // from every face of it is a cluster by itself: no point of another cell is within
     // `tol` of it, and no later step needs it. Most candidates are such.
     let mut table = CellTable::new(table_bits);
-    for &c in &cells {
+    for &c in cells.iter().flatten() {
         table.mark(c & CELL_MASK);
     }
     // The others, (cell, candidate, corner with [`NEAR_FACE`] set as above), sorted by
     // cell; the candidate breaks ties, so the order is unique.
     let sorted = |k: u64| k & NEAR_TWICE != 0 || table.shared(k & CELL_MASK);
     let mut order: Vec<(u64, u32, u32)> =
-        Vec::with_capacity(cells.iter().filter(|&&k| sorted(k)).count());
+        Vec::with_capacity(cells.iter().flatten().filter(|&&k| sorted(k)).count());
     let mut j = 0usize;
-    for b in &blocks {
-        for &c in b {
-            let k = cells[j];
+    for (b, cells) in blocks.iter().zip(&cells) {
+        for (&c, &k) in b.iter().zip(cells) {
             if sorted(k) {
                 let near = if k & NEAR_FACE != 0 { NEAR_CORNER } else { 0 };
                 order.push((k & CELL_MASK, j as u32, c | near));
@@ -384,10 +381,11 @@ impl CellTable {
     }
 }
 
-/// Marks of the weld's cell table for `count` candidates: about eight a candidate, so
-/// that few lone candidates share a mark.
+/// Marks of the weld's cell table for `count` candidates: four to eight a candidate, so
+/// that few lone candidates share a mark (one in five to one in eight), in two bit sets
+/// of at most a bit a facet each.
 fn table_bits(count: usize) -> u32 {
-    (usize::BITS - (8 * count.max(1)).leading_zeros()).clamp(10, 28)
+    (usize::BITS - (4 * count.max(1)).leading_zeros()).clamp(10, 28)
 }
 
 /// A cell's three indices packed into one key, [`CELL_BITS`] bits each.
