@@ -15,7 +15,8 @@ const EXACT_SLOTS: usize = 1 << 14;
 /// Gives every corner a vertex id: a corner within `tol` of a cluster's first corner
 /// joins that cluster (the same clusters as joining every pair within `tol` whenever
 /// clusters are far apart compared with `tol`, as in any mesh not degenerate at that
-/// scale); ids are numbered in order of each cluster's first corner. Returns the ids per facet and the number of vertices.
+/// scale); ids are numbered in order of each cluster's first corner. Returns the ids per
+/// facet, the number of vertices and the facets' volume sums ([`Welded`]).
 ///
 /// In a triangle soup every vertex is stored once per facet that uses it, bit for bit the
 /// same, usually a few facets apart. So, first, a small direct-mapped cache of exact
@@ -199,7 +200,7 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
     for &c in cells.iter().copied().flatten() {
         table.mark(c & CELL_MASK);
     }
-    // The others, (cell, candidate, corner with [`NEAR_FACE`] set as above), sorted by
+    // The others, (cell, candidate, corner with [`NEAR_CORNER`] set as above), sorted by
     // cell; the candidate breaks ties, so the order is unique.
     let sorted = |k: u64| k & NEAR_TWICE != 0 || table.shared(k & CELL_MASK);
     let mut order: Vec<(u64, u32, u32)> = Vec::with_capacity(
