@@ -175,118 +175,120 @@ pub fn facet_loads(
     vol_sign: i8,
 ) -> FacetLoads {
     let mut out = FacetLoads::none();
-    let side = match wetting {
-        Wetting::Front => 1.0,
-        Wetting::Back => -1.0,
-        Wetting::Dry => 0.0,
+    let Some(on) = Acting::new(profile, wetting, volume_level, vol_sign) else {
+        return out;
     };
-    let profile = if side == 0.0 { None } else { profile };
-    let volume_level = if vol_sign == 0 { None } else { volume_level };
-    if profile.is_none() && volume_level.is_none() {
-        return out;
-    }
-    let level = profile.map_or(f64::NEG_INFINITY, Profile::level);
-    // Wholly above the free surface and the volume level, under no surface pressure: every
-    // piece would add only zeros (which leave every sum's bits as they are) and its
-    // pressure, 0, to the maximum.
-    let lowest = t[0].z.min(t[1].z).min(t[2].z);
-    if lowest > level
-        && volume_level.is_none_or(|l| lowest > l)
-        && profile.is_none_or(|p| p.surface_pressure() == 0.0)
-    {
-        if let Some(p) = profile {
-            out.max_pressure = p.surface_pressure();
-        }
-        return out;
-    }
-    cut_loads(t, planes, profile, side, level, volume_level, vol_sign, out)
-}
-
-/// [`facet_loads`] piece by piece, for a facet not wholly dry: `side` is the wet side
-/// (±1), `level` the profile's level (−∞ without one), `out` the loads so far.
-#[allow(clippy::too_many_arguments)]
-#[inline]
-fn cut_loads(
-    t: &Tri,
-    planes: &[f64],
-    profile: Option<&Profile>,
-    side: f64,
-    level: f64,
-    volume_level: Option<f64>,
-    vol_sign: i8,
-    mut out: FacetLoads,
-) -> FacetLoads {
-    // A facet that no plane cuts is its own only piece.
     let (lo, hi) = (
         t[0].z.min(t[1].z).min(t[2].z),
         t[0].z.max(t[1].z).max(t[2].z),
     );
-    if planes.iter().all(|&h| h >= hi || h <= lo) {
-        add_polygon(&mut out, t, profile, side, level, volume_level, vol_sign);
+    // Wholly above the free surface and the volume level, under no surface pressure: every
+    // piece would add only zeros (which leave every sum's bits as they are) and its
+    // pressure, 0, to the maximum.
+    if lo > on.level
+        && on.volume_level.is_none_or(|l| lo > l)
+        && on.profile.is_none_or(|p| p.surface_pressure() == 0.0)
+    {
+        if let Some(p) = on.profile {
+            out.max_pressure = p.surface_pressure();
+        }
         return out;
     }
-    slab_pieces(t, planes, |piece: &Piece, _slab| {
-        add_polygon(
-            &mut out,
-            piece.vertices(),
+    // A facet that no plane cuts is its own only piece.
+    if planes.iter().all(|&h| h >= hi || h <= lo) {
+        on.add(&mut out, t);
+    } else {
+        slab_pieces(t, planes, |piece: &Piece, _slab| {
+            on.add(&mut out, piece.vertices())
+        });
+    }
+    out
+}
+
+/// What acts on one facet, as [`facet_loads`] resolves it: the liquid (on the wet side
+/// only), `side` ±1 the wet side, `level` the liquid's level (−∞ without one), and the
+/// volume level with the facet's sign (`None` when the facet bounds no measured volume).
+#[derive(Clone, Copy)]
+struct Acting<'a> {
+    profile: Option<&'a Profile>,
+    side: f64,
+    level: f64,
+    volume_level: Option<f64>,
+    vol_sign: i8,
+}
+
+impl<'a> Acting<'a> {
+    /// `None` when nothing acts: no liquid on a wet side and no volume to measure.
+    fn new(
+        profile: Option<&'a Profile>,
+        wetting: Wetting,
+        volume_level: Option<f64>,
+        vol_sign: i8,
+    ) -> Option<Acting<'a>> {
+        let side = match wetting {
+            Wetting::Front => 1.0,
+            Wetting::Back => -1.0,
+            Wetting::Dry => 0.0,
+        };
+        let profile = if side == 0.0 { None } else { profile };
+        let volume_level = if vol_sign == 0 { None } else { volume_level };
+        (profile.is_some() || volume_level.is_some()).then(|| Acting {
+            profile,
+            side,
+            level: profile.map_or(f64::NEG_INFINITY, Profile::level),
+            volume_level,
+            vol_sign,
+        })
+    }
+
+    /// Adds the loads of one piece `v` (a convex polygon lying in one slab) to `out`.
+    #[inline]
+    fn add(&self, out: &mut FacetLoads, v: &[Vec3]) {
+        let Acting {
             profile,
             side,
             level,
             volume_level,
             vol_sign,
-        );
-    });
-    out
-}
-
-/// Adds the loads of one piece `v` (a convex polygon lying in one slab) to `out`.
-#[allow(clippy::too_many_arguments)]
-#[inline]
-fn add_polygon(
-    out: &mut FacetLoads,
-    v: &[Vec3],
-    profile: Option<&Profile>,
-    side: f64,
-    level: f64,
-    volume_level: Option<f64>,
-    vol_sign: i8,
-) {
-    // Every piece lies on one side of each plane, so its centroid classifies it.
-    let zc = v.iter().map(|p| p.z).sum::<f64>() / v.len() as f64;
-    for i in 1..v.len() - 1 {
-        let (r0, r1, r2) = (v[0], v[i], v[i + 1]);
-        let a = 0.5 * (r1 - r0).cross(&(r2 - r0));
-        if let Some(prof) = profile {
-            let (p0, p1, p2) = (
-                prof.pressure(r0.z),
-                prof.pressure(r1.z),
-                prof.pressure(r2.z),
-            );
-            let sum_p = p0 + p1 + p2;
-            out.force -= side * (sum_p / 3.0) * a;
-            let first = p0 * r0 + p1 * r1 + p2 * r2 + sum_p * (r0 + r1 + r2);
-            out.moment -= side / 12.0 * first.cross(&a);
-            if zc <= level {
-                out.wetted_area += a.norm();
+        } = *self;
+        // Every piece lies on one side of each plane, so its centroid classifies it.
+        let zc = v.iter().map(|p| p.z).sum::<f64>() / v.len() as f64;
+        for i in 1..v.len() - 1 {
+            let (r0, r1, r2) = (v[0], v[i], v[i + 1]);
+            let a = 0.5 * (r1 - r0).cross(&(r2 - r0));
+            if let Some(prof) = profile {
+                let (p0, p1, p2) = (
+                    prof.pressure(r0.z),
+                    prof.pressure(r1.z),
+                    prof.pressure(r2.z),
+                );
+                let sum_p = p0 + p1 + p2;
+                out.force -= side * (sum_p / 3.0) * a;
+                let first = p0 * r0 + p1 * r1 + p2 * r2 + sum_p * (r0 + r1 + r2);
+                out.moment -= side / 12.0 * first.cross(&a);
+                if zc <= level {
+                    out.wetted_area += a.norm();
+                }
+                out.max_pressure = out.max_pressure.max(p0.max(p1).max(p2));
+                if sum_p != 0.0 || zc <= level {
+                    out.loaded = true;
+                }
             }
-            out.max_pressure = out.max_pressure.max(p0.max(p1).max(p2));
-            if sum_p != 0.0 || zc <= level {
-                out.loaded = true;
+            if let Some(l) = volume_level
+                && zc <= l
+            {
+                let s = f64::from(vol_sign) * a.z;
+                let (d0, d1, d2) = (r0.z - l, r1.z - l, r2.z - l);
+                let sd = d0 + d1 + d2;
+                out.volume += s * sd / 3.0;
+                let mx = r0.x * d0 + r1.x * d1 + r2.x * d2 + (r0.x + r1.x + r2.x) * sd;
+                let my = r0.y * d0 + r1.y * d1 + r2.y * d2 + (r0.y + r1.y + r2.y) * sd;
+                let mz = d0 * d0 + d1 * d1 + d2 * d2 + sd * sd;
+                // ∫z dV = ∫(z − L) dV + L·V, so sums over different levels still add up.
+                let vol = s * sd / 3.0;
+                out.volume_moment +=
+                    Vec3::new(s * mx / 12.0, s * my / 12.0, s * mz / 24.0 + l * vol);
             }
-        }
-        if let Some(l) = volume_level
-            && zc <= l
-        {
-            let s = f64::from(vol_sign) * a.z;
-            let (d0, d1, d2) = (r0.z - l, r1.z - l, r2.z - l);
-            let sd = d0 + d1 + d2;
-            out.volume += s * sd / 3.0;
-            let mx = r0.x * d0 + r1.x * d1 + r2.x * d2 + (r0.x + r1.x + r2.x) * sd;
-            let my = r0.y * d0 + r1.y * d1 + r2.y * d2 + (r0.y + r1.y + r2.y) * sd;
-            let mz = d0 * d0 + d1 * d1 + d2 * d2 + sd * sd;
-            // ∫z dV = ∫(z − L) dV + L·V, so sums over different levels still add up.
-            let vol = s * sd / 3.0;
-            out.volume_moment += Vec3::new(s * mx / 12.0, s * my / 12.0, s * mz / 24.0 + l * vol);
         }
     }
 }
@@ -493,9 +495,15 @@ mod tests {
                     let volume_level = if vol_sign == 0 { None } else { volume_level };
                     let mut cut = FacetLoads::none();
                     if profile.is_some() || volume_level.is_some() {
+                        let on = Acting {
+                            profile,
+                            side,
+                            level,
+                            volume_level,
+                            vol_sign,
+                        };
                         slab_pieces(&t, &planes, |piece: &Piece, _| {
-                            let v = piece.vertices();
-                            add_polygon(&mut cut, v, profile, side, level, volume_level, vol_sign);
+                            on.add(&mut cut, piece.vertices());
                         });
                     }
                     assert_eq!(format!("{quick:?}"), format!("{cut:?}"), "{t:?}");
