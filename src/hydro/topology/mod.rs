@@ -264,7 +264,12 @@ impl Topology {
                 .filter(|(_, s)| **s != NO_SHELL && turn[**s as usize])
                 .for_each(|(f, _)| *f = !*f);
         }
-        let flipped = shell_sums(&facet_shell, shells.len(), |f| usize::from(flip[f]));
+        let flipped = shell_sums(
+            &facet_shell,
+            shells.len(),
+            |_| None,
+            |f| usize::from(flip[f]),
+        );
         for (sh, flipped) in shells.iter_mut().zip(flipped) {
             sh.flipped_facets = flipped;
         }

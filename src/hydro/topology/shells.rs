@@ -83,26 +83,30 @@ pub(super) fn flood(
     (facet_shell, flip, shells)
 }
 
-/// Sums of `value(f)` over the facets `f` of each shell: within fixed blocks of facets on
-/// all threads, runs of one shell summed in order, then the blocks' sums added in order,
-/// so the result does not depend on the number of threads.
+/// Sums of `value(f)` over the facets `f` of each shell: within fixed blocks of
+/// [`VOLUME_BLOCK`] facets on all threads, runs of one shell summed in order, then the
+/// blocks' sums added in order, so the result does not depend on the number of threads.
+/// `whole(b)` may give block `b`'s sum at once, as (shell, sum), when it knows it.
 pub(super) fn shell_sums<T>(
     facet_shell: &[u32],
     shells: usize,
+    whole: impl Fn(usize) -> Option<(u32, T)> + Sync,
     value: impl Fn(usize) -> T + Sync,
 ) -> Vec<T>
 where
     T: Copy + Default + Send + std::ops::AddAssign,
 {
     use rayon::prelude::*;
-    const BLOCK: usize = 1 << 16;
     let runs: Vec<Vec<(u32, T)>> = facet_shell
-        .par_chunks(BLOCK)
+        .par_chunks(VOLUME_BLOCK)
         .enumerate()
         .map(|(b, block)| {
+            if let Some(sum) = whole(b) {
+                return vec![sum];
+            }
             let mut runs: Vec<(u32, T)> = Vec::new();
             for (i, &s) in block.iter().enumerate().filter(|(_, s)| **s != NO_SHELL) {
-                let v = value(b * BLOCK + i);
+                let v = value(b * VOLUME_BLOCK + i);
                 match runs.last_mut() {
                     Some((last, sum)) if *last == s => *sum += v,
                     _ => runs.push((s, v)),
@@ -121,9 +125,7 @@ where
 /// Six times the signed volume of each shell, reading each facet reversed where `flip`
 /// says: Σ ±`six(f)`, from `block_sums`, the sums of `six(f)` over every
 /// [`VOLUME_BLOCK`] facets. A block wholly in one shell and read one way is taken whole;
-/// any other block is summed facet by facet in runs of one shell and one way. The
-/// blocks' sums are added in order, so the result does not depend on the number of
-/// threads.
+/// any other block is summed facet by facet ([`shell_sums`]).
 pub(super) fn shell_volumes(
     facet_shell: &[u32],
     flip: &[bool],
@@ -131,35 +133,16 @@ pub(super) fn shell_volumes(
     block_sums: &[f64],
     six: impl Fn(usize) -> f64 + Sync,
 ) -> Vec<f64> {
-    use rayon::prelude::*;
-    let signed = |f: usize, v: f64| if flip[f] { -v } else { v };
-    let runs: Vec<Vec<(u32, f64)>> = facet_shell
-        .par_chunks(VOLUME_BLOCK)
-        .zip(flip.par_chunks(VOLUME_BLOCK))
-        .zip(block_sums)
-        .enumerate()
-        .map(|(b, ((shell, flip), &sum))| {
-            let (s, f) = (shell[0], flip[0]);
-            if s != NO_SHELL && shell.iter().all(|&t| t == s) && flip.iter().all(|&g| g == f) {
-                return vec![(s, if f { -sum } else { sum })];
-            }
-            let mut runs: Vec<(u32, f64)> = Vec::new();
-            for (i, &s) in shell.iter().enumerate().filter(|(_, s)| **s != NO_SHELL) {
-                let f = b * VOLUME_BLOCK + i;
-                let v = signed(f, six(f));
-                match runs.last_mut() {
-                    Some((last, sum)) if *last == s => *sum += v,
-                    _ => runs.push((s, v)),
-                }
-            }
-            runs
-        })
-        .collect();
-    let mut sums = vec![0.0; shells];
-    for (s, v) in runs.into_iter().flatten() {
-        sums[s as usize] += v;
-    }
-    sums
+    let whole = |b: usize| {
+        let range = b * VOLUME_BLOCK..((b + 1) * VOLUME_BLOCK).min(facet_shell.len());
+        let (shell, flip) = (&facet_shell[range.clone()], &flip[range]);
+        let (s, f) = (shell[0], flip[0]);
+        let one = s != NO_SHELL && shell.iter().all(|&t| t == s) && flip.iter().all(|&g| g == f);
+        one.then(|| (s, if f { -block_sums[b] } else { block_sums[b] }))
+    };
+    shell_sums(facet_shell, shells, whole, |f| {
+        if flip[f] { -six(f) } else { six(f) }
+    })
 }
 
 /// Pieces (numbered in order of first facet) joined at non-manifold edges become one
