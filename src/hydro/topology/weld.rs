@@ -221,7 +221,6 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
             j += 1;
         }
     }
-    drop(blocks);
     order.par_sort_unstable();
     // The position of the candidate at `a` in `order`.
     let at = |a: usize| corner(order[a].2 & !NEAR_CORNER);
@@ -330,7 +329,6 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
     // mapping a block of its own to the size of the largest mapped block freed, so freeing
     // these early sent the union-find and the lists after it to the heap, where freed
     // memory stays resident (the peak under the edges was 1.5 MB higher for a 1.3 M mesh).
-    drop(cells);
     drop((corner_list, cell_list));
     ids.par_iter_mut()
         .for_each(|t| *t = t.map(|i| vertex[i as usize]));
