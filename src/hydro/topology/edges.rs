@@ -1,4 +1,4 @@
-//! Edges, found from the welded vertex ids: the facets around every vertex, every edge
+//! Edges, found from the welded vertex ids: the facets under every vertex, every edge
 //! with its uses in facet order and what it says (open, non-manifold, or traversed the
 //! same way by its two facets), each facet's neighbour across each edge, and the facets
 //! that repeat another's vertices.
@@ -6,6 +6,7 @@
 //! It groups no facets into shells and turns none; the flood fill in `shells.rs` reads
 //! the neighbours found here.
 
+use std::ops::Range;
 use std::sync::atomic::{AtomicU32, Ordering};
 
 use super::Defect;
@@ -13,24 +14,29 @@ use super::Defect;
 /// No neighbour across a facet's edge (an open or non-manifold edge).
 pub(super) const NO_NEIGHBOUR: u32 = u32::MAX;
 
-/// Vertex ranges, one per thread, covering `window`, for the steps whose every range
-/// reads all the facets and writes only its own vertices' part. The results do not
-/// depend on the split.
-fn vertex_ranges(window: std::ops::Range<u32>) -> Vec<std::ops::Range<u32>> {
-    let vertices = window.len();
-    let parts = if vertices < 1 << 14 {
+/// Parts to split `items` into for the threads: one a thread, or one for a few.
+fn parts_for(items: usize) -> usize {
+    if items < 1 << 14 {
         1
     } else {
         rayon::current_num_threads().max(1)
-    };
+    }
+}
+
+/// Vertex ranges, one per thread, covering `window`, for finding the edges of each
+/// range's vertices. The results do not depend on the split.
+fn vertex_ranges(window: Range<u32>) -> Vec<Range<u32>> {
+    let vertices = window.len();
+    let parts = parts_for(vertices);
     let step = vertices.div_ceil(parts).max(1);
     let at = |i: usize| window.start + (i * step).min(vertices) as u32;
     (0..parts).map(|i| at(i)..at(i + 1)).collect()
 }
 
 /// Meshes of more vertices than this find their edges in [`WINDOWS`] windows of vertices
-/// one after the other, so the facets around the vertices (4 bytes a corner) are held for
-/// one window at a time: a quarter of the memory, for a second read of part of the ids.
+/// one after the other, so the facets under the vertices (4 bytes for each of a facet's
+/// two lower corners) are held for one window at a time, for a second read of part of
+/// the ids.
 const WINDOWED_FROM: usize = 1 << 17;
 
 /// Windows of vertices for a mesh of more than [`WINDOWED_FROM`] vertices (a constant,
@@ -38,7 +44,8 @@ const WINDOWED_FROM: usize = 1 << 17;
 const WINDOWS: usize = 4;
 
 /// Every edge of the welded facets `ids` (`degenerate` ones left out) and each facet's
-/// neighbours, found from the facets around each vertex a window of vertices at a time.
+/// neighbours, found from the facets under each vertex (those that hold an edge from it
+/// to a higher vertex) a window of vertices at a time.
 /// The result does not depend on the windows or the thread count: findings come in order
 /// of (lower, higher) vertex, and every neighbour is written once.
 pub(super) fn find_edges(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize) -> Edges {
@@ -65,8 +72,9 @@ fn find_edges_in(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize, windows
         while from < ids.len() && ids[from].iter().all(|&v| v < window.start) {
             from += 1;
         }
-        let around = Incidence::in_ranges(ids, degenerate, from, vertex_ranges(window));
-        parts.extend(around.edges(ids, &neighbours));
+        let runs = parts_for(window.len());
+        let under = Incidence::of_window(ids, degenerate, from, window, runs);
+        parts.extend(under.edges(ids, &neighbours));
     }
     Edges {
         findings: EdgeFindings::concat(parts),
@@ -74,109 +82,123 @@ fn find_edges_in(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize, windows
     }
 }
 
-/// `s` cut into consecutive pieces of the given lengths (which sum to its length).
-fn split_lengths<T>(mut s: &mut [T], lengths: impl Iterator<Item = usize>) -> Vec<&mut [T]> {
-    let mut out = Vec::new();
-    for len in lengths {
-        let (head, tail) = std::mem::take(&mut s).split_at_mut(len);
-        out.push(head);
-        s = tail;
-    }
-    out
+/// The corners of the non-degenerate facets whose vertex lies in a window of vertices
+/// and is not the facet's highest.
+#[derive(Clone, Copy)]
+struct WindowCorners<'a> {
+    ids: &'a [[u32; 3]],
+    degenerate: &'a [bool],
+    window: (u32, u32),
 }
 
-/// The non-degenerate facets around every vertex of a window of vertices, each vertex's
-/// in facet order.
+impl WindowCorners<'_> {
+    /// Calls `take(facet, vertex - window start)` for each such corner of facets `run`.
+    fn each(&self, run: Range<usize>, mut take: impl FnMut(u32, usize)) {
+        let (lo, hi) = self.window;
+        let facets = self.ids[run.clone()]
+            .iter()
+            .zip(&self.degenerate[run.clone()]);
+        for (f, (t, d)) in run.zip(facets) {
+            if *d {
+                continue;
+            }
+            let top = t[0].max(t[1]).max(t[2]);
+            for &v in t {
+                if v != top && (lo..hi).contains(&v) {
+                    take(f as u32, (v - lo) as usize);
+                }
+            }
+        }
+    }
+}
+
+/// For every vertex of a window of vertices, in facet order, the non-degenerate facets in
+/// which it is not the highest of the three vertices: the facets that hold an edge from
+/// it to a higher vertex (a facet is listed under its two lower vertices only).
 struct Incidence {
     /// The window's first vertex.
     base: u32,
     /// Where each vertex's facets end in `facets` (and the next vertex's begin), from the
     /// window's first vertex.
     end: Vec<u32>,
-    facets: Vec<u32>,
-    ranges: Vec<std::ops::Range<u32>>,
+    /// The lists one after the other. The runs of facets fill their own places of it side
+    /// by side; atomics (relaxed: plain loads and stores) let them share it.
+    facets: Vec<AtomicU32>,
+    /// Ranges of the window's vertices, one a thread, for finding their edges.
+    ranges: Vec<Range<u32>>,
 }
 
 impl Incidence {
-    /// A counting sort by vertex of the corners of facets `from..` that fall in the
-    /// window `ranges` (consecutive), each range on a thread of its own. No facet before
-    /// `from` may use a vertex of the window.
-    fn in_ranges(
+    /// A counting sort by vertex of the corners of facets `from..` that fall in `window`,
+    /// the facets split into `parts` consecutive runs, each counted and placed on a thread
+    /// of its own: a run's facets of a vertex follow those of the runs before it, so every
+    /// split gives the same lists. No facet before `from` may use a vertex of the window.
+    fn of_window(
         ids: &[[u32; 3]],
         degenerate: &[bool],
         from: usize,
-        ranges: Vec<std::ops::Range<u32>>,
+        window: Range<u32>,
+        parts: usize,
     ) -> Incidence {
         use rayon::prelude::*;
-        let base = ranges.first().map_or(0, |r| r.start);
-        let lengths = || ranges.iter().map(|r| r.len());
-        let corners = || {
-            ids[from..]
-                .iter()
-                .zip(&degenerate[from..])
-                .enumerate()
-                .filter(|(_, (_, d))| !**d)
-                .map(move |(f, (t, _))| ((from + f) as u32, t))
+        let base = window.start;
+        let size = window.len();
+        let step = (ids.len() - from).div_ceil(parts.max(1)).max(1);
+        let runs: Vec<Range<usize>> = (from..ids.len())
+            .step_by(step)
+            .map(|a| a..(a + step).min(ids.len()))
+            .collect();
+        let corners = WindowCorners {
+            ids,
+            degenerate,
+            window: (window.start, window.end),
         };
-        // Facets per vertex.
-        let mut end = vec![0u32; lengths().sum()];
-        split_lengths(&mut end, lengths())
-            .into_par_iter()
-            .zip(&ranges)
-            .for_each(|(count, r)| {
-                for (_, t) in corners() {
-                    for &v in t {
-                        if r.contains(&v) {
-                            count[(v - r.start) as usize] += 1;
-                        }
-                    }
-                }
-            });
-        // Where each vertex's facets start.
+        // Facets per vertex, per run.
+        let mut counts: Vec<Vec<u32>> = runs
+            .par_iter()
+            .map(|run| {
+                let mut count = vec![0u32; size];
+                corners.each(run.clone(), |_, v| count[v] += 1);
+                count
+            })
+            .collect();
+        // Where each run's facets of each vertex start (the counts become cursors), and
+        // where each vertex's end.
+        let mut end = vec![0u32; size];
         let mut total = 0u32;
-        for e in end.iter_mut() {
-            let count = *e;
+        for (v, e) in end.iter_mut().enumerate() {
+            for count in counts.iter_mut() {
+                let c = count[v];
+                count[v] = total;
+                total += c;
+            }
             *e = total;
-            total += count;
         }
-        let first =
-            |r: &std::ops::Range<u32>| end.get((r.start - base) as usize).map_or(total, |&s| s);
-        let bounds: Vec<u32> = ranges.iter().map(first).chain([total]).collect();
-        // Each range fills its own part of `facets`, moving its vertices' starts to ends.
-        let mut facets = vec![0u32; total as usize];
-        let parts = split_lengths(
-            &mut facets,
-            bounds.windows(2).map(|w| (w[1] - w[0]) as usize),
-        );
-        split_lengths(&mut end, lengths())
+        let facets: Vec<AtomicU32> = (0..total)
             .into_par_iter()
-            .zip(parts)
-            .zip(&ranges)
-            .zip(&bounds)
-            .for_each(|(((cursor, out), r), &base)| {
-                for (f, t) in corners() {
-                    for &v in t {
-                        if r.contains(&v) {
-                            let c = &mut cursor[(v - r.start) as usize];
-                            out[(*c - base) as usize] = f;
-                            *c += 1;
-                        }
-                    }
-                }
+            .map(|_| AtomicU32::new(0))
+            .collect();
+        runs.par_iter().zip(&mut counts).for_each(|(run, cursor)| {
+            corners.each(run.clone(), |f, v| {
+                facets[cursor[v] as usize].store(f, Ordering::Relaxed);
+                cursor[v] += 1;
             });
+        });
         Incidence {
             base,
             end,
             facets,
-            ranges,
+            ranges: vertex_ranges(window),
         }
     }
 
     /// Vertex `v`'s facets (`v` in the window).
-    fn around(&self, v: u32) -> &[u32] {
+    fn under(&self, v: u32) -> impl Iterator<Item = u32> + '_ {
         let i = (v - self.base) as usize;
         let from = if i == 0 { 0 } else { self.end[i - 1] };
-        &self.facets[from as usize..self.end[i] as usize]
+        self.facets[from as usize..self.end[i] as usize]
+            .iter()
+            .map(|f| f.load(Ordering::Relaxed))
     }
 
     /// Every edge whose lower vertex is in the window, found with the uses in facet
@@ -191,7 +213,7 @@ impl Incidence {
                 let mut uses: Vec<EdgeUse> = Vec::new();
                 for u in r.clone() {
                     uses.clear();
-                    for &f in self.around(u) {
+                    for f in self.under(u) {
                         let t = ids[f as usize];
                         let c = t.iter().position(|&v| v == u).unwrap_or(0);
                         let (next, prev) = (t[(c + 1) % 3], t[(c + 2) % 3]);
@@ -429,8 +451,11 @@ mod tests {
         let (ids, vertices) = (w.ids, w.vertices);
         let mut degenerate = vec![false; ids.len()];
         degenerate[5] = true; // left out of every edge
-        let whole = std::iter::once(0..vertices as u32).collect();
-        let one = Incidence::in_ranges(&ids, &degenerate, 0, whole);
+        let one = Incidence::of_window(&ids, &degenerate, 0, 0..vertices as u32, 1);
+        let lists = |i: &Incidence| -> (Vec<u32>, Vec<u32>) {
+            let facets = i.facets.iter().map(|f| f.load(Ordering::Relaxed)).collect();
+            (i.end.clone(), facets)
+        };
         let (ref_edges, ref_neighbours) = {
             let e = find_edges_in(&ids, &degenerate, vertices, 1);
             let n: Vec<[u32; 3]> = (0..ids.len()).map(|f| e.neighbours.of(f)).collect();
@@ -438,14 +463,22 @@ mod tests {
         };
         assert!(ref_edges.open_edges > 0 && ref_edges.non_manifold_edges > 0);
         assert!(ref_edges.inconsistent_edges > 0);
-        for parts in [2u32, 3, 7] {
-            // One window in ranges: the same facets around each vertex.
-            let v = vertices as u32;
-            let ranges = (0..parts)
-                .map(|i| i * v / parts..(i + 1) * v / parts)
+        // Every vertex's list: the non-degenerate facets in which it is not the highest,
+        // in facet order.
+        for v in 0..vertices as u32 {
+            let expected: Vec<u32> = (0..ids.len() as u32)
+                .filter(|&f| !degenerate[f as usize])
+                .filter(|&f| {
+                    let t = ids[f as usize];
+                    t.contains(&v) && t.iter().any(|&w| w > v)
+                })
                 .collect();
-            let split = Incidence::in_ranges(&ids, &degenerate, 0, ranges);
-            assert_eq!((&split.end, &split.facets), (&one.end, &one.facets));
+            assert_eq!(one.under(v).collect::<Vec<_>>(), expected, "vertex {v}");
+        }
+        for runs in [2, 3, 7] {
+            // The facets split into runs: the same lists.
+            let split = Incidence::of_window(&ids, &degenerate, 0, 0..vertices as u32, runs);
+            assert_eq!(lists(&split), lists(&one), "{runs} runs");
         }
         for windows in [2, 3, 7, vertices] {
             // Windows of vertices one after the other: the same edges and neighbours.
