@@ -164,13 +164,10 @@ impl Topology {
 
         let Welded {
             ids,
+            degenerate,
             vertices,
             volume_sums,
         } = weld(tris, tolerance, (lo, hi));
-        let degenerate: Vec<bool> = ids
-            .iter()
-            .map(|[a, b, c]| a == b || b == c || a == c)
-            .collect();
         let mut defects: Vec<(Defect, u32)> = Vec::new();
         for (f, d) in degenerate.iter().enumerate() {
             if *d {
@@ -179,9 +176,9 @@ impl Topology {
         }
         let degenerate_facets = defects.len();
 
-        // The facets around every vertex (a counting sort, in facet order), then each
-        // vertex's edges to higher vertices grouped by that vertex: both in ranges of
-        // vertices on all threads, a window of vertices at a time.
+        // The facets under every vertex (a counting sort, in facet order, by runs of
+        // facets), then each vertex's edges to higher vertices grouped by that vertex (in
+        // ranges of vertices), both on all threads, a window of vertices at a time.
         let edges = find_edges(&ids, &degenerate, vertices);
         let EdgeFindings {
             open_edges,

@@ -34,11 +34,13 @@ pub(super) fn weld<T: Tris + ?Sized>(tris: &T, tol: f64, bbox: (Vec3, Vec3)) -> 
     weld_with(tris, tol, bbox, WELD_BLOCK, None)
 }
 
-/// What [`weld`] gives: every facet's vertex ids, the number of vertices, and the sums
-/// of [`six_volume`] over every [`VOLUME_BLOCK`] facets (the weld reads every facet,
-/// so the shells' volumes need no pass of their own).
+/// What [`weld`] gives: every facet's vertex ids, whether two of them are one (the facet
+/// is degenerate), the number of vertices, and the sums of [`six_volume`] over every
+/// [`VOLUME_BLOCK`] facets (the weld reads every facet, so the shells' volumes need no
+/// pass of their own).
 pub(super) struct Welded {
     pub(super) ids: Vec<[u32; 3]>,
+    pub(super) degenerate: Vec<bool>,
     pub(super) vertices: usize,
     pub(super) volume_sums: Vec<f64>,
 }
@@ -330,10 +332,16 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
     // these early sent the union-find and the lists after it to the heap, where freed
     // memory stays resident (the peak under the edges was 1.5 MB higher for a 1.3 M mesh).
     drop((corner_list, cell_list));
-    ids.par_iter_mut()
-        .for_each(|t| *t = t.map(|i| vertex[i as usize]));
+    // Each facet's vertices, and whether two of them are one.
+    let mut degenerate = vec![false; ids.len()];
+    ids.par_iter_mut().zip(&mut degenerate).for_each(|(t, d)| {
+        let [a, b, c] = t.map(|i| vertex[i as usize]);
+        *t = [a, b, c];
+        *d = a == b || b == c || a == c;
+    });
     Welded {
         ids,
+        degenerate,
         vertices,
         volume_sums,
     }
@@ -446,12 +454,21 @@ mod tests {
                 })
                 .collect();
             mesh.push(mesh[0]);
+            // A facet two of whose corners are within the tolerance: degenerate.
+            let t = mesh[1];
+            mesh.push([t[0], t[0] + Vec3::new(1e-9, 0.0, 0.0), t[2]]);
             let bbox = bounding_box(mesh.iter().flat_map(|t| t.iter()));
             let tol = WELD_TOLERANCE_REL * (bbox.1 - bbox.0).norm();
             let Welded {
-                ids, vertices: n, ..
+                ids,
+                vertices: n,
+                degenerate,
+                ..
             } = weld(&mesh, tol, bbox);
             assert_eq!((ids.clone(), n), plain_weld(&mesh, tol));
+            let repeats = |t: &[u32; 3]| t[0] == t[1] || t[1] == t[2] || t[0] == t[2];
+            assert_eq!(degenerate, ids.iter().map(repeats).collect::<Vec<_>>());
+            assert_eq!(degenerate.iter().filter(|&&d| d).count(), 1);
             // In blocks of a few facets: points repeated across blocks are joined again.
             for block in [1, 7, 100] {
                 let w = weld_with(&mesh, tol, bbox, block, None);
