@@ -135,18 +135,17 @@ impl Topology {
     /// Whether the facets `range` form closed shells by themselves: every shell they
     /// touch is closed and lies wholly inside the range.
     pub fn closed_within(&self, range: std::ops::Range<usize>) -> bool {
-        let mut any = false;
-        for &s in &self.facet_shell[range.clone()] {
-            if s == NO_SHELL {
-                continue;
-            }
-            let sh = &self.shells[s as usize];
-            if !sh.closed || sh.facet_span.0 < range.start || sh.facet_span.1 >= range.end {
-                return false;
-            }
-            any = true;
-        }
-        any
+        use rayon::prelude::*;
+        let facets = self.facet_shell[range.clone()]
+            .par_iter()
+            .with_min_len(1 << 12);
+        let inside = facets.clone().all(|&s| {
+            let Some(sh) = self.shells.get(s as usize) else {
+                return s == NO_SHELL;
+            };
+            sh.closed && sh.facet_span.0 >= range.start && sh.facet_span.1 < range.end
+        });
+        inside && facets.any(|&s| s != NO_SHELL)
     }
 
     /// Builds the topology of `tris`.
@@ -724,5 +723,35 @@ mod tests {
         assert_eq!(t.shells[2].children, 0);
         assert!(t.closed_within(0..12));
         assert!(!t.closed_within(0..11));
+    }
+
+    #[test]
+    fn a_range_is_closed_when_it_holds_whole_closed_shells_only() {
+        // A closed box (12 facets), an open one (its lid taken off: 10), a facet of no
+        // area, and a closed box of 8,192 facets, so that the range is read in pieces.
+        let mut m = tris(shapes::box_solid([0.0; 3], [1.0; 3], 1));
+        let mut open = tris(shapes::box_solid([3.0, 0.0, 0.0], [4.0, 1.0, 1.0], 1));
+        open.retain(|f| f.iter().any(|p| p.z < 0.5));
+        assert_eq!(open.len(), 10);
+        m.extend(open);
+        let p = Vec3::new(9.0, 9.0, 9.0);
+        m.push([p, p, Vec3::new(10.0, 9.0, 9.0)]);
+        let big = tris(shapes::box_solid([0.0, 3.0, 0.0], [1.0, 4.0, 1.0], 64));
+        assert!(big.len() > 8_000);
+        m.extend(big);
+        let n = m.len();
+        let t = Topology::build(&m);
+        assert_eq!(t.degenerate_facets, 1);
+        assert!(t.closed_within(0..12));
+        assert!(!t.closed_within(12..22), "an open shell");
+        assert!(!t.closed_within(0..22));
+        assert!(!t.closed_within(22..23), "no shell at all");
+        assert!(
+            t.closed_within(22..n),
+            "a degenerate facet beside a closed shell"
+        );
+        assert!(t.closed_within(23..n));
+        assert!(!t.closed_within(23..n - 1), "part of a shell");
+        assert!(!t.closed_within(24..n), "part of a shell");
     }
 }
