@@ -19,4 +19,6 @@ for _ in range(runs):
         times[b].append((time.perf_counter() - t) * 1000)
 for b in binaries:
     r = sorted(times[b])
-    print(f"{b}: median {statistics.median(r):.0f} ms, min {r[0]:.0f}, quartiles {r[len(r) // 4]:.0f}–{r[3 * len(r) // 4]:.0f}")
+    # Tenths of a millisecond below 100 ms, where whole milliseconds hide the changes.
+    d = 1 if r[0] < 100 else 0
+    print(f"{b}: median {statistics.median(r):.{d}f} ms, min {r[0]:.{d}f}, quartiles {r[len(r) // 4]:.{d}f}–{r[3 * len(r) // 4]:.{d}f}")

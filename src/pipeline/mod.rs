@@ -360,7 +360,22 @@ pub fn calc_logged_with(
     let layout = Layout::of_mesh(mesh_path, mesh::is_mesh_path);
     let writing = Tally::new(progress, Stage::Writing);
     writing.begin(WRITING_STEPS);
-    if let Some(dropped) = write_computed(&layout, mesh_path, &computed, units)? {
+    // While the result is written and flushed to disk, the other thread reads what the
+    // folder's page needs besides: the change log as it stands, the other meshes' result
+    // documents and the local time zone. This mesh's document and line are taken in after.
+    let (written, mut page) = rayon::join(
+        || write_computed(&layout, mesh_path, &computed, units),
+        || {
+            let _ = jiff::tz::TimeZone::system();
+            let dir = layout.dir();
+            outputs::Page::load(
+                Layout::new(dir.to_owned()),
+                results::changelog::read_lines(dir),
+                units,
+            )
+        },
+    );
+    if let Some(dropped) = written? {
         return Err(dropped.error.into());
     }
     writing.add(1);
@@ -369,7 +384,9 @@ pub fn calc_logged_with(
     let (line, more) = iterations::log_calc(&layout, &computed.result, hashes)?;
     notes.extend(more);
     writing.add(1);
-    outputs::write_folder_page(layout.dir(), false, units)?;
+    page.reload(mesh_path);
+    page.record(line.clone());
+    page.write(true, false)?;
     writing.add(1);
     Ok(Logged {
         result: computed.result,
@@ -501,6 +518,52 @@ mod tests {
         want.push(len);
         assert!(want.len() >= 4, "three blocks: {want:?}");
         assert_eq!(got.iter().map(|r| r.0).collect::<Vec<_>>(), want);
+    }
+
+    #[test]
+    fn the_page_calc_writes_is_the_page_drawn_afresh_from_the_folder() {
+        // calc reads the page's other inputs while its result is written and takes its
+        // own document and line in after; a page drawn from what is on disk afterwards
+        // must be the same, byte for byte but for the time it was drawn.
+        let dir = tempfile::tempdir().expect("a temporary folder");
+        let box_at = |name: &str, x: f64| {
+            let tris = shapes::box_solid([x, 0.0, 0.0], [x + 1.0, 2.0, 3.0], 2);
+            let mesh = dir.path().join(name);
+            fs::write(&mesh, encode::stl_binary(&tris, "b")).expect("writable");
+            mesh
+        };
+        let side = |level: f64| {
+            format!(r#"{{"units": "m", "liquid": {{"level": {level}, "density": 1000}}}}"#)
+        };
+        let (a, b) = (box_at("a.stl", 0.0), box_at("b.stl", 5.0));
+        fs::write(sidecar_path(&b), side(2.0)).expect("writable");
+        calc_logged(&b, UnitSystem::Si).expect("computes");
+        let results = dir.path().join("results");
+        let drawn = |name: &str| {
+            let text = fs::read_to_string(results.join(name)).expect("written");
+            // The line that says when the page was written.
+            let lines: Vec<&str> = text
+                .lines()
+                .filter(|l| !l.contains("Page written"))
+                .collect();
+            assert!(
+                lines.len() + 1 >= text.lines().count(),
+                "one time line at most"
+            );
+            lines.join("\n")
+        };
+        for level in [1.0, 1.5, 1.5, 2.5] {
+            // New iterations, an unchanged one and another mesh beside.
+            fs::write(sidecar_path(&a), side(level)).expect("writable");
+            calc_logged(&a, UnitSystem::Si).expect("computes");
+            let written = ["report.html", "a.history.svg", "b.history.svg"].map(drawn);
+            assert!(written[0].contains("a.stl") && written[0].contains("b.stl"));
+            outputs::write_folder_page(&results, false, UnitSystem::Si).expect("drawn");
+            let afresh = ["report.html", "a.history.svg", "b.history.svg"].map(drawn);
+            assert_eq!(written, afresh, "level {level}");
+        }
+        let log = results::changelog::read_lines(&results);
+        assert_eq!(log.len(), 5, "one line a calc");
     }
 
     #[test]
