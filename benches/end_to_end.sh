@@ -9,9 +9,11 @@
 #
 #   bash benches/end_to_end.sh            # sizes 100000 1300000 5000000, 11 runs
 #   SIZES="1300000" RUNS=21 bash benches/end_to_end.sh
+#   WETLOAD=/path/to/another/wetload bash benches/end_to_end.sh   # an older build, say
 set -euo pipefail
 cd "$(dirname "$0")/.."
 SIZES=${SIZES:-"100000 1300000 5000000"}
+export WETLOAD=${WETLOAD:-target/release/wetload}
 RUNS=${RUNS:-11}
 cargo build --release --quiet --bin wetload --example genmesh
 dir=$(mktemp -d)
@@ -45,7 +47,7 @@ run(["cat", path])  # the file in the page cache, as after a save
 cats, calcs = [], []
 for _ in range(runs):
     cats.append(run(["cat", path]))
-    calcs.append(run(["target/release/wetload", "calc", path]))
+    calcs.append(run([os.environ["WETLOAD"], "calc", path]))
 cat = statistics.median(c[0] for c in cats)
 calc_sorted = sorted(calcs)
 mid = calc_sorted[len(calc_sorted) // 2]
