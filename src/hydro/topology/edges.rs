@@ -55,13 +55,9 @@ pub(super) fn find_edges(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize)
 
 /// [`find_edges`] in `windows` windows of vertices.
 fn find_edges_in(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize, windows: usize) -> Edges {
-    use rayon::prelude::*;
-    let neighbours = Neighbours(
-        (0..3 * ids.len())
-            .into_par_iter()
-            .map(|_| AtomicU32::new(NO_NEIGHBOUR))
-            .collect(),
-    );
+    // Zeroed by the allocator (pages the system hands out zeroed), each entry written
+    // once below unless its edge is open or non-manifold.
+    let neighbours = Neighbours(bytemuck::zeroed_vec(3 * ids.len()));
     let step = vertices.div_ceil(windows.max(1)).max(1);
     let mut parts = Vec::new();
     // The first facet that can use a vertex of the window: no facet before it uses one
@@ -174,10 +170,8 @@ impl Incidence {
             }
             *e = total;
         }
-        let facets: Vec<AtomicU32> = (0..total)
-            .into_par_iter()
-            .map(|_| AtomicU32::new(0))
-            .collect();
+        // Every place is written below.
+        let facets: Vec<AtomicU32> = bytemuck::zeroed_vec(total as usize);
         runs.par_iter().zip(&mut counts).for_each(|(run, cursor)| {
             corners.each(run.clone(), |f, v| {
                 facets[cursor[v] as usize].store(f, Ordering::Relaxed);
@@ -379,19 +373,23 @@ pub(super) struct Edges {
 }
 
 /// Each facet's neighbour across each of its edges (edge k runs from corner k to the
-/// next): the other facet << 1 | 1 when both traverse the edge in the same direction as
-/// stored, or [`NO_NEIGHBOUR`]. Every entry is written once, by the range of vertices
-/// that holds the edge's lower vertex; atomics let the ranges share the array.
+/// next), as [`Neighbours::of`] gives it. Every entry is written once, by the range of
+/// vertices that holds the edge's lower vertex; atomics let the ranges share the array.
+/// Stored one higher, so that an entry never written (zero, as allocated) reads as
+/// [`NO_NEIGHBOUR`].
 pub(super) struct Neighbours(Vec<AtomicU32>);
 
 impl Neighbours {
     fn set(&self, from: &EdgeUse, to: u32, same: bool) {
         let at = 3 * from.facet as usize + usize::from(from.slot);
-        self.0[at].store((to << 1) | u32::from(same), Ordering::Relaxed);
+        // No overflow: facet indices stay below 2^28 (`limits::FACETS_CEILING`).
+        self.0[at].store(((to << 1) | u32::from(same)) + 1, Ordering::Relaxed);
     }
 
+    /// Facet `f`'s neighbours: the other facet << 1 | 1 when both traverse the edge in
+    /// the same direction as stored, or [`NO_NEIGHBOUR`].
     pub(super) fn of(&self, f: usize) -> [u32; 3] {
-        [0, 1, 2].map(|k| self.0[3 * f + k].load(Ordering::Relaxed))
+        [0, 1, 2].map(|k| self.0[3 * f + k].load(Ordering::Relaxed).wrapping_sub(1))
     }
 }
 
