@@ -234,10 +234,25 @@ pub(super) fn prepare(
             (part_plane, mesh_plane)
         },
     );
-    let wet = Wet::of(&parts, sidecar, &topology)?;
-    let accs = match &guessed {
-        Some(guessed) if *guessed == wet => filler.finish(),
+    // The guess kept when the topology gives it: seen from the shells for a clean closed
+    // mesh, else by building the wetting and comparing.
+    let given = guessed.as_ref().is_some_and(|g| g.is_given_by(&topology));
+    let found = if given {
+        None
+    } else {
+        Some(Wet::of(&parts, sidecar, &topology)?)
+    };
+    let accs = match (&guessed, &found) {
+        (Some(_), None) => filler.finish(),
+        (Some(guessed), Some(wet)) if guessed == wet => filler.finish(),
         _ => vec![None; sidecar.cases.len()],
+    };
+    drop(filler);
+    drop(work);
+    let wet = match (found, guessed) {
+        (Some(wet), _) | (None, Some(wet)) => wet,
+        // (Not reached: the wetting is built unless a guess is given.)
+        (None, None) => Wet::of(&parts, sidecar, &topology)?,
     };
     let closed = wet.closed;
 

@@ -81,6 +81,20 @@ impl Wet {
         ))
     }
 
+    /// Whether `topology` gives exactly this clean guess, decided from its shells alone
+    /// (no wetting built): a closed guess, and a closed mesh with no degenerate facet
+    /// whose every shell is enclosed by none, encloses none and is read as stored. Then
+    /// [`Wet::of`] would place every facet as the guess does, with the same sides.
+    pub(super) fn is_given_by(&self, topology: &Topology) -> bool {
+        self.closed
+            && topology.closed()
+            && topology.degenerate_facets == 0
+            && topology
+                .shells
+                .iter()
+                .all(|s| s.depth == 0 && s.children == 0 && s.flipped_facets == 0)
+    }
+
     fn with(
         parts: &[Part],
         sidecar: &Sidecar,
@@ -214,8 +228,14 @@ mod tests {
             let s = side(json);
             let tris: Vec<Tri> = m.facets.iter().map(|t| t.map(Vec3::from)).collect();
             let found = Wet::of(&m.parts, &s, &Topology::build(&tris)).expect("resolves");
+            let topology = Topology::build(&tris);
             let guess = Wet::clean_guess(&m.parts, &s, tris.len()).expect("fits the guess");
             assert_eq!(guess == found, holds, "case {i}");
+            // The shortcut from the shells: never where the wetting differs, and for the
+            // closed clean meshes.
+            let short = guess.is_given_by(&topology);
+            assert!(!short || guess == found, "case {i}");
+            assert_eq!(short, holds && guess.closed, "case {i}");
         }
     }
 }
