@@ -27,7 +27,7 @@ mod shells;
 mod weld;
 
 use super::{Tri, Tris, Vec3};
-use edges::{EdgeFindings, NO_NEIGHBOUR, duplicate_facet_list, find_edges};
+use edges::{EdgeFindings, duplicate_facet_list, find_edges};
 use nest::nest;
 use shells::{flood, join_pieces, shell_sums, shell_volumes};
 use weld::{VOLUME_BLOCK, Welded, six_volume, weld};
@@ -200,20 +200,15 @@ impl Topology {
         }
         drop(bad);
 
-        // Duplicate facets. Two facets with the same three vertices share all three edges:
-        // when every edge is manifold, they are each other's only neighbours; otherwise
-        // compare the sorted vertex triples of all facets.
-        let duplicates = if non_manifold_edges == 0 {
-            use rayon::prelude::*;
-            (0..n)
-                .into_par_iter()
-                .filter(|&f| {
-                    let a = adj.of(f);
-                    let g = a[0] >> 1;
-                    (g as usize) < f && a.iter().all(|&x| x != NO_NEIGHBOUR && x >> 1 == g)
-                })
-                .map(|f| f as u32)
-                .collect()
+        // Shells and winding in one flood fill over the manifold edges; pieces joined at
+        // non-manifold edges are one shell. Duplicate facets: found by the flood fill from
+        // the neighbours when every edge is manifold; otherwise by comparing the sorted
+        // vertex triples of all facets.
+        let manifold = non_manifold_edges == 0;
+        let (mut facet_shell, mut flip, mut shells, repeats) =
+            flood(&degenerate, &adj, &bad_facet, manifold);
+        let duplicates = if manifold {
+            repeats
         } else {
             duplicate_facet_list(&ids, &degenerate)
         };
@@ -225,10 +220,6 @@ impl Topology {
         for block in groups.0 {
             defects.extend(block);
         }
-
-        // Shells and winding in one flood fill over the manifold edges; pieces joined at
-        // non-manifold edges are one shell.
-        let (mut facet_shell, mut flip, mut shells) = flood(&degenerate, &adj, &bad_facet);
         drop((adj, bad_facet));
         if !joins.is_empty() {
             shells = join_pieces(shells, &joins.into_vec(), &mut facet_shell);
@@ -506,6 +497,18 @@ mod tests {
             (t.duplicate_facets, t.inconsistent_edges, t.open_edges),
             (1, 0, 0)
         );
+        // Two such pairs stored interleaved, (0, 3) and (1, 2): the duplicates in facet
+        // order, whatever order the pieces are walked in.
+        let b = a.map(|p| p + Vec3::new(5.0, 0.0, 0.0));
+        let t = Topology::build(&[a, b, b, a][..]);
+        assert_eq!(t.non_manifold_edges, 0);
+        let dups: Vec<u32> = t
+            .defects
+            .iter()
+            .filter(|d| d.0 == Defect::Duplicate)
+            .map(|d| d.1)
+            .collect();
+        assert_eq!(dups, vec![2, 3]);
 
         // A sliver whose vertices collapse within the weld tolerance.
         let mut m = unit_box();

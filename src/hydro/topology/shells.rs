@@ -14,12 +14,16 @@ use super::{NO_SHELL, ShellInfo, UnionFind};
 /// from the lowest facet not yet reached are one piece (numbered in that order), and a
 /// neighbour across an edge traversed in the same direction must be read reversed
 /// relative to this facet. Returns each facet's piece ([`NO_SHELL`] if degenerate), whether
-/// it is read reversed, and the pieces.
+/// it is read reversed, and the pieces; with `duplicates` (for a mesh whose every edge is
+/// manifold), also the facets that repeat an earlier facet's vertices, in facet order:
+/// those whose three neighbours are one earlier facet (two facets with the same three
+/// vertices share all three edges, and each is then the other's only neighbour).
 pub(super) fn flood(
     degenerate: &[bool],
     adj: &Neighbours,
     bad_facet: &[bool],
-) -> (Vec<u32>, Vec<bool>, Vec<ShellInfo>) {
+    duplicates: bool,
+) -> (Vec<u32>, Vec<bool>, Vec<ShellInfo>, Vec<u32>) {
     use rayon::prelude::*;
     let n = degenerate.len();
     let mut facet_shell = vec![NO_SHELL; n];
@@ -31,6 +35,7 @@ pub(super) fn flood(
     let mut reach = vec![UNSEEN; n];
     let mut shells: Vec<ShellInfo> = Vec::new();
     let mut queue: Vec<u32> = Vec::new();
+    let mut repeats: Vec<u32> = Vec::new();
     for f in 0..n {
         if degenerate[f] || reach[f] != UNSEEN {
             continue;
@@ -61,7 +66,14 @@ pub(super) fn flood(
                 sh.closed = false;
             }
             let reversed = reach[c] == REVERSED;
-            for a in adj.of(c) {
+            let around = adj.of(c);
+            if duplicates {
+                let g = around[0] >> 1;
+                if (g as usize) < c && around.iter().all(|&x| x != NO_NEIGHBOUR && x >> 1 == g) {
+                    repeats.push(c as u32);
+                }
+            }
+            for a in around {
                 if a == NO_NEIGHBOUR {
                     continue;
                 }
@@ -80,7 +92,8 @@ pub(super) fn flood(
         shells.push(sh);
     }
     let flip = reach.par_iter().map(|&r| r == REVERSED).collect();
-    (facet_shell, flip, shells)
+    repeats.sort_unstable();
+    (facet_shell, flip, shells, repeats)
 }
 
 /// Sums of `value(f)` over the facets `f` of each shell: within fixed blocks of
