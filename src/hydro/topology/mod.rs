@@ -204,15 +204,13 @@ impl Topology {
         // non-manifold edges are one shell. Duplicate facets: found by the flood fill from
         // the neighbours when every edge is manifold; otherwise by comparing the sorted
         // vertex triples of all facets.
+        // The ids are freed before the flood fill's lists are made.
         let manifold = non_manifold_edges == 0;
+        let listed = (!manifold).then(|| duplicate_facet_list(&ids, &degenerate));
+        drop(ids);
         let (mut facet_shell, mut flip, mut shells, repeats) =
             flood(&degenerate, &adj, &bad_facet, manifold);
-        let duplicates = if manifold {
-            repeats
-        } else {
-            duplicate_facet_list(&ids, &degenerate)
-        };
-        drop(ids);
+        let duplicates = listed.unwrap_or(repeats);
         let duplicate_facets = duplicates.len();
         defects.reserve_exact(duplicates.len() + groups.len());
         defects.extend(duplicates.into_iter().map(|f| (Defect::Duplicate, f)));
