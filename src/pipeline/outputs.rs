@@ -378,8 +378,8 @@ impl Page {
     }
 
     /// Writes the page, and the history charts of the meshes that changed since the last
-    /// write (`all`: of every mesh); returns the paths written. Both are derived files,
-    /// written atomically but not flushed to disk.
+    /// write or have none on disk (`all`: of every mesh); returns the paths written. Both
+    /// are derived files, written atomically but not flushed to disk.
     pub fn write(&mut self, all: bool, live: bool) -> Result<Vec<PathBuf>, RunError> {
         let mut meshes: Vec<html::MeshEntry> = self.meshes.values().cloned().collect();
         // Meshes that never computed but are in the log (their last event failed).
@@ -406,10 +406,10 @@ impl Page {
             }
             let lines = self.lines_of(&m.mesh);
             let up = m.result.as_ref().and_then(|r| r["inputs"]["up"].as_str());
-            if (all || dirty.contains(&m.mesh))
+            let path = self.layout.history_chart(&m.stem);
+            if (all || dirty.contains(&m.mesh) || !path.is_file())
                 && let Some(chart) = svg::history_chart(&m.mesh, &lines, up, &units)
             {
-                let path = self.layout.history_chart(&m.stem);
                 results::write_atomic_unsynced(&path, &svg::render(&chart))?;
                 written.push(path);
             }
