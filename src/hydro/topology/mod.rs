@@ -29,8 +29,8 @@ mod weld;
 use super::{Tri, Tris, Vec3};
 use edges::{EdgeFindings, duplicate_facet_list, find_edges};
 use nest::nest;
-use shells::{flood, join_pieces, shell_sums, shell_volumes};
-use weld::{VOLUME_BLOCK, Welded, six_volume, weld};
+use shells::{flood, join_pieces, shell_flipped, shell_volumes};
+use weld::{Welded, six_volume, weld};
 
 /// Weld tolerance for topology, relative to the bounding-box diagonal (pinned).
 pub const WELD_TOLERANCE_REL: f64 = 1e-7;
@@ -249,19 +249,7 @@ impl Topology {
                 .filter(|(_, s)| **s != NO_SHELL && turn[**s as usize])
                 .for_each(|(f, _)| *f = !*f);
         }
-        // A block wholly in one shell is counted at once.
-        let flipped = shell_sums(
-            &facet_shell,
-            shells.len(),
-            |b| {
-                let range = b * VOLUME_BLOCK..((b + 1) * VOLUME_BLOCK).min(n);
-                let shell = &facet_shell[range.clone()];
-                let s = shell[0];
-                (s != NO_SHELL && shell.iter().all(|&t| t == s))
-                    .then(|| (s, flip[range].iter().filter(|&&f| f).count()))
-            },
-            |f| usize::from(flip[f]),
-        );
+        let flipped = shell_flipped(&facet_shell, &flip, shells.len());
         for (sh, flipped) in shells.iter_mut().zip(flipped) {
             sh.flipped_facets = flipped;
         }

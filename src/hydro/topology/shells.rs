@@ -6,6 +6,8 @@
 //! Turning closed shells outward (by the sign of their volume) is done by the caller from
 //! these sums; nesting is `nest.rs`'s.
 
+use std::ops::Range;
+
 use super::edges::{NO_NEIGHBOUR, Neighbours};
 use super::weld::VOLUME_BLOCK;
 use super::{NO_SHELL, ShellInfo, UnionFind};
@@ -99,11 +101,11 @@ pub(super) fn flood(
 /// Sums of `value(f)` over the facets `f` of each shell: within fixed blocks of
 /// [`VOLUME_BLOCK`] facets on all threads, runs of one shell summed in order, then the
 /// blocks' sums added in order, so the result does not depend on the number of threads.
-/// `whole(b)` may give block `b`'s sum at once, as (shell, sum), when it knows it.
-pub(super) fn shell_sums<T>(
+/// For a block wholly in one shell, `whole(b, facets)` may give its sum at once.
+fn shell_sums<T>(
     facet_shell: &[u32],
     shells: usize,
-    whole: impl Fn(usize) -> Option<(u32, T)> + Sync,
+    whole: impl Fn(usize, Range<usize>) -> Option<T> + Sync,
     value: impl Fn(usize) -> T + Sync,
 ) -> Vec<T>
 where
@@ -114,12 +116,16 @@ where
         .par_chunks(VOLUME_BLOCK)
         .enumerate()
         .map(|(b, block)| {
-            if let Some(sum) = whole(b) {
-                return vec![sum];
+            let (first, s) = (b * VOLUME_BLOCK, block[0]);
+            if s != NO_SHELL
+                && block.iter().all(|&t| t == s)
+                && let Some(sum) = whole(b, first..first + block.len())
+            {
+                return vec![(s, sum)];
             }
             let mut runs: Vec<(u32, T)> = Vec::new();
             for (i, &s) in block.iter().enumerate().filter(|(_, s)| **s != NO_SHELL) {
-                let v = value(b * VOLUME_BLOCK + i);
+                let v = value(first + i);
                 match runs.last_mut() {
                     Some((last, sum)) if *last == s => *sum += v,
                     _ => runs.push((s, v)),
@@ -146,16 +152,28 @@ pub(super) fn shell_volumes(
     block_sums: &[f64],
     six: impl Fn(usize) -> f64 + Sync,
 ) -> Vec<f64> {
-    let whole = |b: usize| {
-        let range = b * VOLUME_BLOCK..((b + 1) * VOLUME_BLOCK).min(facet_shell.len());
-        let (shell, flip) = (&facet_shell[range.clone()], &flip[range]);
-        let (s, f) = (shell[0], flip[0]);
-        let one = s != NO_SHELL && shell.iter().all(|&t| t == s) && flip.iter().all(|&g| g == f);
-        one.then(|| (s, if f { -block_sums[b] } else { block_sums[b] }))
+    let whole = |b: usize, facets: Range<usize>| {
+        let flip = &flip[facets];
+        let f = flip[0];
+        flip.iter()
+            .all(|&g| g == f)
+            .then(|| if f { -block_sums[b] } else { block_sums[b] })
     };
     shell_sums(facet_shell, shells, whole, |f| {
         if flip[f] { -six(f) } else { six(f) }
     })
+}
+
+/// The facets of each shell read reversed (`flip`); a block wholly in one shell counted
+/// at once.
+pub(super) fn shell_flipped(facet_shell: &[u32], flip: &[bool], shells: usize) -> Vec<usize> {
+    let count = |facets: Range<usize>| flip[facets].iter().filter(|&&f| f).count();
+    shell_sums(
+        facet_shell,
+        shells,
+        |_, facets| Some(count(facets)),
+        |f| usize::from(flip[f]),
+    )
 }
 
 /// Pieces (numbered in order of first facet) joined at non-manifold edges become one
@@ -203,7 +221,7 @@ mod tests {
     use super::*;
 
     #[test]
-    fn shell_volumes_from_block_sums_agree_with_facet_by_facet_sums() {
+    fn shell_volumes_and_flips_from_blocks_agree_with_facet_by_facet_sums() {
         // Blocks wholly in one shell read one way (taken whole, either way), blocks that
         // mix shells, ways and degenerate facets (summed facet by facet), and a short
         // last block; against the plain sum of ±six(f) per shell.
@@ -251,6 +269,12 @@ mod tests {
                 want[s]
             );
         }
+        // The flipped facets per shell, from the same blocks, against a plain count.
+        let mut flipped = vec![0usize; 3];
+        for f in (0..n).filter(|&f| facet_shell[f] != NO_SHELL && flip[f]) {
+            flipped[facet_shell[f] as usize] += 1;
+        }
+        assert_eq!(shell_flipped(&facet_shell, &flip, 3), flipped);
         // A degenerate facet's volume is left out, not taken with its block's sum.
         let mut whole = facet_shell.clone();
         whole[5 * VOLUME_BLOCK + 9] = 2;
