@@ -234,26 +234,27 @@ pub(super) fn prepare(
             (part_plane, mesh_plane)
         },
     );
-    // The guess kept when the topology gives it: seen from the shells for a clean closed
-    // mesh, else by building the wetting and comparing.
-    let given = guessed.as_ref().is_some_and(|g| g.is_given_by(&topology));
-    let found = if given {
-        None
-    } else {
-        Some(Wet::of(&parts, sidecar, &topology)?)
+    // The guess is kept when the topology gives it: seen at once from the shells, else
+    // by building the wetting and comparing.
+    let found = match &guessed {
+        Some(guess) if guess.is_given_by(&topology) => None,
+        _ => Some(Wet::of(&parts, sidecar, &topology)?),
     };
-    let accs = match (&guessed, &found) {
-        (Some(_), None) => filler.finish(),
-        (Some(guessed), Some(wet)) if guessed == wet => filler.finish(),
-        _ => vec![None; sidecar.cases.len()],
+    let kept = match (&guessed, &found) {
+        (_, None) => true,
+        (Some(guess), Some(wet)) => guess == wet,
+        (None, Some(_)) => false,
+    };
+    let accs = if kept {
+        filler.finish()
+    } else {
+        vec![None; sidecar.cases.len()]
     };
     drop(filler);
     drop(work);
-    let wet = match (found, guessed) {
-        (Some(wet), _) | (None, Some(wet)) => wet,
-        // (Not reached: the wetting is built unless a guess is given.)
-        (None, None) => Wet::of(&parts, sidecar, &topology)?,
-    };
+    let wet = found
+        .or(guessed)
+        .expect("the wetting is built unless the guess is given");
     let closed = wet.closed;
 
     let part_closed: Vec<bool> = parts
