@@ -14,7 +14,8 @@ use super::Defect;
 /// No neighbour across a facet's edge (an open or non-manifold edge).
 pub(super) const NO_NEIGHBOUR: u32 = u32::MAX;
 
-/// Parts to split `items` into for the threads: one a thread, or one for a few.
+/// Parts to split `items` (vertices or facets) into for the threads: one a thread, or
+/// one for a few.
 fn parts_for(items: usize) -> usize {
     if items < 1 << 14 {
         1
@@ -68,7 +69,7 @@ fn find_edges_in(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize, windows
         while from < ids.len() && ids[from].iter().all(|&v| v < window.start) {
             from += 1;
         }
-        let runs = parts_for(window.len());
+        let runs = parts_for(ids.len() - from);
         let under = Incidence::of_window(ids, degenerate, from, window, runs);
         parts.extend(under.edges(ids, &neighbours));
     }
