@@ -154,7 +154,7 @@ impl Incidence {
         let mut counts: Vec<Vec<u32>> = runs
             .par_iter()
             .map(|run| {
-                let mut count = vec![0u32; size];
+                let mut count: Vec<u32> = super::written_zeros(size);
                 corners.each(run.clone(), |_, v| count[v] += 1);
                 count
             })

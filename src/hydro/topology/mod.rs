@@ -289,6 +289,18 @@ pub fn bounding_box<P: std::borrow::Borrow<Vec3>>(points: impl Iterator<Item = P
     (lo, hi)
 }
 
+/// `n` zeros written out, for a list that is read before it is written (counts, marks).
+/// The allocator's zeroed memory (`vec![0; n]`) is fresh pages the system zeroes on first
+/// touch: read first, each page is mapped to the shared zero page and faults again when
+/// written, and that second fault flushes the page from every core's TLB. Written out,
+/// each page faults once. (The fill value is hidden from the compiler, which would
+/// otherwise turn the writes back into a zeroed allocation.)
+pub(super) fn written_zeros<T: Copy + Default>(n: usize) -> Vec<T> {
+    let mut v = Vec::with_capacity(n);
+    v.resize(n, std::hint::black_box(T::default()));
+    v
+}
+
 /// Disjoint sets of indices whose root is always the lowest index of its set (the weld
 /// and the joining of pieces number their results in that order).
 pub(super) struct UnionFind {
@@ -351,6 +363,16 @@ mod tests {
 
     fn unit_box() -> Vec<Tri> {
         tris(shapes::box_solid([0.0, 0.0, 0.0], [2.0, 3.0, 4.0], 2))
+    }
+
+    #[test]
+    fn written_zeros_are_zeros_of_the_length_asked() {
+        for n in [0, 1, 4095, 1 << 20] {
+            let bytes: Vec<u8> = written_zeros(n);
+            let words: Vec<u64> = written_zeros(n);
+            assert!(bytes.len() == n && bytes.iter().all(|&b| b == 0));
+            assert!(words.len() == n && words.iter().all(|&w| w == 0));
+        }
     }
 
     #[test]

@@ -34,7 +34,7 @@ pub(super) fn flood(
     const UNSEEN: u8 = 0;
     const AS_STORED: u8 = 1;
     const REVERSED: u8 = 2;
-    let mut reach = vec![UNSEEN; n];
+    let mut reach: Vec<u8> = super::written_zeros(n); // UNSEEN
     let mut shells: Vec<ShellInfo> = Vec::new();
     let mut queue: Vec<u32> = Vec::new();
     let mut repeats: Vec<u32> = Vec::new();

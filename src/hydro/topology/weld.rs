@@ -373,8 +373,8 @@ impl CellTable {
     fn new(bits: u32) -> CellTable {
         let bits = bits.max(6);
         CellTable {
-            once: vec![0; 1 << (bits - 6)],
-            twice: vec![0; 1 << (bits - 6)],
+            once: super::written_zeros(1 << (bits - 6)),
+            twice: super::written_zeros(1 << (bits - 6)),
             shift: 64 - bits,
         }
     }
