@@ -60,17 +60,35 @@ fn find_edges_in(ids: &[[u32; 3]], degenerate: &[bool], vertices: usize, windows
     // once below unless its edge is open or non-manifold.
     let neighbours = Neighbours(bytemuck::zeroed_vec(3 * ids.len()));
     let step = vertices.div_ceil(windows.max(1)).max(1);
+    // The first vertex of every window after the first.
+    let later: Vec<u32> = (step..vertices).step_by(step).map(|w| w as u32).collect();
+    // Past the last facet that lists a vertex of each later window, found as the first
+    // window's lists are counted (that pass reads every facet): vertices are numbered in
+    // order of first appearance, so most of a window's facets are near each other, and
+    // the later windows' passes stop there instead of at the last facet.
+    let mut until: Vec<usize> = Vec::new();
     let mut parts = Vec::new();
     // The first facet that can use a vertex of the window: no facet before it uses one
     // as high as the window's first (it only moves forward as the windows rise).
     let mut from = 0;
-    for w in (0..vertices).step_by(step) {
+    for (i, w) in (0..vertices).step_by(step).enumerate() {
         let window = w as u32..(w + step).min(vertices) as u32;
         while from < ids.len() && ids[from].iter().all(|&v| v < window.start) {
             from += 1;
         }
-        let runs = parts_for(ids.len() - from);
-        let under = Incidence::of_window(ids, degenerate, from, window, runs);
+        let to = match i {
+            0 => ids.len(),
+            _ => until[i - 1].max(from),
+        };
+        let runs = parts_for(to - from);
+        let under = if i == 0 {
+            let (under, found) =
+                Incidence::of_window_finding_later(ids, degenerate, from..to, window, runs, &later);
+            until = found;
+            under
+        } else {
+            Incidence::of_window(ids, degenerate, from..to, window, runs)
+        };
         parts.extend(under.edges(ids, &neighbours));
     }
     Edges {
@@ -89,8 +107,15 @@ struct WindowCorners<'a> {
 }
 
 impl WindowCorners<'_> {
-    /// Calls `take(facet, vertex - window start)` for each such corner of facets `run`.
-    fn each(&self, run: Range<usize>, mut take: impl FnMut(u32, usize)) {
+    /// Calls `take(facet, vertex - window start)` for each such corner of facets `run`,
+    /// and `other(facet, vertex)` for each corner that is not its facet's highest but lies
+    /// outside the window.
+    fn each(
+        &self,
+        run: Range<usize>,
+        mut take: impl FnMut(u32, usize),
+        mut other: impl FnMut(u32, u32),
+    ) {
         let (lo, hi) = self.window;
         let facets = self.ids[run.clone()]
             .iter()
@@ -101,8 +126,13 @@ impl WindowCorners<'_> {
             }
             let top = t[0].max(t[1]).max(t[2]);
             for &v in t {
-                if v != top && (lo..hi).contains(&v) {
+                if v == top {
+                    continue;
+                }
+                if (lo..hi).contains(&v) {
                     take(f as u32, (v - lo) as usize);
+                } else {
+                    other(f as u32, v);
                 }
             }
         }
@@ -126,37 +156,78 @@ struct Incidence {
 }
 
 impl Incidence {
-    /// A counting sort by vertex of the corners of facets `from..` that fall in `window`,
-    /// the facets split into `parts` consecutive runs, each counted and placed on a thread
-    /// of its own: a run's facets of a vertex follow those of the runs before it, so every
-    /// split gives the same lists. No facet before `from` may use a vertex of the window.
+    /// A counting sort by vertex of the corners of `facets` that fall in `window`, the
+    /// facets split into `parts` consecutive runs, each counted and placed on a thread of
+    /// its own: a run's facets of a vertex follow those of the runs before it, so every
+    /// split gives the same lists. No facet outside `facets` may list a vertex of the
+    /// window.
     fn of_window(
         ids: &[[u32; 3]],
         degenerate: &[bool],
-        from: usize,
+        facets: Range<usize>,
         window: Range<u32>,
         parts: usize,
     ) -> Incidence {
+        Incidence::of_window_finding_later(ids, degenerate, facets, window, parts, &[]).0
+    }
+
+    /// [`Incidence::of_window`], and for each later window, given by its first vertex
+    /// (`later`, rising, all above `window`), one past the last facet of `facets` that
+    /// lists a vertex of it (`facets.start` when none does).
+    fn of_window_finding_later(
+        ids: &[[u32; 3]],
+        degenerate: &[bool],
+        facets: Range<usize>,
+        window: Range<u32>,
+        parts: usize,
+        later: &[u32],
+    ) -> (Incidence, Vec<usize>) {
         use rayon::prelude::*;
         let base = window.start;
         let size = window.len();
-        let step = (ids.len() - from).div_ceil(parts.max(1)).max(1);
-        let runs: Vec<Range<usize>> = (from..ids.len())
+        let step = facets.len().div_ceil(parts.max(1)).max(1);
+        let runs: Vec<Range<usize>> = facets
+            .clone()
             .step_by(step)
-            .map(|a| a..(a + step).min(ids.len()))
+            .map(|a| a..(a + step).min(facets.end))
             .collect();
         let corners = WindowCorners {
             ids,
             degenerate,
             window: (window.start, window.end),
         };
-        // Facets per vertex, per run.
-        let mut counts: Vec<Vec<u32>> = runs
+        // Facets per vertex, per run, and the last facet of the run listing each later
+        // window's vertices (facets rise through a run, so the last one seen).
+        let (mut counts, lasts): (Vec<Vec<u32>>, Vec<Vec<Option<u32>>>) = runs
             .par_iter()
             .map(|run| {
                 let mut count: Vec<u32> = super::written_zeros(size);
-                corners.each(run.clone(), |_, v| count[v] += 1);
-                count
+                let mut last = vec![None; later.len()];
+                if later.is_empty() {
+                    corners.each(run.clone(), |_, v| count[v] += 1, |_, _| {});
+                } else {
+                    corners.each(
+                        run.clone(),
+                        |_, v| count[v] += 1,
+                        |f, v| {
+                            // The later window holding v (v is above this window).
+                            let w = later.partition_point(|&start| start <= v);
+                            if w > 0 {
+                                last[w - 1] = Some(f);
+                            }
+                        },
+                    );
+                }
+                (count, last)
+            })
+            .unzip();
+        let until = (0..later.len())
+            .map(|w| {
+                lasts
+                    .iter()
+                    .filter_map(|last| last[w])
+                    .max()
+                    .map_or(facets.start, |f| f as usize + 1)
             })
             .collect();
         // Where each run's facets of each vertex start (the counts become cursors), and
@@ -174,17 +245,22 @@ impl Incidence {
         // Every place is written below.
         let facets: Vec<AtomicU32> = bytemuck::zeroed_vec(total as usize);
         runs.par_iter().zip(&mut counts).for_each(|(run, cursor)| {
-            corners.each(run.clone(), |f, v| {
-                facets[cursor[v] as usize].store(f, Ordering::Relaxed);
-                cursor[v] += 1;
-            });
+            corners.each(
+                run.clone(),
+                |f, v| {
+                    facets[cursor[v] as usize].store(f, Ordering::Relaxed);
+                    cursor[v] += 1;
+                },
+                |_, _| {},
+            );
         });
-        Incidence {
+        let incidence = Incidence {
             base,
             end,
             facets,
             ranges: vertex_ranges(window),
-        }
+        };
+        (incidence, until)
     }
 
     /// Vertex `v`'s facets (`v` in the window).
@@ -450,7 +526,7 @@ mod tests {
         let (ids, vertices) = (w.ids, w.vertices);
         let mut degenerate = vec![false; ids.len()];
         degenerate[5] = true; // left out of every edge
-        let one = Incidence::of_window(&ids, &degenerate, 0, 0..vertices as u32, 1);
+        let one = Incidence::of_window(&ids, &degenerate, 0..ids.len(), 0..vertices as u32, 1);
         let lists = |i: &Incidence| -> (Vec<u32>, Vec<u32>) {
             let facets = i.facets.iter().map(|f| f.load(Ordering::Relaxed)).collect();
             (i.end.clone(), facets)
@@ -476,7 +552,8 @@ mod tests {
         }
         for runs in [2, 3, 7] {
             // The facets split into runs: the same lists.
-            let split = Incidence::of_window(&ids, &degenerate, 0, 0..vertices as u32, runs);
+            let split =
+                Incidence::of_window(&ids, &degenerate, 0..ids.len(), 0..vertices as u32, runs);
             assert_eq!(lists(&split), lists(&one), "{runs} runs");
         }
         for windows in [2, 3, 7, vertices] {
