@@ -31,7 +31,16 @@ const EXACT_SLOTS: usize = 1 << 14;
 /// The sort, not a hash map, keeps every step in cache-friendly order; the result does
 /// not depend on the number of threads.
 pub(super) fn weld<T: Tris + ?Sized>(tris: &T, tol: f64, bbox: (Vec3, Vec3)) -> Welded {
-    weld_with(tris, tol, bbox, WELD_BLOCK, None)
+    weld_with(tris, tol, bbox, weld_block(tris.count()), None)
+}
+
+/// Facets per block of the weld's first step for a mesh of `facets`: [`WELD_BLOCK`], or
+/// for a smaller mesh a quarter of it (whole volume blocks), so that its blocks still
+/// share the threads. The weld's result does not depend on the blocks.
+fn weld_block(facets: usize) -> usize {
+    (facets / 4)
+        .next_multiple_of(VOLUME_BLOCK)
+        .clamp(VOLUME_BLOCK, WELD_BLOCK)
 }
 
 /// What [`weld`] gives: every facet's vertex ids, whether two of them are one (the facet
@@ -56,8 +65,8 @@ pub(super) fn six_volume(t: &[Vec3; 3], c: &Vec3) -> f64 {
     a.dot(&b.cross(&d))
 }
 
-/// Facets per block of the weld's first step (a constant, so that nothing depends on the
-/// number of threads).
+/// Facets per block of the weld's first step at most (the blocks depend on the mesh alone,
+/// never on the number of threads).
 const WELD_BLOCK: usize = 1 << 18;
 
 /// [`weld`], its first step in blocks of `block` facets, with a cell table of
