@@ -25,7 +25,250 @@ pub(super) fn flood(
     adj: &Neighbours,
     bad_facet: &[bool],
     duplicates: bool,
-) -> (Vec<u32>, Vec<bool>, Vec<ShellInfo>, Vec<u32>) {
+) -> Flooded {
+    let parts = if degenerate.len() < 1 << 14 {
+        1
+    } else {
+        rayon::current_num_threads().max(1)
+    };
+    flood_by_sets(degenerate, adj, bad_facet, duplicates, parts)
+        .unwrap_or_else(|| flood_by_waves(degenerate, adj, bad_facet, duplicates))
+}
+
+/// What [`flood`] gives: each facet's piece ([`NO_SHELL`] if degenerate), whether it is
+/// read reversed, the pieces, and the facets that repeat an earlier one.
+pub(super) type Flooded = (Vec<u32>, Vec<bool>, Vec<ShellInfo>, Vec<u32>);
+
+/// A piece whose lowest facet is `f`, before any facet is counted.
+fn piece_from(f: usize) -> ShellInfo {
+    ShellInfo {
+        facets: 0,
+        facet_span: (f, f),
+        closed: true,
+        orientable: true,
+        volume: 0.0,
+        inverted: false,
+        flipped_facets: 0,
+        depth: 0,
+        children: 0,
+    }
+}
+
+/// Whether facet `c`, with neighbours `around`, repeats an earlier facet's vertices: its
+/// three neighbours are one earlier facet (in a mesh whose every edge is manifold).
+fn repeats_earlier(c: usize, around: &[u32; 3]) -> bool {
+    let g = around[0] >> 1;
+    (g as usize) < c && around.iter().all(|&x| x != NO_NEIGHBOUR && x >> 1 == g)
+}
+
+/// A facet's link in [`flood_by_sets`]: its parent (a lower facet, or itself for a root)
+/// << 1 | whether it is read reversed relative to the parent (facet indices stay below
+/// 2^28, `limits::FACETS_CEILING`).
+type Link = u32;
+
+/// Facet `x`'s root and whether `x` is read reversed relative to it, halving the path on
+/// the way (facet `base + i` at `link[i]`: every link on the way lies in it).
+fn find(link: &mut [Link], base: usize, mut x: usize) -> (usize, bool) {
+    let mut reversed = 0;
+    loop {
+        let l = link[x - base];
+        let p = (l >> 1) as usize;
+        if p == x {
+            return (x, reversed == 1);
+        }
+        let lp = link[p - base];
+        // x to its grandparent (the root, if p is one: then lp is p << 1).
+        let to = l & 1 ^ lp & 1;
+        link[x - base] = lp & !1 | to;
+        reversed ^= to;
+        x = (lp >> 1) as usize;
+    }
+}
+
+/// [`find`] without shortening any path (for reading the links from several threads).
+fn walk(link: &[Link], mut x: usize) -> (usize, bool) {
+    let mut reversed = 0;
+    loop {
+        let l = link[x];
+        let p = (l >> 1) as usize;
+        if p == x {
+            return (x, reversed == 1);
+        }
+        reversed ^= l & 1;
+        x = p;
+    }
+}
+
+/// Joins facet `f` to facet `g` (`g` < `f`) across an edge whose facets are read the
+/// same way unless `same` is 1 (it is traversed the same way by both as stored), the
+/// higher root linked under the lower; `at` is `f`'s root and reading, kept up to date.
+/// `false` when they are one set already and the edge asks for the other reading.
+fn join(link: &mut [Link], base: usize, at: &mut (usize, u32), g: usize, same: u32) -> bool {
+    let (rf, of) = *at;
+    let (rg, og) = find(link, base, g);
+    let odd = of ^ u32::from(og) ^ same;
+    if rf == rg {
+        return odd == 0;
+    }
+    if rf > rg {
+        link[rf - base] = (rg as u32) << 1 | odd;
+        *at = (rg, of ^ odd);
+    } else {
+        link[rg - base] = (rf as u32) << 1 | odd;
+    }
+    true
+}
+
+/// [`flood`] without a fill, in `parts` ranges of facets on the threads: each facet is
+/// joined to its lower neighbours into disjoint sets whose root is the set's lowest facet,
+/// each facet keeping whether it is read reversed relative to its parent. These are the
+/// fill's pieces and winding: a piece is a connected set numbered by its lowest facet,
+/// and where a piece can be wound consistently, every facet's reading relative to the
+/// lowest one is fixed by any path between them. `None` when some piece cannot be (a
+/// cycle of edges asks for a facet both ways): there the fill's reading depends on the
+/// order in which it reaches the facets, and only [`flood_by_waves`] gives it.
+///
+/// Each range joins the edges within it on its own thread (reading its neighbours in
+/// order, where the fill jumps about the mesh); the edges to earlier ranges are joined
+/// after, in order; then each facet's root is read, range by range on the threads, and
+/// the roots are numbered in order. The result does not depend on the ranges.
+fn flood_by_sets(
+    degenerate: &[bool],
+    adj: &Neighbours,
+    bad_facet: &[bool],
+    duplicates: bool,
+    parts: usize,
+) -> Option<Flooded> {
+    use rayon::prelude::*;
+    let n = degenerate.len();
+    let step = n.div_ceil(parts.max(1)).max(1);
+    let mut link: Vec<Link> = (0..n as u32).into_par_iter().map(|f| f << 1).collect();
+    // 1. Within each range; the edges to earlier ranges (facet, neighbour entry) kept.
+    let crossing: Vec<Option<Vec<(u32, u32)>>> = link
+        .par_chunks_mut(step)
+        .enumerate()
+        .map(|(i, link)| {
+            let base = i * step;
+            let mut crossing = Vec::new();
+            for f in (base..base + link.len()).filter(|&f| !degenerate[f]) {
+                // f is a root until joined here.
+                let mut at = (f, 0);
+                for a in adj.of(f) {
+                    let g = (a >> 1) as usize;
+                    if a == NO_NEIGHBOUR || g > f {
+                        continue; // none, or joined from the other side
+                    }
+                    if g < base {
+                        crossing.push((f as u32, a));
+                    } else if !join(link, base, &mut at, g, a & 1) {
+                        return None;
+                    }
+                }
+            }
+            Some(crossing)
+        })
+        .collect();
+    // 2. Across the ranges, in order.
+    for (f, a) in crossing
+        .into_iter()
+        .collect::<Option<Vec<_>>>()?
+        .into_iter()
+        .flatten()
+    {
+        let (rf, of) = find(&mut link, 0, f as usize);
+        if !join(
+            &mut link,
+            0,
+            &mut (rf, u32::from(of)),
+            (a >> 1) as usize,
+            a & 1,
+        ) {
+            return None;
+        }
+    }
+    // 3. Every facet's root (as a facet for now) and reading, from its parent's when that
+    // is in the range (lower, so found already), else by following the links.
+    let mut facet_shell = vec![NO_SHELL; n];
+    let mut flip = vec![false; n];
+    facet_shell
+        .par_chunks_mut(step)
+        .zip(flip.par_chunks_mut(step))
+        .enumerate()
+        .for_each(|(i, (shell, flip))| {
+            let base = i * step;
+            for k in (0..shell.len()).filter(|&k| !degenerate[base + k]) {
+                let l = link[base + k];
+                let p = (l >> 1) as usize;
+                let (root, reversed) = if p >= base && p < base + k {
+                    (shell[p - base] as usize, flip[p - base])
+                } else {
+                    walk(&link, p)
+                };
+                (shell[k], flip[k]) = (root as u32, reversed ^ (l & 1 == 1));
+            }
+        });
+    // 4. The roots numbered in order, each number kept in its root's link.
+    let mut shells: Vec<ShellInfo> = Vec::new();
+    for (f, &s) in facet_shell.iter().enumerate() {
+        if s as usize == f {
+            link[f] = shells.len() as u32;
+            shells.push(piece_from(f));
+        }
+    }
+    // 5. Each facet's piece, and per range the pieces' facets (runs of one piece counted
+    // at once) and repeats.
+    let counted: Vec<(Vec<Run>, Vec<u32>)> = facet_shell
+        .par_chunks_mut(step)
+        .enumerate()
+        .map(|(i, shell)| {
+            let base = i * step;
+            let mut runs: Vec<Run> = Vec::new();
+            let mut repeats = Vec::new();
+            for (k, s) in shell.iter_mut().enumerate() {
+                if *s == NO_SHELL {
+                    continue;
+                }
+                let f = base + k;
+                *s = link[*s as usize];
+                match runs.last_mut() {
+                    Some((piece, count, last, bad)) if *piece == *s => {
+                        *count += 1;
+                        *last = f;
+                        *bad |= bad_facet[f];
+                    }
+                    _ => runs.push((*s, 1, f, bad_facet[f])),
+                }
+                if duplicates && repeats_earlier(f, &adj.of(f)) {
+                    repeats.push(f as u32);
+                }
+            }
+            (runs, repeats)
+        })
+        .collect();
+    let mut repeats = Vec::new();
+    for (runs, r) in counted {
+        for (piece, count, last, bad) in runs {
+            let sh = &mut shells[piece as usize];
+            sh.facets += count;
+            sh.facet_span.1 = sh.facet_span.1.max(last);
+            sh.closed &= !bad;
+        }
+        repeats.extend(r);
+    }
+    Some((facet_shell, flip, shells, repeats))
+}
+
+/// A run of consecutive facets of one piece in [`flood_by_sets`]: the piece, its number
+/// of facets, its last facet, and whether one touches an open or non-manifold edge.
+type Run = (u32, usize, usize, bool);
+
+/// [`flood`] by a fill, breadth first from the lowest facet not yet reached.
+fn flood_by_waves(
+    degenerate: &[bool],
+    adj: &Neighbours,
+    bad_facet: &[bool],
+    duplicates: bool,
+) -> Flooded {
     use rayon::prelude::*;
     let n = degenerate.len();
     let mut facet_shell = vec![NO_SHELL; n];
@@ -43,17 +286,7 @@ pub(super) fn flood(
             continue;
         }
         let piece = shells.len() as u32;
-        let mut sh = ShellInfo {
-            facets: 0,
-            facet_span: (f, f),
-            closed: true,
-            orientable: true,
-            volume: 0.0,
-            inverted: false,
-            flipped_facets: 0,
-            depth: 0,
-            children: 0,
-        };
+        let mut sh = piece_from(f);
         facet_shell[f] = piece;
         reach[f] = AS_STORED;
         queue.clear();
@@ -69,11 +302,8 @@ pub(super) fn flood(
             }
             let reversed = reach[c] == REVERSED;
             let around = adj.of(c);
-            if duplicates {
-                let g = around[0] >> 1;
-                if (g as usize) < c && around.iter().all(|&x| x != NO_NEIGHBOUR && x >> 1 == g) {
-                    repeats.push(c as u32);
-                }
+            if duplicates && repeats_earlier(c, &around) {
+                repeats.push(c as u32);
             }
             for a in around {
                 if a == NO_NEIGHBOUR {
@@ -219,6 +449,150 @@ pub(super) fn join_pieces(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::hydro::topology::edges::find_edges;
+
+    /// A small generator (SplitMix64), so the meshes are the same on every run.
+    struct Draw(u64);
+
+    impl Draw {
+        fn next(&mut self, below: usize) -> usize {
+            self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
+            let mut z = self.0;
+            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+            ((z ^ (z >> 31)) % below as u64) as usize
+        }
+    }
+
+    /// The facets of a torus grid of `w` × `h` vertices, two a quad, wound alike.
+    fn grid_torus(w: u32, h: u32) -> Vec<[u32; 3]> {
+        let at = |i: u32, j: u32| (i % w) + w * (j % h);
+        let mut ids = Vec::new();
+        for j in 0..h {
+            for i in 0..w {
+                ids.push([at(i, j), at(i + 1, j), at(i + 1, j + 1)]);
+                ids.push([at(i, j), at(i + 1, j + 1), at(i, j + 1)]);
+            }
+        }
+        ids
+    }
+
+    /// A strip of `n` quads closed with a half twist (vertices 0..2n).
+    fn mobius(n: u32) -> Vec<[u32; 3]> {
+        (0..n)
+            .flat_map(|i| {
+                let (a, b) = (i, i + n);
+                let (c, e) = if i + 1 < n {
+                    (i + 1, i + 1 + n)
+                } else {
+                    (n, 0)
+                };
+                [[a, c, e], [a, e, b]]
+            })
+            .collect()
+    }
+
+    /// The fill and the sets over the welded facets `ids`: the same pieces, readings and
+    /// repeats for every split into ranges; `None` when the sets gave way to the fill.
+    fn compare(ids: &[[u32; 3]], vertices: usize) -> Option<usize> {
+        let degenerate: Vec<bool> = ids
+            .iter()
+            .map(|t| t[0] == t[1] || t[1] == t[2] || t[0] == t[2])
+            .collect();
+        let edges = find_edges(ids, &degenerate, vertices);
+        let mut bad_facet = vec![false; ids.len()];
+        for &f in edges.findings.bad.iter() {
+            bad_facet[f as usize] = true;
+        }
+        let manifold = edges.findings.non_manifold_edges == 0;
+        let adj = &edges.neighbours;
+        let waves = flood_by_waves(&degenerate, adj, &bad_facet, manifold);
+        assert_eq!(flood(&degenerate, adj, &bad_facet, manifold), waves);
+        let mut given = None;
+        for parts in [1, 2, 3, 7] {
+            let sets = flood_by_sets(&degenerate, adj, &bad_facet, manifold, parts);
+            match (&given, &sets) {
+                (None, _) => given = Some(sets.is_some()),
+                (Some(g), s) => assert_eq!(*g, s.is_some(), "{parts} ranges"),
+            }
+            if let Some(sets) = sets {
+                assert_eq!(sets, waves, "{parts} ranges");
+            }
+        }
+        given.expect("compared").then_some(waves.2.len())
+    }
+
+    #[test]
+    fn the_sets_give_the_pieces_and_readings_of_the_fill() {
+        // Two tori (12 × 5 and 9 × 4 vertices), the second wound the other way, one facet
+        // of the first turned, and the facets in a shuffled order, so ranges meet often
+        // and the links run long; then the same with a hole, a repeated facet and a
+        // degenerate one.
+        let mut d = Draw(7);
+        let first = grid_torus(12, 5);
+        let second: Vec<[u32; 3]> = grid_torus(9, 4)
+            .into_iter()
+            .map(|t| [t[0] + 60, t[2] + 60, t[1] + 60])
+            .collect();
+        let mut ids: Vec<[u32; 3]> = first.iter().chain(&second).copied().collect();
+        ids[17].swap(0, 1);
+        for i in (1..ids.len()).rev() {
+            ids.swap(i, d.next(i + 1));
+        }
+        assert_eq!(compare(&ids, 96), Some(2), "two shells");
+        ids.remove(30);
+        ids.push(ids[3]);
+        ids.push([5, 5, 6]);
+        assert!(compare(&ids, 96).is_some());
+        // A strip of quads closed with a half twist: no consistent winding, so the
+        // fill decides, and the sets give way to it.
+        assert_eq!(compare(&mobius(10), 20), None);
+        // Random cases: soups of facets on a few vertices (pieces joined and split every
+        // way, non-manifold edges, repeats), tori and twisted strips beside a torus, each
+        // with facets turned and removed at random and the facets shuffled.
+        let (mut both, mut fill_only) = (0, 0);
+        for _ in 0..300 {
+            let (mut ids, vertices) = match d.next(3) {
+                0 => {
+                    let vertices = 4 + d.next(12);
+                    let facets = 1 + d.next(40);
+                    let ids: Vec<[u32; 3]> = (0..facets)
+                        .map(|_| [0; 3].map(|_| d.next(vertices) as u32))
+                        .collect();
+                    (ids, vertices)
+                }
+                kind => {
+                    let (w, h) = (3 + d.next(6) as u32, 3 + d.next(4) as u32);
+                    let mut ids = grid_torus(w, h);
+                    if kind == 2 {
+                        let n = 3 + d.next(8) as u32;
+                        let base = w * h;
+                        ids.extend(mobius(n).into_iter().map(|t| t.map(|v| v + base)));
+                    }
+                    let vertices = ids.iter().flatten().max().map_or(0, |&v| v as usize + 1);
+                    (ids, vertices)
+                }
+            };
+            for _ in 0..d.next(4) {
+                let f = d.next(ids.len());
+                ids[f].swap(1, 2);
+            }
+            if d.next(3) == 0 && ids.len() > 1 {
+                ids.remove(d.next(ids.len()));
+            }
+            for i in (1..ids.len()).rev() {
+                ids.swap(i, d.next(i + 1));
+            }
+            match compare(&ids, vertices) {
+                Some(_) => both += 1,
+                None => fill_only += 1,
+            }
+        }
+        assert!(
+            both > 100 && fill_only > 50,
+            "{both} by sets, {fill_only} by the fill"
+        );
+    }
 
     #[test]
     fn shell_volumes_and_flips_from_blocks_agree_with_facet_by_facet_sums() {
