@@ -98,20 +98,24 @@ pub fn prune(layout: &Layout) -> Vec<String> {
 /// the change log of `layout` through the append lock (it waits for a watcher that is
 /// appending, never for one that merely runs), then prunes the store. The line is
 /// `computed` with the mesh's next iteration, or `unchanged` when the hashes are those
-/// of its last computed iteration.
-pub fn log_calc(
+/// of its last computed iteration. `beside` is called with the line on another thread
+/// while the line is written and flushed (the folder page is drawn meanwhile).
+pub fn log_calc<R: Send>(
     layout: &Layout,
     r: &MeshResult,
     hashes: (String, String),
-) -> Result<(Value, Vec<String>), LogError> {
+    beside: impl FnOnce(&Value) -> R + Send,
+) -> Result<(Value, Vec<String>, R), LogError> {
     let time = now_rfc3339();
-    let (line, notes) = changelog::append_once(layout.dir(), |lines| {
-        Some(Lineage::of(&r.mesh, lines).line(&time, r, hashes))
-    })?;
+    let (line, notes, beside) = changelog::append_once(
+        layout.dir(),
+        |lines| Some(Lineage::of(&r.mesh, lines).line(&time, r, hashes)),
+        |line| beside(line.unwrap_or(&Value::Null)),
+    )?;
     // Temporary files of a run killed while it wrote a snapshot.
     crate::results::clean_orphans(&layout.snapshots());
     let _ = prune(layout);
-    Ok((line.unwrap_or(Value::Null), notes))
+    Ok((line.unwrap_or(Value::Null), notes, beside))
 }
 
 /// Now, RFC 3339 in UTC to the millisecond, as every log line's `time`.

@@ -402,13 +402,17 @@ fn calc_in_pool(
     writing.add(1);
     let mut notes = iterations::keep_file(&layout, mesh_path, &hashes, sidecar_text.as_bytes());
     writing.add(1);
-    let (line, more) = iterations::log_calc(&layout, &computed.result, hashes)?;
+    page.reload(mesh_path);
+    // The page is drawn while the log line is flushed (a page a line ahead of the log
+    // after a crash is drawn again from the log by the next run). Only this mesh's
+    // history chart is drawn again: the others' lines are as they were.
+    let (line, more, paged) = iterations::log_calc(&layout, &computed.result, hashes, |line| {
+        page.record(line.clone());
+        page.write(false, false)
+    })?;
     notes.extend(more);
     writing.add(1);
-    page.reload(mesh_path);
-    page.record(line.clone());
-    // Only this mesh's history chart is drawn again: the others' lines are as they were.
-    page.write(false, false)?;
+    paged?;
     writing.add(1);
     Ok(Logged {
         result: computed.result,

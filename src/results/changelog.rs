@@ -382,11 +382,14 @@ fn repair_torn_tail(
 /// folder lock (for `calc`, which may run beside a watcher): creates `dir` and the log
 /// when missing, takes the append lock (waiting for a writer that holds it: writers hold
 /// it only while they append), repairs a torn last line, hands every line to `make`, and
-/// writes what it returns (nothing for `None`). Returns the line written and any note.
-pub fn append_once(
+/// writes what it returns (nothing for `None`), calling `beside` with it on another
+/// thread while the line is written and flushed. Returns the line written, any note, and
+/// what `beside` returned.
+pub fn append_once<R: Send>(
     dir: &Path,
     make: impl FnOnce(&[Value]) -> Option<Value>,
-) -> Result<(Option<Value>, Vec<String>), LogError> {
+    beside: impl FnOnce(Option<&Value>) -> R + Send,
+) -> Result<(Option<Value>, Vec<String>, R), LogError> {
     let layout = Layout::new(dir.to_owned());
     let path = layout.change_log();
     let err = |source| LogError::Io {
@@ -414,14 +417,20 @@ pub fn append_once(
         .collect();
     drop(bytes);
     let line = make(&lines);
-    if let Some(line) = &line {
-        let mut out = serde_json::to_vec(line).expect("a JSON value always serializes");
-        out.push(b'\n');
-        file.write_all(&out).map_err(err)?;
-        file.sync_data().map_err(err)?;
-    }
+    let (written, beside) = rayon::join(
+        || match &line {
+            Some(line) => {
+                let mut out = serde_json::to_vec(line).expect("a JSON value always serializes");
+                out.push(b'\n');
+                file.write_all(&out).and_then(|()| file.sync_data())
+            }
+            None => Ok(()),
+        },
+        || beside(line.as_ref()),
+    );
+    written.map_err(err)?;
     let _ = file.unlock();
-    Ok((line, torn.into_iter().collect()))
+    Ok((line, torn.into_iter().collect(), beside))
 }
 
 /// The complete, parseable lines of the change log in the results folder `dir` (none when
