@@ -86,8 +86,9 @@ pub(super) fn weld_with<T: Tris + ?Sized>(
     let cell = if tol > 0.0 { 256.0 * tol } else { 1.0 };
     // Positions are relative to the box's lowest corner, so never negative, and the cast
     // (which truncates) is the floor without a call to `floor`.
-    // A point in cells (each coordinate divided once), and its cell.
-    let in_cells = |q: &Vec3| -> [f64; 3] { [q.x / cell, q.y / cell, q.z / cell] };
+    // A point in cells (each coordinate scaled by the cells per unit length), and its cell.
+    let per_cell = 1.0 / cell;
+    let in_cells = |q: &Vec3| -> [f64; 3] { [q.x * per_cell, q.y * per_cell, q.z * per_cell] };
     let key = |s: &[f64; 3]| -> [i64; 3] { [s[0] as i64, s[1] as i64, s[2] as i64] };
     // Whether a point `s` (in cells) lies within `d` of a face of its cell `k` along
     // axis `ax`: -1 (the lower face), 1 (the upper one) or 0.
