@@ -1,7 +1,8 @@
-//! Shells and winding: one flood fill over the manifold edges that numbers the connected
-//! pieces and reads every facet as stored or reversed so that each piece is consistently
-//! wound; pieces joined at non-manifold edges become one shell; sums per shell that do
-//! not depend on the number of threads.
+//! Shells and winding: the connected pieces over the manifold edges, numbered, and every
+//! facet read as stored or reversed so that each piece is consistently wound (by disjoint
+//! sets on all threads, or by a flood fill where a piece cannot be wound consistently);
+//! pieces joined at non-manifold edges become one shell; sums per shell that do not
+//! depend on the number of threads.
 //!
 //! Turning closed shells outward (by the sign of their volume) is done by the caller from
 //! these sums; nesting is `nest.rs`'s.
