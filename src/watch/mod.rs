@@ -588,7 +588,8 @@ impl Watch<'_> {
         // A long recomputation's bar (stderr), gone before the next line is said.
         let bar = Bar::start(self.opts.progress, &name);
         let layout = self.layout().clone();
-        let done = pipeline::compute_parsed_with(mesh, inputs, &bar).map(|c| {
+        // On a thread of the pool, as in `calc`.
+        let done = rayon::scope(|_| pipeline::compute_parsed_with(mesh, inputs, &bar)).map(|c| {
             bar.report(Stage::Writing, 0, 1);
             let written = pipeline::write_computed(&layout, mesh, &c, self.opts.units);
             (c, written)
