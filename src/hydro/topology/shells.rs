@@ -100,10 +100,10 @@ fn walk(link: &[Link], mut x: usize) -> (usize, bool) {
     }
 }
 
-/// Joins facet `f` to facet `g` (`g` < `f`) across an edge whose facets are read the
-/// same way unless `same` is 1 (it is traversed the same way by both as stored), the
-/// higher root linked under the lower; `at` is `f`'s root and reading, kept up to date.
-/// `false` when they are one set already and the edge asks for the other reading.
+/// Joins a facet `f` to a lower facet `g` across their edge, whose facets are read the
+/// same way unless `same` is 1 (both traverse it the same way as stored), the higher root
+/// linked under the lower; `at` is `f`'s root and reading relative to it, kept up to
+/// date. `false` when they are one set already and the edge asks for the other reading.
 fn join(link: &mut [Link], base: usize, at: &mut (usize, u32), g: usize, same: u32) -> bool {
     let (rf, of) = *at;
     let (rg, og) = find(link, base, g);
