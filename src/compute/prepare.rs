@@ -240,11 +240,9 @@ pub(super) fn prepare(
         Some(guess) if guess.is_given_by(&topology) => None,
         _ => Some(Wet::of(&parts, sidecar, &topology)?),
     };
-    let kept = match (&guessed, &found) {
-        (_, None) => true,
-        (Some(guess), Some(wet)) => guess == wet,
-        (None, Some(_)) => false,
-    };
+    let kept = found
+        .as_ref()
+        .is_none_or(|wet| guessed.as_ref() == Some(wet));
     let accs = if kept {
         filler.finish()
     } else {

@@ -203,21 +203,17 @@ impl Incidence {
             .map(|run| {
                 let mut count: Vec<u32> = super::written_zeros(size);
                 let mut last = vec![None; later.len()];
-                if later.is_empty() {
-                    corners.each(run.clone(), |_, v| count[v] += 1, |_, _| {});
-                } else {
-                    corners.each(
-                        run.clone(),
-                        |_, v| count[v] += 1,
-                        |f, v| {
-                            // The later window holding v (v is above this window).
-                            let w = later.partition_point(|&start| start <= v);
-                            if w > 0 {
-                                last[w - 1] = Some(f);
-                            }
-                        },
-                    );
-                }
+                corners.each(
+                    run.clone(),
+                    |_, v| count[v] += 1,
+                    |f, v| {
+                        // The later window holding v, if any (none are asked for: none).
+                        let w = later.partition_point(|&start| start <= v);
+                        if w > 0 {
+                            last[w - 1] = Some(f);
+                        }
+                    },
+                );
                 (count, last)
             })
             .unzip();

@@ -200,11 +200,11 @@ impl Topology {
         }
         drop(bad);
 
-        // Shells and winding in one flood fill over the manifold edges; pieces joined at
-        // non-manifold edges are one shell. Duplicate facets: found by the flood fill from
-        // the neighbours when every edge is manifold; otherwise by comparing the sorted
-        // vertex triples of all facets.
-        // The ids are freed before the flood fill's lists are made.
+        // Shells and winding over the manifold edges (`flood`: disjoint sets, or a flood
+        // fill where a piece cannot be wound consistently); pieces joined at non-manifold
+        // edges are one shell. Duplicate facets: found by `flood` from the neighbours when
+        // every edge is manifold; otherwise by comparing the sorted vertex triples of all
+        // facets. The ids are freed before `flood`'s lists are made.
         let manifold = non_manifold_edges == 0;
         let listed = (!manifold).then(|| duplicate_facet_list(&ids, &degenerate));
         drop(ids);
